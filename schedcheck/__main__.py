@@ -1,0 +1,5 @@
+import sys
+
+from schedcheck.cli import main
+
+sys.exit(main())

@@ -1,0 +1,23 @@
+"""Option parsing shared by the commands (no library logic here)."""
+
+from __future__ import annotations
+
+import datetime as dt
+import sys
+
+from schedcheck.errors import InputError
+
+
+def parse_date(text: str | None, option: str) -> dt.date | None:
+    """A local date option (``2026-03-01``) or None."""
+    if text is None:
+        return None
+    try:
+        return dt.date.fromisoformat(text.strip())
+    except ValueError:
+        raise InputError(f"{text!r} is not a date; write YYYY-MM-DD", key=option) from None
+
+
+def interactive() -> bool:
+    """True when stderr is a terminal (progress is shown only then)."""
+    return sys.stderr.isatty()

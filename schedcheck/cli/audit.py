@@ -1,0 +1,1 @@
+"""`schedcheck audit`: not yet written."""

@@ -1,0 +1,1 @@
+"""`schedcheck demo`: not yet written."""

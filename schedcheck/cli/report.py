@@ -1,0 +1,1 @@
+"""`schedcheck report`: not yet written."""

@@ -1,0 +1,1 @@
+"""`schedcheck schedule`: not yet written."""

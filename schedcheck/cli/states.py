@@ -1,0 +1,1 @@
+"""`schedcheck states`: not yet written."""

@@ -1,0 +1,82 @@
+"""The project's own exception types.
+
+Every problem with a user's input is an :class:`InputError` whose text is one line that names
+the file, and the line or key, where it was found: ``FILE:LINE: what is wrong`` or
+``FILE: key: what is wrong``. The CLI prints it as ``error: <text>`` and exits with status 2.
+Anything else that escapes is an internal error (exit status 1).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable
+from pathlib import Path
+
+
+class SchedcheckError(Exception):
+    """Base class of every error the library raises on purpose."""
+
+
+def _where(path: str | Path | None, line: int | None = None, key: str | None = None) -> str:
+    parts = []
+    if path is not None:
+        head = str(path)
+        if line is not None:
+            head += f":{line}"
+        parts.append(head)
+    elif line is not None:
+        parts.append(f"line {line}")
+    if key:
+        parts.append(key)
+    return ": ".join(parts)
+
+
+class InputError(SchedcheckError):
+    """A problem with an input file, an option or a setting.
+
+    Parameters
+    ----------
+    message : str
+        What is wrong, in one plain sentence without a trailing newline.
+    path : str or Path, optional
+        The file the problem is in.
+    line : int, optional
+        1-based line number in ``path`` (for text files).
+    key : str, optional
+        Dotted key of a setting (``unit[2].component[1].power_kw``) or a column/field name.
+    """
+
+    def __init__(
+        self,
+        message: str,
+        *,
+        path: str | Path | None = None,
+        line: int | None = None,
+        key: str | None = None,
+    ) -> None:
+        self.message = " ".join(str(message).split())  # always one line
+        self.path = None if path is None else str(path)
+        self.line = line
+        self.key = key
+        where = _where(path, line, key)
+        super().__init__(f"{where}: {self.message}" if where else self.message)
+
+
+class InputProblems(InputError):
+    """Several input problems found in one pass (``schedcheck check`` reports them all).
+
+    ``str()`` is the first problem plus a count of the others, so it is still one line;
+    ``problems`` holds every :class:`InputError`.
+    """
+
+    def __init__(self, problems: Iterable[InputError]) -> None:
+        self.problems = list(problems)
+        if not self.problems:
+            raise ValueError("InputProblems needs at least one problem")
+        first = self.problems[0]
+        more = len(self.problems) - 1
+        text = str(first) + (f" (and {more} more problem{'s' if more > 1 else ''})" if more else "")
+        SchedcheckError.__init__(self, text)
+        self.message = text
+        self.path = first.path
+        self.line = first.line
+        self.key = first.key

@@ -1,0 +1,1 @@
+"""inputs layer (see DEVELOPERS.md)."""

@@ -1,0 +1,1 @@
+"""jobs layer (see DEVELOPERS.md)."""

@@ -1,0 +1,121 @@
+"""The site file (TOML): loading, validation and the typed settings the rest of the code uses.
+
+CONTRACT (shared by every module; change only with care): the dataclasses below. The loader
+``load_site`` is implemented in this module; it reads the TOML with :mod:`tomllib`, validates
+everything, collects *every* problem and raises :class:`schedcheck.errors.InputProblems`.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import pandas as pd
+
+ROLES = ("supply_fan", "exhaust_fan", "return_fan", "heat_wheel", "other")
+FAN_ROLES = ("supply_fan", "exhaust_fan", "return_fan")
+
+
+@dataclass(frozen=True)
+class ScheduleSettings:
+    """Intended schedule of a unit (site default merged with the unit's override)."""
+
+    occupied: tuple[Path, ...] = ()          # iCalendar files: periods the unit must run
+    allowed: tuple[Path, ...] = ()           # iCalendar files: running acceptable, not required
+    early_start: pd.Timedelta = pd.Timedelta(0)   # allowance before each occupied period
+    late_stop: pd.Timedelta = pd.Timedelta(0)     # allowance after each occupied period
+
+
+@dataclass(frozen=True)
+class Component:
+    """One monitored rotating part of a unit."""
+
+    id: str                      # unique within its unit, e.g. "supply"
+    unit: str                    # the unit's id, e.g. "AHU-1"
+    role: str                    # one of ROLES
+    sensor: str                  # sensor id in the readings
+    power_kw: float              # electrical input at design speed [kW]
+    speed: float                 # usual running speed as a fraction of design speed [-]
+    threshold: float | None = None   # fixed on/off level [reading unit], None = learn it
+
+    @property
+    def key(self) -> str:
+        """Reported id, ``UNIT/COMPONENT``."""
+        return f"{self.unit}/{self.id}"
+
+    @property
+    def is_fan(self) -> bool:
+        return self.role in FAN_ROLES
+
+
+@dataclass(frozen=True)
+class Unit:
+    id: str
+    name: str
+    schedule: ScheduleSettings
+    components: tuple[Component, ...]
+
+    @property
+    def state_component(self) -> Component | None:
+        """The component whose run state is the unit's: its supply fan, else its first fan."""
+        for c in self.components:
+            if c.role == "supply_fan":
+                return c
+        for c in self.components:
+            if c.is_fan:
+                return c
+        return self.components[0] if self.components else None
+
+
+@dataclass(frozen=True)
+class ReadingsSettings:
+    files: tuple[str, ...]                    # patterns as written, resolved against the site dir
+    unit: str = "mm/s"                        # label only
+    naive_time: str | None = None             # None, "local" or "utc"
+    max_gap: pd.Timedelta = pd.Timedelta("5min")
+    columns: dict[str, str] = field(default_factory=dict)   # our name -> name in the file
+    skip_bad_rows: bool = False
+
+
+@dataclass(frozen=True)
+class HolidaySettings:
+    country: str | None = None                # ISO 3166-1 alpha-2; None = no public holidays
+    subdivision: str | None = None
+    categories: tuple[str, ...] = ("public",)
+    closed: tuple[tuple[dt.date, dt.date], ...] = ()   # inclusive local date ranges
+    language: str = "en_US"                   # pinned holiday-name language
+
+
+@dataclass(frozen=True)
+class EnergySettings:
+    price: float = 0.0            # per kWh [currency/kWh]
+    currency: str = ""
+    co2_per_kwh: float = 0.0      # [kg CO2e/kWh]
+    exponent: float = 3.0         # fan affinity law exponent, power against speed [-]
+
+
+@dataclass(frozen=True)
+class Site:
+    name: str
+    timezone: str                 # IANA name
+    path: Path                    # the site file
+    readings: ReadingsSettings
+    holidays: HolidaySettings
+    schedule: ScheduleSettings    # site default
+    energy: EnergySettings
+    units: tuple[Unit, ...]
+
+    @property
+    def base_dir(self) -> Path:
+        return self.path.parent
+
+    @property
+    def components(self) -> tuple[Component, ...]:
+        return tuple(c for u in self.units for c in u.components)
+
+    def unit(self, unit_id: str) -> Unit:
+        for u in self.units:
+            if u.id == unit_id:
+                return u
+        raise KeyError(unit_id)

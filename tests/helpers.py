@@ -1,0 +1,1 @@
+"""Domain assertion helpers shared by the tests."""
