@@ -96,6 +96,33 @@ class EnergySettings:
 
 
 @dataclass(frozen=True)
+class RunStateSettings:
+    """Optional ``[run_state]`` table: classifier settings (defaults documented in runstate.py).
+
+    The site-file validator derives the allowed keys from these fields, so adding a field here
+    is enough to make a new key accepted (type-checked from its annotation).
+    """
+
+    min_run: pd.Timedelta | None = None     # shortest run kept [duration]; None = default
+    min_stop: pd.Timedelta | None = None    # shortest stop kept [duration]; None = default
+    floor: float | None = None              # absolute floor level [reading unit]; None = default
+
+
+@dataclass(frozen=True)
+class FindingSettings:
+    """Optional ``[findings]`` table: finding rules (defaults documented in findings.py).
+
+    As for RunStateSettings, allowed keys come from these fields; None means the documented
+    default.
+    """
+
+    min_off_schedule: pd.Timedelta | None = None   # persistence before off-schedule running is a finding
+    min_missed: pd.Timedelta | None = None         # occupied time off before it is a finding
+    continuous: pd.Timedelta | None = None         # running without a stop this long = continuous
+    max_starts_per_day: int | None = None          # more starts a day = short cycling
+
+
+@dataclass(frozen=True)
 class Site:
     name: str
     timezone: str                 # IANA name
@@ -105,6 +132,8 @@ class Site:
     schedule: ScheduleSettings    # site default
     energy: EnergySettings
     units: tuple[Unit, ...]
+    run_state: RunStateSettings = RunStateSettings()
+    findings: FindingSettings = FindingSettings()
 
     @property
     def base_dir(self) -> Path:
