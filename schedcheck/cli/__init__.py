@@ -17,6 +17,7 @@ from schedcheck.errors import SchedcheckError
 # command modules register themselves on `app` when imported
 from schedcheck.cli import audit as _audit  # noqa: E402,F401
 from schedcheck.cli import check as _check  # noqa: E402,F401
+from schedcheck.cli import compare as _compare  # noqa: E402,F401
 from schedcheck.cli import demo as _demo  # noqa: E402,F401
 from schedcheck.cli import report as _report  # noqa: E402,F401
 from schedcheck.cli import schedule as _schedule  # noqa: E402,F401

@@ -1,0 +1,1 @@
+"""`schedcheck compare`: being written."""
