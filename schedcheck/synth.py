@@ -1,0 +1,424 @@
+"""Seeded generator: true run intervals in, realistic vibration readings out (tests and demo).
+
+Every function takes its randomness from a :class:`numpy.random.Generator` passed in by the
+caller, so the same seed always gives the same rows. Everything is vectorised; three months of
+minute data for ten sensors takes well under a couple of seconds.
+
+The pieces
+----------
+``truth_from_runs(runs, start, end)``
+    A list of ``(run_start, run_end)`` pairs -> a *truth* table ``start, end, state`` (``run`` /
+    ``off``) covering ``[start, end)`` exactly.
+``weekday_truth(start, end, tz, rng, ...)``
+    A typical office pattern (weekdays, local on/off times with a few minutes of scatter), plus
+    optional extra runs, as a truth table.
+``readings_for_component(truth, sensor=..., rng=..., start=..., end=..., ...)``
+    Readings of one sensor, in readings-file form: columns ``timestamp`` (UTC), ``sensor``,
+    ``x_rms``, ``y_rms``, ``z_rms``, ``x_peak``, ``y_peak``, ``z_peak``, in *file order*, i.e.
+    with the duplicates and out-of-order rows a real gateway export has.
+``truth_with_gaps(truth, outages, start, end)``
+    The truth the classifier should recover: ``no_data`` where the outages are.
+``score_states(truth, found, start, end, ...)``
+    Share of known minutes classified correctly and the error of every true transition.
+
+The reading model (per reading, per axis)
+-----------------------------------------
+* background: ``noise_floor`` [reading unit] times a log-normal scatter (sigma 0.25), present
+  whether or not the fan runs (sensor self-noise plus building background);
+* running: ``running_level * speed**speed_exponent * (1 + level_drift * days / 30)`` times a
+  log-normal scatter (sigma 0.08), only while the truth says ``run``;
+* carried: ``carried_level`` (same drift, scatter sigma 0.10) while the *sibling's* truth
+  (``carried``) says ``run``, whatever this component does;
+* the three add in quadrature (independent sources) and are split over the axes by fixed
+  per-sensor weights; peaks are the RMS times a crest factor of about 1.5 (common practice,
+  no source: about sqrt(2) for a sine, more with impacts), times ``transient_factor`` during
+  the first two minutes after each start.
+
+Then reading times get uniform jitter of up to +-``jitter``, a share ``packet_loss`` of readings
+is lost at random, readings inside ``outages`` are lost, a share ``duplicates`` is sent twice and
+a share ``out_of_order`` swaps places with its neighbour in the file.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from collections.abc import Iterable, Sequence
+
+import numpy as np
+import pandas as pd
+
+from schedcheck.intervals import Intervals, from_ns, to_ns
+
+AXES = ("x", "y", "z")
+READING_COLUMNS = ("timestamp", "sensor", "x_rms", "y_rms", "z_rms", "x_peak", "y_peak", "z_peak")
+CREST_FACTOR = 1.5        # peak / RMS of a running fan (common practice, no source)
+TRANSIENT_TIME = pd.Timedelta("2min")   # start transient lasts about this long (from memory)
+_NS_MIN = 60_000_000_000
+
+
+def _utc(ts) -> pd.Timestamp:
+    t = pd.Timestamp(ts)
+    if t.tzinfo is None:
+        raise ValueError(f"naive instant {ts!r}: give a zone")
+    return t.tz_convert("UTC").as_unit("ns")
+
+
+def _truth_frame(starts: np.ndarray, ends: np.ndarray, states: Sequence[str]) -> pd.DataFrame:
+    return pd.DataFrame(
+        {"start": from_ns(starts), "end": from_ns(ends), "state": np.asarray(states, dtype=object)}
+    )
+
+
+def _labelled(run: Intervals, start_ns: int, end_ns: int) -> pd.DataFrame:
+    """Run set inside the window -> contiguous run/off table covering it."""
+    run = run.clip(start_ns, end_ns) if len(run) else run
+    off = run.complement(start_ns, end_ns)
+    s = np.concatenate([run.starts, off.starts])
+    e = np.concatenate([run.ends, off.ends])
+    lab = np.array(["run"] * len(run) + ["off"] * len(off), dtype=object)
+    order = np.argsort(s, kind="stable")
+    return _truth_frame(s[order], e[order], lab[order])
+
+
+def truth_from_runs(runs: Iterable[tuple], start, end) -> pd.DataFrame:
+    """Run periods -> a truth table covering ``[start, end)``.
+
+    Parameters
+    ----------
+    runs : iterable of (start, end)
+        Run periods (tz-aware instants); overlapping or touching ones merge; parts outside the
+        window are cut off.
+    start, end : tz-aware instants
+        The window.
+
+    Returns
+    -------
+    DataFrame
+        ``start, end, state`` (``run`` / ``off``), UTC, contiguous, covering the window.
+    """
+    s0, e0 = to_ns(_utc(start)), to_ns(_utc(end))
+    runs = list(runs)
+    if runs:
+        rs = np.array([to_ns(_utc(a)) for a, _ in runs], dtype=np.int64)
+        re_ = np.array([to_ns(_utc(b)) for _, b in runs], dtype=np.int64)
+        run = Intervals.from_arrays(rs, re_)
+    else:
+        run = Intervals.empty()
+    return _labelled(run, s0, e0)
+
+
+def weekday_truth(
+    start,
+    end,
+    tz: str,
+    rng: np.random.Generator,
+    *,
+    on: str = "06:00",
+    off: str = "18:00",
+    days: Sequence[int] = (0, 1, 2, 3, 4),
+    scatter: str = "10min",
+    extra_runs: Iterable[tuple] = (),
+) -> pd.DataFrame:
+    """A weekday office pattern as a truth table.
+
+    Parameters
+    ----------
+    start, end : tz-aware instants
+        The window.
+    tz : str
+        IANA zone the on/off times are local to.
+    rng : numpy.random.Generator
+        Source of the start/stop scatter.
+    on, off : str
+        Local start and stop times ``HH:MM``.
+    days : sequence of int
+        Weekdays with a run (Monday = 0).
+    scatter : str
+        Each start and stop moves by a uniform amount of up to +- this [duration].
+    extra_runs : iterable of (start, end)
+        Further run periods (overrides, night runs), tz-aware.
+    """
+    s0, e0 = _utc(start), _utc(end)
+    t_on, t_off = dt.time.fromisoformat(on), dt.time.fromisoformat(off)
+    sc = pd.Timedelta(scatter).value
+    first = s0.tz_convert(tz).date() - dt.timedelta(days=1)
+    last = e0.tz_convert(tz).date() + dt.timedelta(days=1)
+    dates = pd.date_range(first, last, freq="D")
+    dates = dates[np.isin(dates.day_of_week, list(days))]
+    on_local = dates + pd.Timedelta(hours=t_on.hour, minutes=t_on.minute)
+    off_local = dates + pd.Timedelta(hours=t_off.hour, minutes=t_off.minute)
+    loc = dict(nonexistent="shift_forward", ambiguous=True)
+    rs = to_ns(pd.DatetimeIndex(on_local).tz_localize(tz, **loc))
+    re_ = to_ns(pd.DatetimeIndex(off_local).tz_localize(tz, **loc))
+    if sc:
+        rs = rs + rng.integers(-sc, sc + 1, rs.size)
+        re_ = re_ + rng.integers(-sc, sc + 1, re_.size)
+    extra = list(extra_runs)
+    if extra:
+        rs = np.concatenate([rs, [to_ns(_utc(a)) for a, _ in extra]]).astype(np.int64)
+        re_ = np.concatenate([re_, [to_ns(_utc(b)) for _, b in extra]]).astype(np.int64)
+    return _labelled(Intervals.from_arrays(rs, re_), to_ns(s0), to_ns(e0))
+
+
+def _run_set(truth: pd.DataFrame | None) -> Intervals:
+    if truth is None or len(truth) == 0:
+        return Intervals.empty()
+    return Intervals.from_frame(truth[truth["state"] == "run"])
+
+
+def readings_for_component(
+    truth: pd.DataFrame,
+    *,
+    sensor: str,
+    rng: np.random.Generator,
+    start,
+    end,
+    period: str = "60s",
+    jitter: str = "5s",
+    noise_floor: float = 0.03,
+    running_level: float = 1.0,
+    level_drift: float = 0.0,
+    speed: pd.Series | None = None,
+    speed_exponent: float = 2.0,
+    carried: pd.DataFrame | None = None,
+    carried_level: float = 0.0,
+    transient_factor: float = 3.0,
+    packet_loss: float = 0.01,
+    outages: Iterable[tuple] = (),
+    duplicates: float = 0.002,
+    out_of_order: float = 0.002,
+    axes: str = "xyz",
+    peaks: bool = True,
+) -> pd.DataFrame:
+    """Readings of one sensor on a component whose true run intervals are ``truth``.
+
+    Parameters
+    ----------
+    truth : DataFrame
+        ``start, end, state`` (``run`` / ``off``), UTC; rows outside the window are ignored.
+    sensor : str
+        Sensor id written in every row.
+    rng : numpy.random.Generator
+        The only source of randomness.
+    start, end : tz-aware instants
+        Readings are due at ``start + k * period`` inside ``[start, end)``.
+    period : str
+        Nominal reading interval [duration].
+    jitter : str
+        Each reading time moves by a uniform amount of up to +- this [duration].
+    noise_floor : float
+        Background level per reading with the fan stopped [reading unit, e.g. mm/s].
+    running_level : float
+        Level while running at design speed [reading unit].
+    level_drift : float
+        Relative change of the running and carried levels per 30 days [-] (0.1 = +10 %).
+    speed : Series, optional
+        Speed as a fraction of design speed [-], indexed by UTC instants; each value holds
+        until the next (a variable-speed drive). Missing = 1.0.
+    speed_exponent : float
+        Level scales as ``speed ** speed_exponent`` [-]; 2 for an imbalance force growing with
+        the square of speed (from memory; real fans vary between about 1 and 2).
+    carried : DataFrame, optional
+        A sibling component's truth; while it runs, ``carried_level`` is added.
+    carried_level : float
+        Vibration carried from the sibling through the casing [reading unit].
+    transient_factor : float
+        Peaks are multiplied by this during the first two minutes after each start [-].
+    packet_loss : float
+        Share of readings lost at random [-].
+    outages : iterable of (start, end)
+        Periods with no readings at all (gateway down, battery flat).
+    duplicates, out_of_order : float
+        Share of readings sent twice / swapped with their neighbour in the file [-].
+    axes : str
+        Which axes the sensor reports, e.g. ``"xyz"`` or ``"z"``.
+    peaks : bool
+        Whether to write the ``*_peak`` columns.
+
+    Returns
+    -------
+    DataFrame
+        ``timestamp`` (UTC), ``sensor``, then ``<axis>_rms`` and (with ``peaks``)
+        ``<axis>_peak`` for each axis in ``axes``; in file order.
+    """
+    s0, e0 = to_ns(_utc(start)), to_ns(_utc(end))
+    step = pd.Timedelta(period).value
+    jit = pd.Timedelta(jitter).value
+    nominal = np.arange(s0, e0, step, dtype=np.int64)
+    n = nominal.size
+    t = nominal + (rng.integers(-jit, jit + 1, n) if jit else 0)
+    t = np.clip(t, s0, e0 - 1)
+
+    run = _run_set(truth)
+    running = run.contains(t)
+    days = (t - s0) / (86400 * 1e9)
+    drift = 1.0 + level_drift * days / 30.0
+    sp = np.ones(n)
+    if speed is not None and len(speed):
+        idx = to_ns(pd.DatetimeIndex(speed.index))
+        order = np.argsort(idx, kind="stable")
+        idx, val = idx[order], np.asarray(speed.to_numpy(dtype=float))[order]
+        k = np.searchsorted(idx, t, side="right") - 1
+        sp = np.where(k >= 0, val[np.clip(k, 0, None)], 1.0)
+    r_level = running_level * np.power(np.clip(sp, 0, None), speed_exponent) * drift
+    r_level = np.where(running, r_level * np.exp(rng.normal(0, 0.08, n)), 0.0)
+    c_level = np.zeros(n)
+    if carried is not None and carried_level > 0:
+        c_run = _run_set(carried).contains(t)
+        c_level = np.where(c_run, carried_level * drift * np.exp(rng.normal(0, 0.10, n)), 0.0)
+
+    # start transients: first TRANSIENT_TIME of every run that follows an off period
+    after_start = np.zeros(n, bool)
+    if len(run):
+        starts = run.starts[run.starts > s0]
+        if starts.size:
+            k = np.searchsorted(starts, t, side="right") - 1
+            since = t - starts[np.clip(k, 0, None)]
+            after_start = (k >= 0) & running & (since < TRANSIENT_TIME.value)
+
+    weights = rng.uniform(0.5, 1.0, len(axes))
+    weights = weights / np.sqrt((weights**2).sum())
+    cols: dict[str, np.ndarray] = {}
+    for i, ax in enumerate(axes):
+        bg = noise_floor / np.sqrt(len(axes)) * np.exp(rng.normal(0, 0.25, n))
+        rms = np.sqrt((weights[i] * r_level) ** 2 + (weights[i] * c_level) ** 2 + bg**2)
+        cols[f"{ax}_rms"] = rms
+        if peaks:
+            crest = CREST_FACTOR * np.exp(rng.normal(0, 0.1, n))
+            cols[f"{ax}_peak"] = rms * crest * np.where(after_start, transient_factor, 1.0)
+
+    keep = rng.random(n) >= packet_loss
+    for a, b in outages:
+        keep &= ~((t >= to_ns(_utc(a))) & (t < to_ns(_utc(b))))
+    rows = np.flatnonzero(keep)
+    # duplicates: repeat some rows right after themselves
+    reps = np.where(rng.random(rows.size) < duplicates, 2, 1)
+    rows = np.repeat(rows, reps)
+    # out of order: swap some rows with the next one in the file
+    if rows.size > 1 and out_of_order > 0:
+        swap = np.flatnonzero(rng.random(rows.size - 1) < out_of_order)
+        swap = swap[np.concatenate([[True], np.diff(swap) > 1])] if swap.size else swap
+        rows[swap], rows[swap + 1] = rows[swap + 1].copy(), rows[swap].copy()
+
+    out = {"timestamp": from_ns(t[rows]), "sensor": np.full(rows.size, sensor, dtype=object)}
+    order = [f"{ax}_rms" for ax in axes] + ([f"{ax}_peak" for ax in axes] if peaks else [])
+    for c in order:
+        out[c] = cols[c][rows]
+    return pd.DataFrame(out)
+
+
+def truth_with_gaps(truth: pd.DataFrame, outages: Iterable[tuple], start, end) -> pd.DataFrame:
+    """The truth the classifier should recover: ``no_data`` over the outages.
+
+    Parameters
+    ----------
+    truth : DataFrame
+        ``start, end, state`` covering the window.
+    outages : iterable of (start, end)
+        Periods with no readings.
+    start, end : tz-aware instants
+        The window.
+
+    Returns
+    -------
+    DataFrame
+        ``start, end, state`` (``run`` / ``off`` / ``no_data``) covering ``[start, end)``,
+        adjacent rows differing in state.
+    """
+    s0, e0 = to_ns(_utc(start)), to_ns(_utc(end))
+    outs = list(outages)
+    gap = (
+        Intervals.from_arrays([to_ns(_utc(a)) for a, _ in outs], [to_ns(_utc(b)) for _, b in outs])
+        if outs else Intervals.empty()
+    ).clip(s0, e0)
+    run = _run_set(truth).clip(s0, e0) - gap
+    off = Intervals.window(s0, e0) - gap - run
+    parts = [(run, "run"), (off, "off"), (gap, "no_data")]
+    s = np.concatenate([p.starts for p, _ in parts])
+    e = np.concatenate([p.ends for p, _ in parts])
+    lab = np.concatenate([np.full(len(p), name, dtype=object) for p, name in parts])
+    order = np.argsort(s, kind="stable")
+    return _truth_frame(s[order], e[order], lab[order])
+
+
+def _state_at(table: pd.DataFrame, t: np.ndarray) -> np.ndarray:
+    s = to_ns(table["start"])
+    k = np.clip(np.searchsorted(s, t, side="right") - 1, 0, None)
+    e = to_ns(table["end"])
+    lab = table["state"].to_numpy(dtype=object)[k]
+    return np.where((t >= s[k]) & (t < e[k]), lab, "outside")
+
+
+def score_states(
+    truth: pd.DataFrame,
+    found: pd.DataFrame,
+    start,
+    end,
+    *,
+    step: str = "60s",
+    tolerance: str = "2min",
+) -> dict:
+    """Compare found run states with the truth, minute by minute and transition by transition.
+
+    Parameters
+    ----------
+    truth, found : DataFrame
+        ``start, end, state`` tables (``found`` e.g. ``ComponentStates.intervals``).
+    start, end : tz-aware instants
+        Window scored, sampled every ``step`` at the middle of each step.
+    step : str
+        Sampling step [duration].
+    tolerance : str
+        A true run/off transition counts as matched when ``found`` has the same transition
+        within this distance [duration].
+
+    Returns
+    -------
+    dict
+        ``known_share_correct`` (share of sample instants with a known true state, i.e. not
+        ``no_data``, where ``found`` says the same), ``known`` (their number), ``no_data_share``
+        of ``found`` over those known instants, ``transitions`` (number of true run/off
+        changes), ``unmatched`` (list of true transition instants with no match) and
+        ``max_error`` (largest distance to the nearest matching found transition) [Timedelta].
+    """
+    s0, e0 = to_ns(_utc(start)), to_ns(_utc(end))
+    st = pd.Timedelta(step).value
+    t = np.arange(s0, e0, st, dtype=np.int64) + st // 2
+    a, b = _state_at(truth, t), _state_at(found, t)
+    known = (a == "run") | (a == "off")
+    nk = int(known.sum())
+    share = float((a[known] == b[known]).mean()) if nk else float("nan")
+
+    def changes(tab: pd.DataFrame) -> tuple[np.ndarray, np.ndarray]:
+        lab = tab["state"].to_numpy(dtype=object)
+        ok = (lab[:-1] != "no_data") & (lab[1:] != "no_data") & (lab[:-1] != lab[1:])
+        at = to_ns(tab["start"])[1:][ok]
+        kind = lab[1:][ok]
+        inside = (at > s0) & (at < e0)
+        return at[inside], kind[inside]
+
+    ta, ka = changes(truth)
+    fb, kb = changes(found)
+    tol = pd.Timedelta(tolerance).value
+    unmatched, worst = [], 0
+    for kind in ("run", "off"):
+        x, y = ta[ka == kind], np.sort(fb[kb == kind])
+        if x.size == 0:
+            continue
+        if y.size == 0:
+            unmatched.extend(x.tolist())
+            continue
+        j = np.clip(np.searchsorted(y, x), 1, y.size - 1) if y.size > 1 else np.zeros(x.size, int)
+        d = np.abs(y[j] - x)
+        if y.size > 1:
+            d = np.minimum(d, np.abs(y[j - 1] - x))
+        worst = max(worst, int(d.max()))
+        unmatched.extend(x[d > tol].tolist())
+    return {
+        "known_share_correct": share,
+        "known": nk,
+        "no_data_share": float((b[known] == "no_data").mean()) if nk else float("nan"),
+        "transitions": int(ta.size),
+        "unmatched": [from_ns([u])[0] for u in sorted(unmatched)],
+        "max_error": pd.Timedelta(worst),
+    }
