@@ -1,0 +1,310 @@
+"""Minute accounting: run states x intended schedule -> hour figures and daily rows.
+
+Every instant of the audit window ``[start, end)`` lies in exactly one *state* (``run``,
+``off``, ``no_data``) and exactly one *schedule class* (occupied, allowance, unscheduled);
+allowed windows count with the allowances. The figures follow the identities of the user
+interface, exactly (integer nanoseconds) before any rounding:
+
+* ``period = running + off + no_data``
+* ``running = in_schedule + in_allowance + off_schedule``
+* ``scheduled = occupied hours = in_schedule + occupied_off + occupied_no_data``
+* ``missed = occupied_off`` for fans; ``0`` for other roles (a heat wheel runs only when heat
+  recovery pays, so its off time in occupied periods is not a fault). ``occupied_off`` is kept
+  for every role so that nothing is hidden.
+
+A *start* is a change from ``off`` to ``run`` seen in the data and a *stop* one from ``run`` to
+``off``; a run that begins at the window start or right after a stretch of no data is not
+counted as a start, because the data does not show the machine starting.
+
+Local days come from :func:`schedcheck.window.day_edges`, so days of 23 and 25 hours at
+daylight-saving changes are counted at their true length.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from schedcheck.intervals import NS_PER_H, Intervals, from_ns, to_ns, union_all
+from schedcheck.window import day_edges
+
+STATES = ("run", "off", "no_data")
+SCHEDULE_KINDS = ("occupied", "allowance", "allowed")
+WEEKDAYS = ("Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun")
+
+#: hour figures, in the order they are reported
+FIGURES = (
+    "period", "scheduled", "running", "in_schedule", "in_allowance", "off_schedule",
+    "missed", "off", "no_data", "occupied_off", "occupied_no_data",
+)
+
+
+@dataclass(frozen=True)
+class StateSets:
+    """The run states of one component as three disjoint interval sets tiling the window."""
+
+    run: Intervals
+    off: Intervals
+    no_data: Intervals
+    warnings: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class ScheduleSets:
+    """The schedule classes of one unit as three disjoint interval sets tiling the window."""
+
+    occupied: Intervals
+    allowance: Intervals      # early start, late stop and allowed windows
+    unscheduled: Intervals
+
+
+@dataclass
+class ComponentAccount:
+    """Hour figures of one component over the audit window.
+
+    ``ns`` holds each figure of :data:`FIGURES` in integer nanoseconds (exact); ``hours()``
+    converts. ``daily`` has one row per local date (see :func:`daily_rows`).
+    """
+
+    ns: dict[str, int]
+    starts: int
+    daily: pd.DataFrame
+    off_schedule: Intervals          # the off-schedule running itself [UTC ns]
+    missed_intervals: Intervals      # occupied and known off (empty unless missed counts)
+    states: StateSets
+    schedule: ScheduleSets
+    counts_missed: bool
+    warnings: list[str] = field(default_factory=list)
+
+    def hours(self) -> dict[str, float]:
+        """Each figure in hours [h], unrounded."""
+        return {k: v / NS_PER_H for k, v in self.ns.items()}
+
+
+def state_sets(states: pd.DataFrame, start: pd.Timestamp, end: pd.Timestamp) -> StateSets:
+    """Split a run-state table into disjoint ``run``/``off``/``no_data`` sets tiling the window.
+
+    Parameters
+    ----------
+    states : DataFrame
+        Columns ``start``, ``end`` (tz-aware) and ``state`` (``run``, ``off``, ``no_data``),
+        as returned by the run-state classifier [UTC].
+    start, end : Timestamp
+        The audit window ``[start, end)`` [tz-aware].
+
+    Returns
+    -------
+    StateSets
+        Where the table overlaps itself, ``run`` wins over ``off``; any part of the window the
+        table does not cover is ``no_data``. Either case adds a warning, never a lost minute.
+    """
+    missing = {"start", "end", "state"} - set(states.columns)
+    if missing:
+        raise ValueError(f"run-state table lacks columns {sorted(missing)}")
+    bad = sorted(set(states["state"].astype(str)) - set(STATES))
+    if bad:
+        raise ValueError(f"unknown run states {bad}; expected one of {list(STATES)}")
+    win = Intervals.window(start, end)
+    pick = {s: Intervals.from_frame(states[states["state"] == s]) & win for s in STATES}
+    run = pick["run"]
+    off = pick["off"] - run
+    no_data = win - run - off
+    warnings: list[str] = []
+    declared = (pick["no_data"] - run - off)
+    if no_data.duration_ns() != declared.duration_ns():
+        gap_h = (no_data.duration_ns() - declared.duration_ns()) / NS_PER_H
+        warnings.append(
+            f"run states left {gap_h:.3f} h of the window uncovered; counted as no data"
+        )
+    overlap = (pick["run"] & pick["off"]).duration_ns()
+    if overlap:
+        warnings.append(f"run states overlap for {overlap / NS_PER_H:.3f} h; counted as running")
+    return StateSets(run, off, no_data, tuple(warnings))
+
+
+def schedule_sets(schedule: pd.DataFrame, start: pd.Timestamp, end: pd.Timestamp) -> ScheduleSets:
+    """Split an intended-schedule table into disjoint schedule classes tiling the window.
+
+    Parameters
+    ----------
+    schedule : DataFrame
+        Columns ``start``, ``end`` (tz-aware) and ``kind`` (``occupied``, ``allowance``,
+        ``allowed``) [UTC].
+    start, end : Timestamp
+        The audit window ``[start, end)`` [tz-aware].
+
+    Returns
+    -------
+    ScheduleSets
+        Priority occupied > allowance/allowed, so every instant is in one class only.
+    """
+    if len(schedule) and not {"start", "end", "kind"} <= set(schedule.columns):
+        raise ValueError("schedule table needs columns start, end, kind")
+    win = Intervals.window(start, end)
+    kinds = schedule["kind"].astype(str) if len(schedule) else pd.Series([], dtype=str)
+    bad = sorted(set(kinds) - set(SCHEDULE_KINDS))
+    if bad:
+        raise ValueError(f"unknown schedule kinds {bad}; expected one of {list(SCHEDULE_KINDS)}")
+
+    def of(*names: str) -> Intervals:
+        if not len(schedule):
+            return Intervals.empty()
+        return Intervals.from_frame(schedule[kinds.isin(names).to_numpy()]) & win
+
+    occupied = of("occupied")
+    allowance = of("allowance", "allowed") - occupied
+    unscheduled = win - occupied - allowance
+    return ScheduleSets(occupied, allowance, unscheduled)
+
+
+def transitions(states: StateSets) -> tuple[np.ndarray, np.ndarray]:
+    """Seen starts (off -> run) and stops (run -> off) [UTC ns]."""
+    run, off = states.run, states.off
+    if len(run) == 0 or len(off) == 0:
+        return np.empty(0, np.int64), np.empty(0, np.int64)
+    starts = run.starts[off.contains(run.starts - 1)]
+    stops = run.ends[off.contains(run.ends)]
+    return starts, stops
+
+
+def account_component(
+    states: pd.DataFrame,
+    schedule: pd.DataFrame,
+    start: pd.Timestamp,
+    end: pd.Timestamp,
+    tz: str,
+    *,
+    counts_missed: bool = True,
+    days_off: pd.DataFrame | None = None,
+) -> ComponentAccount:
+    """Hour figures and daily rows of one component.
+
+    Parameters
+    ----------
+    states : DataFrame
+        The component's run states: ``start``, ``end``, ``state`` [UTC].
+    schedule : DataFrame
+        The unit's intended intervals: ``start``, ``end``, ``kind`` [UTC].
+    start, end : Timestamp
+        The audit window; must fall on local midnights of ``tz`` for whole daily rows [UTC].
+    tz : str
+        IANA time zone of the site; local days are cut at its midnights.
+    counts_missed : bool
+        Whether off time in occupied periods counts as ``missed`` (fans: yes; heat wheels: no).
+    days_off : DataFrame, optional
+        ``date``, ``name``, ``kind`` of the unit's holidays and closures, for the daily rows.
+
+    Returns
+    -------
+    ComponentAccount
+    """
+    start = pd.Timestamp(start).tz_convert("UTC")
+    end = pd.Timestamp(end).tz_convert("UTC")
+    if end <= start:
+        raise ValueError(f"empty audit window [{start}, {end})")
+    st = state_sets(states, start, end)
+    sc = schedule_sets(schedule, start, end)
+    allowed_any = sc.occupied | sc.allowance
+    sets = {
+        "period": Intervals.window(start, end),
+        "scheduled": sc.occupied,
+        "running": st.run,
+        "in_schedule": st.run & sc.occupied,
+        "in_allowance": st.run & sc.allowance,
+        "off_schedule": st.run - allowed_any,
+        "off": st.off,
+        "no_data": st.no_data,
+        "occupied_off": st.off & sc.occupied,
+        "occupied_no_data": st.no_data & sc.occupied,
+    }
+    sets["missed"] = sets["occupied_off"] if counts_missed else Intervals.empty()
+    first, last = _local_dates(start, end, tz)
+    dates, edges = day_edges(first, last, tz)
+    edges_ns = np.clip(to_ns(edges), to_ns(start), to_ns(end))
+    per_day = {k: sets[k].ns_per_bin(edges_ns) for k in FIGURES}
+    seen_starts, seen_stops = transitions(st)
+    daily = _daily_frame(dates, edges_ns, per_day, seen_starts, seen_stops, tz, days_off)
+    ns = {k: int(sets[k].duration_ns()) for k in FIGURES}
+    _check_identities(ns)
+    return ComponentAccount(
+        ns=ns,
+        starts=int(seen_starts.size),
+        daily=daily,
+        off_schedule=sets["off_schedule"],
+        missed_intervals=sets["missed"],
+        states=st,
+        schedule=sc,
+        counts_missed=counts_missed,
+        warnings=list(st.warnings),
+    )
+
+
+def _local_dates(start: pd.Timestamp, end: pd.Timestamp, tz: str) -> tuple[dt.date, dt.date]:
+    first = start.tz_convert(tz).date()
+    last = (end - pd.Timedelta(1, "ns")).tz_convert(tz).date()
+    return first, last
+
+
+def _check_identities(ns: dict[str, int]) -> None:
+    """The interface's identities, exact in ns; a failure is a bug, not a user error."""
+    if ns["running"] + ns["off"] + ns["no_data"] != ns["period"]:
+        raise AssertionError("running + off + no_data != period")
+    if ns["in_schedule"] + ns["in_allowance"] + ns["off_schedule"] != ns["running"]:
+        raise AssertionError("in_schedule + in_allowance + off_schedule != running")
+    if ns["in_schedule"] + ns["occupied_off"] + ns["occupied_no_data"] != ns["scheduled"]:
+        raise AssertionError("in_schedule + occupied_off + occupied_no_data != scheduled")
+
+
+def _daily_frame(dates, edges_ns, per_day, seen_starts, seen_stops, tz, days_off) -> pd.DataFrame:
+    names: dict[dt.date, str] = {}
+    if days_off is not None and len(days_off):
+        for d, n in zip(days_off["date"], days_off["name"], strict=True):
+            d = pd.Timestamp(d).date()
+            names[d] = f"{names[d]}; {n}" if d in names and n not in names[d] else str(n)
+    bins_s = np.searchsorted(edges_ns, seen_starts, side="right") - 1
+    bins_e = np.searchsorted(edges_ns, seen_stops, side="right") - 1
+    n = len(dates)
+    starts_per_day = np.bincount(bins_s[(bins_s >= 0) & (bins_s < n)], minlength=n)[:n]
+    first_start: list[pd.Timestamp | None] = [None] * n
+    last_stop: list[pd.Timestamp | None] = [None] * n
+    for i in range(n):
+        s = seen_starts[bins_s == i]
+        if s.size:
+            first_start[i] = from_ns([s.min()])[0].tz_convert(tz)
+        e = seen_stops[bins_e == i]
+        if e.size:
+            last_stop[i] = from_ns([e.max()])[0].tz_convert(tz)
+    frame = pd.DataFrame({
+        "date": dates,
+        "weekday": [WEEKDAYS[d.weekday()] for d in dates],
+        "day_off": [names.get(d, "") for d in dates],
+    })
+    for k in FIGURES:
+        frame[f"{k}_ns"] = per_day[k].astype(np.int64)
+    frame["first_start"] = first_start
+    frame["last_stop"] = last_stop
+    frame["starts"] = starts_per_day.astype(np.int64)
+    return frame
+
+
+def state_frame_from_sets(states: StateSets) -> pd.DataFrame:
+    """A run-state table (``start``, ``end``, ``state``; UTC) rebuilt from the three sets."""
+    parts = []
+    for name in STATES:
+        s = getattr(states, name)
+        if len(s):
+            f = s.to_frame()
+            f["state"] = name
+            parts.append(f)
+    if not parts:
+        return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "state": []})
+    out = pd.concat(parts, ignore_index=True).sort_values("start", kind="stable")
+    return out.reset_index(drop=True)
+
+
+def combined_intervals(accounts: list[ComponentAccount], name: str) -> Intervals:
+    """Union of one interval set (``off_schedule`` or ``missed_intervals``) over components."""
+    return union_all(getattr(a, name) for a in accounts)
