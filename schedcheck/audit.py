@@ -61,6 +61,8 @@ class AuditResult:
     bad_rows: dict = field(default_factory=lambda: {"count": 0, "examples": []})
     warnings: list[str] = field(default_factory=list)
     generated: pd.Timestamp = field(default_factory=lambda: pd.Timestamp.now("UTC").floor("s"))
+    outdir: object | None = None      # set by the job once the files are written (a Path)
+    files: dict = field(default_factory=dict)                  # file name -> Path
 
     def component(self, key: str) -> ComponentResult:
         for c in self.components:

@@ -1,1 +1,94 @@
-"""`schedcheck audit`: not yet written."""
+"""`schedcheck audit SITE`: classify, compare, price, report."""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+from typing import Annotated
+
+import typer
+
+from schedcheck.cli._app import app
+from schedcheck.cli._common import interactive, parse_date
+
+
+def _progress(message: str) -> None:
+    print(f"... {message}", file=sys.stderr, flush=True)
+
+
+def summary_table(result) -> object:
+    """The per-component table (a rich Table) with a total row."""
+    from rich.table import Table
+
+    from schedcheck.intervals import NS_PER_H
+
+    cur = result.site.energy.currency
+    table = Table(title=f"{result.site.name}: {result.first_date} to {result.last_date}",
+                  title_justify="left")
+    table.add_column("Component")
+    heads = ("Scheduled h", "Running h", "Off-schedule h", "Missed h", "No data h",
+             "Off-schedule kWh", f"Cost {cur}".strip(), "Findings")
+    for h in heads:
+        table.add_column(h, justify="right")
+    counts = result.findings["component"].value_counts().to_dict()
+    tot = [0.0] * len(heads)
+    for comp in result.components:
+        ns = comp.account.ns
+        vals = [ns["scheduled"] / NS_PER_H, ns["running"] / NS_PER_H,
+                ns["off_schedule"] / NS_PER_H, ns["missed"] / NS_PER_H,
+                ns["no_data"] / NS_PER_H, comp.energy["off_schedule_kwh"],
+                comp.energy["off_schedule_cost"], counts.get(comp.key, 0)]
+        tot = [a + b for a, b in zip(tot, vals, strict=True)]
+        missed = f"{vals[3]:.1f}" if comp.account.counts_missed else "-"
+        table.add_row(comp.key, f"{vals[0]:.1f}", f"{vals[1]:.1f}", f"{vals[2]:.1f}", missed,
+                      f"{vals[4]:.1f}", f"{vals[5]:.0f}", f"{vals[6]:.0f}", str(vals[7]))
+    table.add_section()
+    table.add_row("Total", *[f"{v:.1f}" for v in tot[:5]], f"{tot[5]:.0f}", f"{tot[6]:.0f}",
+                  str(int(tot[7])), style="bold")
+    return table
+
+
+@app.command()
+def audit(
+    site: Annotated[Path, typer.Argument(help="The site file (TOML).")],
+    first: Annotated[str | None, typer.Option(
+        "--from", help="First local date to audit (YYYY-MM-DD).")] = None,
+    last: Annotated[str | None, typer.Option(
+        "--to", help="Last local date to audit, inclusive (YYYY-MM-DD).")] = None,
+    out: Annotated[Path | None, typer.Option(
+        "--out", help="Folder for the audit files [default: ./audit-<site name>].")] = None,
+    skip_bad_rows: Annotated[bool, typer.Option(
+        "--skip-bad-rows", help="Skip unreadable readings rows (counted) instead of stopping "
+        "at the first.")] = False,
+) -> int:
+    """Compare when each unit ran with when it was meant to, price the difference, and write
+    summary.json, daily.csv, runs.csv, findings.csv, findings.ics, schedule.csv and report.html.
+
+    The window defaults to the whole local days covered by the readings. Findings are not
+    errors: the exit status is 0 whenever the audit ran.
+
+    Example: schedcheck audit site.toml --from 2026-03-01 --to 2026-05-31 --out audit-march
+    """
+    from rich.console import Console
+
+    from schedcheck.jobs.audit import audit_site
+
+    d0, d1 = parse_date(first, "--from"), parse_date(last, "--to")
+    result = audit_site(site, d0, d1, out=out, skip_bad_rows=skip_bad_rows,
+                        progress=_progress if interactive() else None)
+    console = Console(width=None if sys.stdout.isatty() else 120, highlight=False)
+    console.print(summary_table(result))
+    for w in result.warnings[:10]:
+        console.print(f"warning: {w}", markup=False)
+    if len(result.warnings) > 10:
+        console.print(f"... and {len(result.warnings) - 10} more warnings in summary.json")
+    console.print(f"{len(result.findings)} finding(s). Files written to {result.outdir}:",
+                  markup=False)
+    for name in ("report.html", "summary.json", "daily.csv", "runs.csv", "findings.csv",
+                 "findings.ics", "schedule.csv"):
+        if name in result.files:
+            console.print(f"  {result.files[name]}", markup=False)
+    console.print("Energy figures are affinity-law estimates, not meter readings. Keep "
+                  "ventilation minimums, freeze protection and smoke control as designed when "
+                  "changing schedules.", markup=False)
+    return 0

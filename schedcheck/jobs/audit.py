@@ -1,0 +1,159 @@
+"""The audit job: site file in, audit files out (``schedcheck audit``).
+
+Opens the site and its readings (:mod:`schedcheck.jobs.common`), reads the calendars, classifies
+run states (:func:`schedcheck.runstate.classify_unit`), expands the intended schedule
+(:func:`schedcheck.schedule.expand_unit_schedule`), runs the core audit
+(:func:`schedcheck.audit.run_audit`) and writes the files (:mod:`schedcheck.outputs.files`) and
+the report. Prints nothing: progress goes to the optional ``progress`` callback.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import re
+from collections.abc import Callable
+from pathlib import Path
+
+from schedcheck.audit import AuditResult, run_audit
+from schedcheck.errors import InputError
+from schedcheck.site import Site
+from schedcheck.window import day_window
+
+
+def default_outdir(site: Site) -> Path:
+    """``audit-<site name as a slug>`` in the current folder, e.g. ``audit-fjordside-hall``."""
+    slug = re.sub(r"[^a-z0-9]+", "-", site.name.lower()).strip("-") or "site"
+    return Path.cwd() / f"audit-{slug}"
+
+
+def audit_window(site: Site, first: dt.date | None, last: dt.date | None
+                 ) -> tuple[dt.date, dt.date]:
+    """The local dates to audit: the options, else the whole days covered by the data."""
+    if first is None or last is None:
+        from schedcheck.jobs.common import data_time_range
+
+        d0, d1 = _as_dates(data_time_range(site), site.timezone)
+        first = first or d0
+        last = last or d1
+    if last < first:
+        raise InputError(f"the window ends ({last}) before it starts ({first})", key="--to")
+    return first, last
+
+
+def _as_dates(span, tz: str) -> tuple[dt.date, dt.date]:
+    """Accept (date, date) or (instant, instant) from ``data_time_range``."""
+    a, b = span
+    if isinstance(a, dt.date) and not isinstance(a, dt.datetime):
+        return a, b
+    import pandas as pd
+
+    from schedcheck.window import whole_days_covered
+
+    return whole_days_covered(pd.Timestamp(a), pd.Timestamp(b), tz)
+
+
+def _load_schedules(site: Site, start, end) -> dict[str, object]:
+    from schedcheck.inputs.calendar_files import read_calendar
+    from schedcheck.schedule import expand_unit_schedule
+
+    cache: dict[Path, object] = {}
+
+    def cal(path: Path):
+        if path not in cache:
+            cache[path] = read_calendar(path)
+        return cache[path]
+
+    out = {}
+    for unit in site.units:
+        s = unit.schedule
+        out[unit.id] = expand_unit_schedule(
+            unit, [cal(p) for p in s.occupied], [cal(p) for p in s.allowed],
+            site=site, start=start, end=end,
+        )
+    return out
+
+
+def audit_site(
+    site_path: str | Path,
+    first: dt.date | None = None,
+    last: dt.date | None = None,
+    out: str | Path | None = None,
+    skip_bad_rows: bool = False,
+    progress: Callable[[str], None] | None = None,
+) -> AuditResult:
+    """Audit a site and write its files.
+
+    Parameters
+    ----------
+    site_path : str or Path
+        The site file (TOML).
+    first, last : date, optional
+        Local dates to audit, both inclusive; default the whole days covered by the data.
+    out : str or Path, optional
+        Folder for the files; default :func:`default_outdir`.
+    skip_bad_rows : bool
+        Skip unreadable readings rows (counted and reported) instead of stopping.
+    progress : callable, optional
+        Called with a short line at each stage (the CLI shows them on a terminal).
+
+    Returns
+    -------
+    AuditResult
+        With ``outdir`` and ``files`` (name -> path) set.
+    """
+    from schedcheck.jobs.common import load_readings, open_site
+    from schedcheck.outputs.files import write_audit_files
+    from schedcheck.runstate import classify_unit
+
+    say = progress or (lambda _msg: None)
+    site = open_site(site_path)
+    first, last = audit_window(site, first, last)
+    start, end = day_window(first, last, site.timezone)
+    say(f"reading readings for {first} .. {last}")
+    readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows)
+    states: dict[str, object] = {}
+    for unit in site.units:
+        say(f"classifying run states of {unit.id}")
+        states.update(classify_unit(unit, readings.by_sensor, start, end,
+                                    site.readings.max_gap, site.run_state))
+    say("expanding the intended schedule")
+    schedules = _load_schedules(site, start, end)
+    say("comparing and pricing")
+    bad = getattr(readings, "bad_rows", None)
+    result = run_audit(
+        site, states, schedules, start, end, first_date=first, last_date=last,
+        health=getattr(readings, "health", {}), bad_rows=_bad_rows(bad),
+        warnings=[str(w) for w in getattr(readings, "warnings", []) or []]
+        + [f"{u}: {w}" for u, s in schedules.items() for w in getattr(s, "warnings", []) or []],
+    )
+    outdir = Path(out) if out is not None else default_outdir(site)
+    say(f"writing files to {outdir}")
+    result.files = write_audit_files(result, outdir)
+    result.files["report.html"] = write_report_file(outdir)
+    result.outdir = outdir
+    return result
+
+
+def _bad_rows(bad) -> dict:
+    """Rejected readings rows as ``{count, examples}``."""
+    if bad is None:
+        return {"count": 0, "examples": []}
+    if isinstance(bad, dict):
+        return {"count": int(bad.get("count", 0)), "examples": list(bad.get("examples", []))}
+    if hasattr(bad, "__len__") and not isinstance(bad, str):
+        rows = list(bad.itertuples(index=False)) if hasattr(bad, "itertuples") else list(bad)
+        return {"count": len(rows), "examples": [str(r) for r in rows[:5]]}
+    return {"count": int(bad), "examples": []}
+
+
+def write_report_file(outdir: Path) -> Path:
+    """The full report when its module is present, else the minimal one."""
+    try:
+        from schedcheck.outputs.report import write_report
+    except ImportError:
+        write_report = None
+    if write_report is not None:
+        return Path(write_report(outdir))
+    from schedcheck.outputs.minimal_report import write_minimal_report
+
+    return write_minimal_report(outdir)
