@@ -1,0 +1,383 @@
+"""Reading the readings files: CSV, gzip-compressed CSV and Parquet, globs and column mapping.
+
+Only the needed columns are read. CSV files are read in chunks; Parquet files are read one
+configured sensor at a time with a row filter, so memory follows the largest sensor rather
+than the whole file. Rows are turned into clean per-sensor frames by :mod:`schedcheck.readings`.
+"""
+
+from __future__ import annotations
+
+import warnings as _warnings
+from collections import Counter
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from schedcheck import readings as rd
+from schedcheck.errors import InputError, InputProblems
+from schedcheck.site import LEVEL_COLUMNS, Site, resolve_patterns
+
+BAD_ROW_EXAMPLES = 5          # bad rows named in a message (common practice, no source)
+CSV_CHUNK_ROWS = 500_000      # rows per CSV chunk: bounds memory (common practice, no source)
+PARQUET_SUFFIXES = (".parquet", ".pq", ".parq")
+CSV_SUFFIXES = (".csv", ".txt", ".tsv")
+_MARGIN = pd.Timedelta("1D")  # rows kept outside the window while placing autumn-fold rows
+_ORDER_SHIFT = 40             # read order = file index << 40 | row position
+
+
+def readings_files(site: Site) -> list[Path]:
+    """The readings files of a site, in read order (sorted within each pattern)."""
+    files: list[Path] = []
+    for pat, hits in resolve_patterns(site.base_dir, site.readings.files):
+        if not hits:
+            raise InputError(f"{pat!r} matches no file", path=site.path, key="readings.files")
+        files.extend(h for h in hits if h not in files)
+    return files
+
+
+class _Collector:
+    """Accumulates rows of every file, bad rows and file-level problems."""
+
+    def __init__(self, site: Site, start, end) -> None:
+        self.site = site
+        self.tz = site.timezone
+        self.naive_time = site.readings.naive_time
+        self.owner = {c.sensor: c.key for c in site.components}
+        self.start, self.end = start, end
+        self.parts: dict[str, list[pd.DataFrame]] = {s: [] for s in self.owner}
+        self.unconfigured: Counter = Counter()
+        self.problems: list[InputError] = []
+        self.bad_total = 0
+        self.bad_examples: list[InputError] = []
+        self.bad_by_sensor: Counter = Counter()
+        self.bad_by_file: dict[str, list] = {}
+        self.naive_by_file: dict[str, list] = {}
+
+    # one chunk of raw rows, columns already renamed to ours
+    def take(self, raw: pd.DataFrame, path: Path, file_idx: int, levels: tuple[str, ...],
+             lines: np.ndarray | None, positions: np.ndarray, comma_decimal: bool = False
+             ) -> None:
+        if len(raw) == 0:
+            return
+        sensor = raw["sensor"].astype("str").str.strip().where(raw["sensor"].notna(), "")
+        sensor = sensor.to_numpy(dtype=object)
+        if lines is not None:  # blank lines in a CSV are not data
+            blank = np.ones(len(raw), bool)
+            for c in raw.columns:
+                blank &= (raw[c].fillna("").astype("str").str.strip() == "").to_numpy()
+            if blank.any():
+                raw, sensor = raw[~blank], sensor[~blank]
+                lines, positions = lines[~blank], positions[~blank]
+        configured = np.array([s in self.owner for s in sensor], bool)
+        for s, n in Counter(sensor[~configured & (sensor != "")]).items():
+            self.unconfigured[s] += n
+        keep = configured | (sensor == "")
+        if not keep.all():
+            raw, sensor = raw[keep], sensor[keep]
+            lines, positions = (None if lines is None else lines[keep]), positions[keep]
+        if len(raw) == 0:
+            return
+        raw = raw.reset_index(drop=True)
+        if comma_decimal:
+            for c in levels:
+                raw[c] = raw[c].astype("str").str.replace(",", ".", regex=False)
+        tp = rd.parse_timestamps(raw["timestamp"], naive_time=self.naive_time, tz=self.tz)
+        lv, lbad = rd.level_values(raw, levels)
+        naive = tp.status == rd.NAIVE
+        if naive.any():
+            rec = self.naive_by_file.setdefault(str(path), [None, 0])
+            if rec[0] is None:
+                i = int(np.flatnonzero(naive)[0])
+                rec[0] = (self._where(path, lines, i, sensor, raw), raw["timestamp"].iloc[i])
+            rec[1] += int(naive.sum())
+        time_bad = ~np.isin(tp.status, (rd.OK, rd.AMBIGUOUS, rd.NAIVE))
+        bad = (time_bad | lbad | (sensor == "")) & ~naive
+        if bad.any():
+            self._bad(raw, tp, levels, bad, path, lines, sensor)
+        good = ~bad & ~naive
+        if not good.any():
+            return
+        utc = tp.utc
+        inside = np.ones(len(raw), bool)
+        if self.start is not None:
+            inside &= (utc == rd.NAT) | (utc >= (self.start - _MARGIN).value)
+        if self.end is not None:
+            inside &= (utc == rd.NAT) | (utc < (self.end + _MARGIN).value)
+        good &= inside
+        order = (np.int64(file_idx) << _ORDER_SHIFT) + positions.astype(np.int64)
+        frame = pd.DataFrame({"sensor": sensor, "order": order, "utc": utc, "early": tp.early,
+                              "late": tp.late, "wall": tp.wall}).join(lv.reset_index(drop=True))
+        frame = frame[good]
+        for s, part in frame.groupby("sensor", sort=False):
+            self.parts[s].append(part.drop(columns="sensor"))
+
+    def _where(self, path, lines, i, sensor, raw) -> InputError:
+        if lines is not None:
+            return InputError("", path=path, line=int(lines[i]))
+        return InputError("", path=path, key=f"sensor {sensor[i]} at {raw['timestamp'].iloc[i]}")
+
+    def _bad(self, raw, tp, levels, bad, path, lines, sensor) -> None:
+        idx = np.flatnonzero(bad)
+        rec = self.bad_by_file.setdefault(str(path), [])
+        for s, n in Counter(sensor[idx]).items():
+            if s:
+                self.bad_by_sensor[s] += n
+        self.bad_total += len(idx)
+        for i in idx:
+            if len(rec) >= BAD_ROW_EXAMPLES + 20:   # enough lines to name; the rest is counted
+                rec.append(None)
+                continue
+            reason = None
+            if tp.status[i] not in (rd.OK, rd.AMBIGUOUS):
+                reason = rd.describe_time(raw["timestamp"].iloc[i], int(tp.status[i]), self.tz)
+            if reason is None and sensor[i] == "":
+                reason = "sensor is missing"
+            if reason is None:
+                for c in levels:
+                    reason = rd.describe_level(raw[c].iloc[i], c)
+                    if reason:
+                        break
+            w = self._where(path, lines, int(i), sensor, raw)
+            err = InputError(reason or "bad row", path=w.path, line=w.line, key=w.key)
+            rec.append(err)
+            if len(self.bad_examples) < BAD_ROW_EXAMPLES:
+                self.bad_examples.append(err)
+
+    def file_errors(self, skip: bool) -> list[InputError]:
+        out = list(self.problems)
+        for first, n in self.naive_by_file.values():
+            where, text = first
+            more = f" ({n - 1} more rows like it)" if n > 1 else ""
+            out.append(InputError(
+                f"timestamp {str(text)!r} has no UTC offset{more}; add Z or an offset in the "
+                "export, or set naive_time = \"local\" or \"utc\" in [readings] of the site file",
+                path=where.path, line=where.line, key=where.key))
+        if not skip:
+            for rec in self.bad_by_file.values():
+                named = [e for e in rec if e is not None]
+                first, rest = named[0], len(rec) - 1
+                if rest:
+                    spots = [str(e.line) if e.line is not None else e.key
+                             for e in named[1:BAD_ROW_EXAMPLES]]
+                    label = "lines" if first.line is not None else "rows"
+                    extra = f" and {rest - len(spots)} more" if rest > len(spots) else ""
+                    tail = (f" (and {rest} more bad row{'s' if rest > 1 else ''}: {label} "
+                            f"{', '.join(spots)}{extra}; pass --skip-bad-rows to drop them)")
+                else:
+                    tail = " (pass --skip-bad-rows to drop bad rows)"
+                out.append(InputError(first.message + tail, path=first.path, line=first.line,
+                                      key=first.key))
+        return out
+
+
+def _sniff_sep(path: Path) -> str:
+    import gzip
+
+    opener = gzip.open if _is_gzip(path) else open
+    with opener(path, "rt", encoding="utf-8-sig", errors="replace") as f:
+        head = f.readline()
+    counts = {sep: head.count(sep) for sep in (",", ";", "\t")}
+    return max(counts, key=counts.get) if max(counts.values()) else ","
+
+
+def _is_gzip(path: Path) -> bool:
+    with open(path, "rb") as f:
+        return f.read(2) == b"\x1f\x8b"
+
+
+def _mapping(site: Site, have: list[str], path: Path, line: int | None
+             ) -> tuple[dict[str, str], tuple[str, ...]]:
+    """our name -> file column, and the level columns present; raises for missing ones."""
+    cols = site.readings.columns
+    mapping: dict[str, str] = {}
+    for ours in ("timestamp", "sensor"):
+        theirs = cols.get(ours, ours)
+        if theirs not in have:
+            via = f" (mapped from {ours} in [readings] columns)" if ours in cols else ""
+            raise InputError(f"no column {theirs!r}{via}; the file has: {', '.join(have)}",
+                             path=path, line=line)
+        mapping[ours] = theirs
+    levels = []
+    for ours in LEVEL_COLUMNS:
+        theirs = cols.get(ours, ours)
+        if theirs in have:
+            mapping[ours] = theirs
+            levels.append(ours)
+    if not any(c in levels for c in rd.RMS_COLUMNS):
+        raise InputError("no level column: need at least one of x_rms, y_rms, z_rms (map other "
+                         f"names with [readings] columns); the file has: {', '.join(have)}",
+                         path=path, line=line)
+    return mapping, tuple(levels)
+
+
+def _read_csv(col: _Collector, site: Site, path: Path, file_idx: int) -> tuple[str, ...]:
+    sep = _sniff_sep(path)
+    comp = "gzip" if _is_gzip(path) else None
+    try:
+        head = pd.read_csv(path, nrows=0, sep=sep, compression=comp, encoding="utf-8-sig")
+    except pd.errors.EmptyDataError:
+        raise InputError("the file is empty (no header line)", path=path) from None
+    mapping, levels = _mapping(site, [str(c) for c in head.columns], path, 1)
+    inverse = {v: k for k, v in mapping.items()}
+    skipped: list[int] = []
+    with _warnings.catch_warnings(record=True) as caught:
+        _warnings.simplefilter("always", pd.errors.ParserWarning)
+        reader = pd.read_csv(path, sep=sep, compression=comp, encoding="utf-8-sig",
+                             usecols=list(mapping.values()), dtype=str, keep_default_na=False,
+                             skip_blank_lines=False, on_bad_lines="warn",
+                             chunksize=CSV_CHUNK_ROWS)
+        for chunk in reader:
+            for w in caught:
+                m = __import__("re").search(r"line (\d+): (.*)", str(w.message))
+                if m:
+                    skipped.append(int(m.group(1)))
+                    err = InputError(f"wrong number of fields: {m.group(2)}", path=path,
+                                     line=int(m.group(1)))
+                    col.bad_by_file.setdefault(str(path), []).append(err)
+                    col.bad_total += 1
+                    if len(col.bad_examples) < BAD_ROW_EXAMPLES:
+                        col.bad_examples.append(err)
+            caught.clear()
+            k = chunk.index.to_numpy(np.int64)
+            s = np.array(sorted(skipped), np.int64)
+            shift = np.searchsorted(s - 2 - np.arange(len(s)), k, side="right")
+            lines = k + 2 + shift
+            chunk = chunk.rename(columns=inverse)
+            col.take(chunk, path, file_idx, levels, lines, lines, comma_decimal=sep == ";")
+    return levels
+
+
+def _read_parquet(col: _Collector, site: Site, path: Path, file_idx: int) -> tuple[str, ...]:
+    import pyarrow as pa
+    import pyarrow.compute as pc
+    import pyarrow.parquet as pq
+
+    try:
+        schema = pq.ParquetFile(path).schema_arrow
+    except (pa.ArrowInvalid, OSError) as e:
+        raise InputError(f"not a readable Parquet file ({e})", path=path) from None
+    mapping, levels = _mapping(site, list(schema.names), path, None)
+    inverse = {v: k for k, v in mapping.items()}
+    scol = mapping["sensor"]
+    stype = schema.field(scol).type
+    numeric = pa.types.is_integer(stype)
+    counts = pc.value_counts(pq.read_table(path, columns=[scol]).column(0).combine_chunks())
+    for item in counts.to_pylist():
+        s = str(item["values"]).strip() if item["values"] is not None else ""
+        if s and s not in col.owner:
+            col.unconfigured[s] += item["counts"]
+    for s in col.owner:
+        if numeric:
+            if not s.strip().lstrip("-").isdigit():
+                continue
+            value = int(s)
+        else:
+            value = s
+        table = pq.read_table(path, columns=list(mapping.values()), filters=[(scol, "==", value)])
+        if table.num_rows == 0:
+            continue
+        frame = table.to_pandas().rename(columns=inverse)
+        frame["sensor"] = s
+        pos = np.arange(len(frame), dtype=np.int64)
+        col.take(frame, path, file_idx, levels, None, pos)
+        del table, frame
+    return levels
+
+
+def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timestamp | None = None,
+                  *, skip_bad_rows: bool | None = None) -> rd.Readings:
+    """Read every readings file of a site and return clean readings of its sensors.
+
+    Parameters
+    ----------
+    site : Site
+        The validated site.
+    start, end : pandas.Timestamp, optional
+        UTC window ``[start, end)``; readings outside it are not kept. None: no limit.
+    skip_bad_rows : bool, optional
+        Drop malformed rows (counted and named in the result) instead of failing; None takes
+        ``[readings] skip_bad_rows`` from the site file.
+
+    Raises
+    ------
+    InputProblems
+        For unreadable files, missing columns, timestamps without an offset, bad rows (unless
+        skipped), and when no configured sensor has a reading in the window.
+    """
+    skip = site.readings.skip_bad_rows if skip_bad_rows is None else skip_bad_rows
+    col = _Collector(site, start, end)
+    files = readings_files(site)
+    columns: dict[str, set] = {}
+    for i, path in enumerate(files):
+        try:
+            name = path.name.lower()
+            if name.endswith(PARQUET_SUFFIXES):
+                levels = _read_parquet(col, site, path, i)
+            elif name.endswith(CSV_SUFFIXES) or name.endswith(tuple(s + ".gz" for s in
+                                                                     CSV_SUFFIXES)):
+                levels = _read_csv(col, site, path, i)
+            else:
+                raise InputError("unknown readings format: name files .csv, .csv.gz or "
+                                 ".parquet", path=path)
+            columns[str(path)] = set(levels)
+        except InputError as e:
+            col.problems.append(e)
+        except (UnicodeDecodeError, EOFError, OSError, pd.errors.ParserError) as e:
+            col.problems.append(InputError(f"cannot read the file ({type(e).__name__}: "
+                                           f"{e})", path=path))
+    problems = col.file_errors(skip)
+    if problems:
+        raise InputProblems(problems)
+    return _assemble(col, site, files, start, end, skip)
+
+
+def _assemble(col: _Collector, site: Site, files, start, end, skip: bool) -> rd.Readings:
+    by_sensor, health, warns = {}, {}, []
+    max_gap = site.readings.max_gap
+    for s, parts in col.parts.items():
+        if parts:
+            sets = [set(c for c in p.columns if c in LEVEL_COLUMNS) for p in parts]
+            cols = tuple(c for c in LEVEL_COLUMNS if all(c in x for x in sets))
+            every = tuple(c for c in LEVEL_COLUMNS if any(c in x for x in sets))
+            if cols != every:
+                lost = ", ".join(sorted(set(every) - set(cols)))
+                warns.append(f"sensor {s}: level columns {lost} are missing from some files "
+                             "and are not used")
+            if not any(c in cols for c in rd.RMS_COLUMNS):
+                cols = every
+            data = pd.concat(parts, ignore_index=True)
+            if not any(c in cols for c in rd.RMS_COLUMNS):
+                raise InputError(f"sensor {s}: no RMS column common to all files",
+                                 path=site.path, key="readings.files")
+            frame, h, w = rd.clean_sensor(data, sensor=s, columns=cols, start=start, end=end,
+                                          max_gap=max_gap)
+            warns.extend(w)
+        else:
+            frame = pd.DataFrame({"timestamp": pd.Series([], dtype="datetime64[ns, UTC]"),
+                                  "x_rms": pd.Series([], dtype="float64")})
+            h = rd.SensorHealth(sensor=s)
+            rd._gaps(h, np.array([], np.int64), start, end, max_gap)
+        h.component = col.owner[s]
+        h.bad_rows = col.bad_by_sensor.get(s, 0)
+        if h.count == 0:
+            warns.append(f"sensor {s} ({col.owner[s]}) has no readings"
+                         + (" in the window" if start is not None else "")
+                         + "; its time is counted as no data")
+        by_sensor[s], health[s] = frame, h
+    if col.owner and all(h.count == 0 for h in health.values()):
+        span = (f" between {start:%Y-%m-%d %H:%M}Z and {end:%Y-%m-%d %H:%M}Z"
+                if start is not None and end is not None else "")
+        seen = (f"; the files hold other sensors: {', '.join(sorted(col.unconfigured)[:8])}"
+                if col.unconfigured else "")
+        raise InputProblems([InputError(
+            f"no readings for any configured sensor ({', '.join(col.owner)}){span}{seen}",
+            path=site.path, key="readings.files")])
+    if skip and col.bad_total:
+        first = "; ".join(str(e) for e in col.bad_examples[:3])
+        warns.append(f"skipped {col.bad_total} bad row{'s' if col.bad_total > 1 else ''} "
+                     f"(first: {first})")
+    return rd.Readings(by_sensor=by_sensor, health=health, unconfigured=dict(col.unconfigured),
+                       bad_rows_count=col.bad_total,
+                       bad_rows_examples=[str(e) for e in col.bad_examples], warnings=warns,
+                       start=start, end=end, files=tuple(str(f) for f in files))

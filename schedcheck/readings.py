@@ -1,0 +1,376 @@
+"""Readings: raw reading rows -> clean per-sensor level series (UTC) and data-health figures.
+
+This is core code: it takes pandas objects and returns pandas objects, never opens a file and
+never prints. File reading lives in :mod:`schedcheck.inputs.readings_files`.
+
+Rules (documented for users in ``docs/readings.md``):
+
+- Timestamps carry ``Z`` or a UTC offset, are epoch seconds, or are typed timestamps (Parquet).
+  A timestamp without an offset is refused unless ``naive_time`` says how to read it
+  (``"utc"`` or ``"local"``, the site's time zone).
+- With ``naive_time = "local"``, a local time in the spring gap cannot occur in valid data and
+  is a bad row. A local time in the repeated autumn hour is resolved by the order of the
+  sensor's rows (first pass = daylight-saving time, second pass = standard time) where those
+  rows are in time order; otherwise the rows are dropped, counted and reported (no data).
+- Exact duplicate rows (same sensor, instant and levels) are dropped and counted. Conflicting
+  duplicates (same sensor and instant, different levels) are merged into one row holding the
+  mean of the levels, and counted. Rows out of order are counted and sorted.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+NAT = np.iinfo(np.int64).min
+RMS_COLUMNS = ("x_rms", "y_rms", "z_rms")
+
+# Epoch seconds outside 2000-01-01 .. 2100-01-01 are refused: they are almost always
+# milliseconds or a wrong column (common practice, no source).
+EPOCH_RANGE = (946_684_800, 4_102_444_800)
+
+# Row status codes from parse_timestamps.
+OK, EMPTY, UNPARSEABLE, NAIVE, NONEXISTENT, AMBIGUOUS, EPOCH_RANGE_BAD = range(7)
+
+_OFFSET_RE = (r"^\s*\d{4}-\d{2}-\d{2}[T ]\d{1,2}:\d{2}(?::\d{2}(?:[.,]\d+)?)?\s*"
+              r"(?:[zZ]|UTC|[+-]\d{2}(?::?\d{2})?)\s*$")
+_NUMBER_RE = r"^\s*[+-]?\d+(?:\.\d*)?\s*$"
+
+
+@dataclass
+class TimeParse:
+    """Timestamps parsed to UTC.
+
+    ``utc`` is int64 ns since the epoch (``NAT`` where the row is not OK); ``status`` one of the
+    codes above per row; for AMBIGUOUS rows ``early`` and ``late`` are the two candidate
+    instants (daylight-saving and standard reading) and ``wall`` the local wall time [ns].
+    """
+
+    utc: np.ndarray
+    status: np.ndarray
+    early: np.ndarray
+    late: np.ndarray
+    wall: np.ndarray
+
+
+def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str) -> TimeParse:
+    """Parse a timestamp column to UTC.
+
+    Parameters
+    ----------
+    values : pandas.Series
+        Text (ISO 8601, or epoch seconds as digits), numbers (epoch seconds [s]) or datetimes.
+    naive_time : {None, "local", "utc"}
+        How to read timestamps without an offset; None refuses them.
+    tz : str
+        IANA zone used for ``naive_time = "local"``.
+    """
+    n = len(values)
+    utc = np.full(n, NAT, dtype=np.int64)
+    status = np.full(n, OK, dtype=np.int8)
+    early = np.full(n, NAT, dtype=np.int64)
+    late = np.full(n, NAT, dtype=np.int64)
+    wall = np.full(n, NAT, dtype=np.int64)
+    s = values.reset_index(drop=True)
+    if isinstance(s.dtype, pd.DatetimeTZDtype):
+        t = s.dt.tz_convert("UTC").dt.as_unit("ns")
+        utc[:] = t.array.asi8
+        status[t.isna().to_numpy()] = EMPTY
+        return TimeParse(utc, status, early, late, wall)
+    if pd.api.types.is_datetime64_dtype(s.dtype):
+        naive = s.dt.as_unit("ns")
+        status[naive.isna().to_numpy()] = EMPTY
+        _naive(naive, np.ones(n, bool) & ~naive.isna().to_numpy(), naive_time, tz,
+               utc, status, early, late, wall)
+        return TimeParse(utc, status, early, late, wall)
+    if pd.api.types.is_numeric_dtype(s.dtype) and not pd.api.types.is_bool_dtype(s.dtype):
+        _epoch(s.astype("float64").to_numpy(), np.ones(n, bool), utc, status)
+        return TimeParse(utc, status, early, late, wall)
+    text = s.astype("str").where(s.notna(), "")
+    empty = (text.str.strip() == "").to_numpy()
+    status[empty] = EMPTY
+    number = text.str.match(_NUMBER_RE).to_numpy() & ~empty
+    if number.any():
+        _epoch(pd.to_numeric(text[number], errors="coerce").to_numpy(float), number, utc, status)
+    offset = text.str.match(_OFFSET_RE).to_numpy() & ~empty & ~number
+    if offset.any():
+        t = pd.to_datetime(text[offset].str.replace("UTC", "Z").str.replace(",", "."),
+                           format="ISO8601", utc=True, errors="coerce").dt.as_unit("ns")
+        v = t.array.asi8
+        utc[offset] = v
+        idx = np.flatnonzero(offset)
+        status[idx[v == NAT]] = UNPARSEABLE
+    rest = ~empty & ~number & ~offset
+    if rest.any():
+        naive = pd.to_datetime(text[rest], format="ISO8601", errors="coerce").dt.as_unit("ns")
+        bad = naive.isna().to_numpy()
+        idx = np.flatnonzero(rest)
+        status[idx[bad]] = UNPARSEABLE
+        good = rest.copy()
+        good[idx[bad]] = False
+        full = pd.Series(pd.NaT, index=range(n), dtype="datetime64[ns]")
+        full.iloc[idx] = naive.to_numpy()
+        _naive(full, good, naive_time, tz, utc, status, early, late, wall)
+    return TimeParse(utc, status, early, late, wall)
+
+
+def _epoch(x: np.ndarray, where: np.ndarray, utc, status) -> None:
+    idx = np.flatnonzero(where)
+    ok = np.isfinite(x) & (x >= EPOCH_RANGE[0]) & (x < EPOCH_RANGE[1])
+    status[idx[~ok]] = EPOCH_RANGE_BAD
+    good = idx[ok]
+    utc[good] = np.round(x[ok] * 1e9).astype(np.int64)
+
+
+def _naive(naive: pd.Series, where: np.ndarray, naive_time, tz, utc, status, early, late,
+           wall) -> None:
+    if not where.any():
+        return
+    if naive_time is None:
+        status[where] = NAIVE
+        return
+    idx = np.flatnonzero(where)
+    sub = naive.iloc[idx].reset_index(drop=True)
+    if naive_time == "utc":
+        utc[idx] = sub.dt.tz_localize("UTC").array.asi8
+        return
+    sure = sub.dt.tz_localize(tz, ambiguous="NaT", nonexistent="NaT").array.asi8
+    utc[idx] = sure
+    unsure = sure == NAT
+    if not unsure.any():
+        return
+    u = sub[unsure]
+    first = u.dt.tz_localize(tz, ambiguous=np.ones(len(u), bool), nonexistent="NaT").array.asi8
+    second = u.dt.tz_localize(tz, ambiguous=np.zeros(len(u), bool), nonexistent="NaT").array.asi8
+    uidx = idx[unsure]
+    gap = first == NAT
+    status[uidx[gap]] = NONEXISTENT
+    status[uidx[~gap]] = AMBIGUOUS
+    early[uidx[~gap]] = first[~gap]
+    late[uidx[~gap]] = second[~gap]
+    wall[uidx] = u.array.asi8 if hasattr(u.array, "asi8") else u.to_numpy().astype(np.int64)
+
+
+def level_values(raw: pd.DataFrame, columns: tuple[str, ...]) -> tuple[pd.DataFrame, np.ndarray]:
+    """Levels as float64 and a per-row flag: True where any level is not a finite number >= 0."""
+    out = {}
+    bad = np.zeros(len(raw), bool)
+    for c in columns:
+        col = raw[c]
+        v = (col.to_numpy(dtype=float, na_value=np.nan) if pd.api.types.is_numeric_dtype(col)
+             else pd.to_numeric(col, errors="coerce").to_numpy(dtype=float, na_value=np.nan))
+        bad |= ~np.isfinite(v) | (v < 0)
+        out[c] = v
+    return pd.DataFrame(out, index=raw.index), bad
+
+
+def describe_level(raw_value, column: str) -> str | None:
+    """Why one raw level is not acceptable (None if it is)."""
+    if raw_value is None or (not isinstance(raw_value, str) and pd.isna(raw_value)):
+        return f"level {column} is missing or NaN"
+    text = str(raw_value).strip()
+    if text == "":
+        return f"level {column} is missing"
+    try:
+        v = float(text)
+    except ValueError:
+        return f"level {column} is {text!r}, not a number"
+    if np.isnan(v):
+        return f"level {column} is NaN, not a number"
+    if not np.isfinite(v):
+        return f"level {column} is {text!r}, not a finite number"
+    if v < 0:
+        return f"level {column} is negative ({text})"
+    return None
+
+
+def describe_time(raw_value, code: int, tz: str) -> str:
+    """Why one timestamp was refused (for the error message)."""
+    text = "" if raw_value is None else str(raw_value).strip()
+    if code == EMPTY:
+        return "timestamp is missing"
+    if code == NAIVE:
+        return f"timestamp {text!r} has no UTC offset"
+    if code == NONEXISTENT:
+        return (f"local time {text!r} does not exist in {tz} (the clocks skip that hour in "
+                "spring), so this row cannot be right")
+    if code == EPOCH_RANGE_BAD:
+        return (f"timestamp {text!r} read as epoch seconds is outside 2000-2100 (milliseconds? "
+                "divide by 1000)")
+    return (f"timestamp {text!r} is not a date and time (ISO 8601 with Z or an offset, or "
+            "epoch seconds)")
+
+
+@dataclass
+class SensorHealth:
+    """Data-health figures of one sensor over the window read."""
+
+    sensor: str
+    component: str | None = None            # "UNIT/COMPONENT" it is mapped to
+    first: pd.Timestamp | None = None       # first reading (UTC)
+    last: pd.Timestamp | None = None        # last reading (UTC)
+    count: int = 0                          # clean readings kept
+    median_interval: pd.Timedelta | None = None   # median time between readings
+    gaps: int = 0                           # silences longer than max_gap (incl. window edges)
+    gap_hours: float = 0.0                  # their total length [h]
+    duplicates_exact: int = 0               # identical rows dropped
+    duplicates_conflicting: int = 0         # rows merged into another at the same instant
+    out_of_order: int = 0                   # rows earlier than a row read before them
+    ambiguous_dropped: int = 0              # autumn repeated-hour rows that could not be placed
+    bad_rows: int = 0                       # malformed rows skipped (with skip_bad_rows)
+    columns: tuple[str, ...] = ()           # level columns present
+
+
+@dataclass
+class Readings:
+    """Clean readings of the configured sensors over a window."""
+
+    by_sensor: dict[str, pd.DataFrame]      # sensor -> timestamp (UTC, sorted, unique) + levels
+    health: dict[str, SensorHealth]
+    unconfigured: dict[str, int] = field(default_factory=dict)   # sensor -> rows, not mapped
+    bad_rows_count: int = 0
+    bad_rows_examples: list[str] = field(default_factory=list)   # "FILE:LINE: reason"
+    warnings: list[str] = field(default_factory=list)
+    start: pd.Timestamp | None = None
+    end: pd.Timestamp | None = None
+    files: tuple[str, ...] = ()
+
+
+def resolve_folds(early: np.ndarray, late: np.ndarray, wall: np.ndarray, utc: np.ndarray,
+                  order_ambiguous: np.ndarray) -> np.ndarray:
+    """Place one sensor's repeated-hour rows (autumn fold) by the order they were read in.
+
+    Parameters
+    ----------
+    early, late, wall : numpy.ndarray
+        For the sensor's ambiguous rows in read order: the daylight-saving reading, the
+        standard-time reading [ns UTC] and the local wall time [ns].
+    utc : numpy.ndarray
+        The sensor's unambiguous instants, in read order [ns UTC].
+    order_ambiguous : numpy.ndarray
+        Position in read order of each ambiguous row among all rows of the sensor; the
+        unambiguous rows fill the other positions.
+
+    Returns
+    -------
+    numpy.ndarray
+        Chosen instant per ambiguous row [ns UTC], ``NAT`` where it cannot be told.
+    """
+    out = np.full(len(early), NAT, dtype=np.int64)
+    if len(early) == 0:
+        return out
+    total = len(early) + len(utc)
+    is_amb = np.zeros(total, bool)
+    is_amb[order_ambiguous] = True
+    sure_pos = np.flatnonzero(~is_amb)
+    # group by fold (one per year): the early candidate's UTC day is enough
+    fold_id = (early // (86_400 * 10**9))
+    for f in np.unique(fold_id):
+        sel = np.flatnonzero(fold_id == f)
+        w = wall[sel]
+        steps = np.diff(w)
+        downs = np.flatnonzero(steps < 0)
+        if len(downs) == 1:
+            cut = downs[0] + 1
+            out[sel[:cut]] = early[sel[:cut]]
+            out[sel[cut:]] = late[sel[cut:]]
+            continue
+        if len(downs) > 1:
+            continue  # not in time order: no data
+        # one pass only: take the reading that fits between the neighbouring rows, if just one
+        pos = order_ambiguous[sel]
+        k0 = np.searchsorted(sure_pos, pos[0]) - 1
+        k1 = np.searchsorted(sure_pos, pos[-1])
+        prev = utc[k0] if k0 >= 0 else None
+        nxt = utc[k1] if k1 < len(utc) else None
+        fits = []
+        for cand in (early[sel], late[sel]):
+            ok = (prev is None or prev <= cand[0]) and (nxt is None or cand[-1] <= nxt)
+            fits.append(ok)
+        if fits[0] and not fits[1]:
+            out[sel] = early[sel]
+        elif fits[1] and not fits[0]:
+            out[sel] = late[sel]
+    return out
+
+
+def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
+                 start: pd.Timestamp | None, end: pd.Timestamp | None,
+                 max_gap: pd.Timedelta) -> tuple[pd.DataFrame, SensorHealth, list[str]]:
+    """One sensor's good rows (any order, possibly from several files) -> clean frame + health.
+
+    Parameters
+    ----------
+    parts : pandas.DataFrame
+        Columns ``order`` (read order), ``utc`` (int64 ns, ``NAT`` for autumn-fold rows),
+        ``early``, ``late``, ``wall`` (see :func:`resolve_folds`) and the level columns.
+    columns : tuple of str
+        Level columns to keep.
+    start, end : pandas.Timestamp or None
+        The UTC window ``[start, end)``; None for no limit.
+    max_gap : pandas.Timedelta
+        Longer silences are counted as gaps.
+    """
+    warnings: list[str] = []
+    health = SensorHealth(sensor=sensor, columns=columns)
+    p = parts.sort_values("order", kind="stable").reset_index(drop=True)
+    utc = p["utc"].to_numpy(np.int64).copy()
+    amb = utc == NAT
+    if amb.any():
+        chosen = resolve_folds(p["early"].to_numpy()[amb], p["late"].to_numpy()[amb],
+                               p["wall"].to_numpy()[amb], utc[~amb], np.flatnonzero(amb))
+        utc[amb] = chosen
+        lost = int((chosen == NAT).sum())
+        if lost:
+            health.ambiguous_dropped = lost
+            day = pd.Timestamp(int(p["early"].to_numpy()[amb][chosen == NAT][0]), tz="UTC")
+            warnings.append(f"sensor {sensor}: {lost} readings in the repeated autumn hour "
+                            f"({day:%Y-%m-%d}) are not in time order and cannot be placed; "
+                            "that hour is counted as no data")
+    keep = utc != NAT
+    if start is not None:
+        keep &= utc >= start.value
+    if end is not None:
+        keep &= utc < end.value
+    utc = utc[keep]
+    levels = p.loc[keep, list(columns)].reset_index(drop=True)
+    if len(utc):
+        prior = np.maximum.accumulate(utc)
+        health.out_of_order = int((utc[1:] < prior[:-1]).sum())
+    frame = pd.DataFrame({"timestamp": utc}).join(levels)
+    frame = frame.sort_values("timestamp", kind="stable")
+    exact = frame.duplicated(keep="first")
+    health.duplicates_exact = int(exact.sum())
+    frame = frame[~exact.to_numpy()]
+    same = frame["timestamp"].duplicated(keep=False).to_numpy()
+    if same.any():
+        health.duplicates_conflicting = int(same.sum() - frame["timestamp"][same].nunique())
+        frame = frame.groupby("timestamp", sort=True, as_index=False).mean()
+    ts = frame["timestamp"].to_numpy(np.int64)
+    frame = frame.reset_index(drop=True)
+    frame["timestamp"] = pd.to_datetime(ts, utc=True).as_unit("ns")
+    for c in columns:
+        frame[c] = frame[c].astype("float64")
+    health.count = len(frame)
+    _gaps(health, ts, start, end, max_gap)
+    return frame[["timestamp", *columns]], health, warnings
+
+
+def _gaps(health: SensorHealth, ts: np.ndarray, start, end, max_gap: pd.Timedelta) -> None:
+    if len(ts):
+        health.first = pd.Timestamp(int(ts[0]), tz="UTC")
+        health.last = pd.Timestamp(int(ts[-1]), tz="UTC")
+    if len(ts) > 1:
+        health.median_interval = pd.Timedelta(int(np.median(np.diff(ts))), unit="ns")
+    edges = [ts]
+    if start is not None:
+        edges.insert(0, np.array([start.value], np.int64))
+    if end is not None:
+        edges.append(np.array([end.value], np.int64))
+    allpts = np.concatenate(edges)
+    d = np.diff(allpts)
+    long = d > max_gap.value
+    health.gaps = int(long.sum())
+    health.gap_hours = float(d[long].sum() / 3.6e12)
