@@ -86,6 +86,8 @@ def _threshold(comp) -> dict:
     th = comp.threshold
     get = (th.get if isinstance(th, dict) else (lambda k, d=None: getattr(th, k, d)))
     hist = get("histogram", None)
+    if hist is None and get("counts", None) is not None:
+        hist = {"edges": get("edges_log10", []), "counts": get("counts", [])}
     if hist is not None and not isinstance(hist, dict):
         edges = getattr(hist, "edges", None)
         counts = getattr(hist, "counts", None)
@@ -95,6 +97,8 @@ def _threshold(comp) -> dict:
     out = {key: _plain(get(key, None)) for key in
            ("level", "source", "separation", "effectiveness", "on_level", "off_level")}
     out["histogram"] = _plain(hist) if hist is not None else {"edges": [], "counts": []}
+    out["groups"] = _plain(get("groups", ()) or ())
+    out["reason"] = str(get("reason", "") or "")
     out["warnings"] = list(comp.state_warnings)
     return out
 
