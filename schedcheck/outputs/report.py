@@ -1,0 +1,301 @@
+"""The evidence pack: one self-contained HTML page drawn from an audit output folder.
+
+``render_report(data)`` turns a :class:`~schedcheck.outputs.saved.SavedAudit` into HTML text;
+``write_report(outdir)`` reads the folder and writes ``outdir/report.html``. The page needs no
+network: CSS is inline, pictures are inline SVG, there are no scripts or web fonts. Every text
+that comes from the inputs goes through Jinja2 with autoescaping on.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+from pathlib import Path
+
+import jinja2
+import numpy as np
+import pandas as pd
+from markupsafe import Markup
+
+from schedcheck.outputs import svg
+from schedcheck.outputs.saved import SavedAudit, read_saved_audit
+
+try:  # written in another module; the report shows a plain table until it exists
+    from schedcheck.outputs.histogram import histogram_svg
+except ImportError:  # pragma: no cover - depends on which modules have landed
+    histogram_svg = None
+
+FINDINGS_SHOWN = 300  # rows of the findings table on the page (common practice, no source)
+
+ROLE_LABELS = {"supply_fan": "supply fan", "exhaust_fan": "exhaust fan",
+               "return_fan": "return fan", "heat_wheel": "heat wheel", "other": "other"}
+
+KIND_LABELS = {
+    "night": "Night running",
+    "weekend": "Weekend running",
+    "holiday": "Running on a holiday or closure day",
+    "continuous": "Ran 24 h or more without stopping",
+    "clock_offset": "Start and stop shifted by about an hour",
+    "early_start": "Repeated early start",
+    "late_stop": "Repeated late stop",
+    "missed": "Off during occupied hours",
+    "short_cycling": "Many starts per day",
+}
+
+# What to ask the controls contractor, per finding kind (plain wording of our own).
+KIND_ASKS = {
+    "night": "Check the time program and any overrides, optimum-start or night settings that "
+             "run {what} outside the occupied period and its allowances.",
+    "weekend": "Check the weekend entries of the time program of {what}.",
+    "holiday": "Load the public holidays and closure dates into the controller's holiday "
+               "calendar for {what}.",
+    "continuous": "Look for a manual override, a switch left in hand, or a stuck occupancy "
+                  "signal that keeps {what} running day and night.",
+    "clock_offset": "Check the controller clock and its daylight-saving setting for {what}.",
+    "early_start": "Review the optimum-start or early-start setting of {what}.",
+    "late_stop": "Review the run-on or late-stop setting of {what}.",
+    "missed": "Find out why {what} was off in occupied hours (trip, fault, schedule error): "
+              "occupants may have had too little outdoor air.",
+    "short_cycling": "Check the control loop and minimum run and off times of {what}.",
+}
+
+HOUR_KEYS = ("period", "scheduled", "running", "in_schedule", "in_allowance", "off_schedule",
+             "missed", "no_data")
+ENERGY_KEYS = ("running_kwh", "running_kw", "running_cost", "running_co2_kg", "off_schedule_kwh",
+               "off_schedule_cost", "off_schedule_co2_kg")
+THRESHOLD_KEYS = ("level", "source", "separation", "effectiveness", "on_level", "off_level",
+                  "histogram", "warnings")
+SENSOR_KEYS = ("sensor", "component", "first", "last", "count", "median_interval_s", "gaps",
+               "gap_hours", "duplicates", "conflicting", "out_of_order", "coverage")
+
+_ENV = jinja2.Environment(
+    loader=jinja2.PackageLoader("schedcheck.outputs", "templates"),
+    autoescape=True,  # every file here is HTML; inputs are never trusted
+    undefined=jinja2.StrictUndefined,
+    trim_blocks=True,
+    lstrip_blocks=True,
+)
+
+
+def _fmt(value, digits: int = 1) -> str:
+    """A figure with thousands separators, or an en dash when it is missing."""
+    if value is None or (isinstance(value, float) and not math.isfinite(value)):
+        return "–"
+    return f"{value:,.{digits}f}"
+
+
+_ENV.filters["num"] = _fmt
+
+
+def _local(ts: pd.Timestamp, tz: str, fmt: str = "%a %d %b %Y %H:%M") -> str:
+    if ts is None or pd.isna(ts):
+        return "–"
+    return ts.tz_convert(tz).strftime(fmt)
+
+
+def _span(start: pd.Timestamp, end: pd.Timestamp, tz: str) -> str:
+    """``Wed 25 Mar 2026 17:20 – 23:00``; the end's date is written when it is another day."""
+    a, b = start.tz_convert(tz), end.tz_convert(tz)
+    if b.date() == a.date():
+        tail = b.strftime("%H:%M")
+    elif b.date() == a.date() + dt.timedelta(days=1) and (b.hour, b.minute) == (0, 0):
+        tail = "24:00"
+    else:
+        tail = b.strftime("%a %d %b %Y %H:%M")
+    return f"{a.strftime('%a %d %b %Y %H:%M')} – {tail}"
+
+
+def _sum(rows: list[dict], path: tuple[str, str]) -> float:
+    return float(sum((r.get(path[0]) or {}).get(path[1]) or 0.0 for r in rows))
+
+
+def _component_rows(data: SavedAudit) -> list[dict]:
+    units = {u.get("id"): u for u in data.summary.get("units", [])}
+    rows = []
+    for i, c in enumerate(data.summary["components"]):
+        unit = c.get("unit") or c["id"].split("/")[0]
+        hours = {k: None for k in HOUR_KEYS} | (c.get("hours") or {})
+        energy = {k: None for k in ENERGY_KEYS} | (c.get("energy") or {})
+        threshold = {k: None for k in THRESHOLD_KEYS} | (c.get("threshold") or {})
+        rows.append({
+            "id": c["id"], "pid": f"c{i}", "unit": unit,
+            "unit_name": (units.get(unit) or {}).get("name", ""),
+            "name": c.get("name") or c["id"].split("/")[-1],
+            "role": ROLE_LABELS.get(c.get("role", ""), c.get("role", "")),
+            "is_wheel": c.get("role") == "heat_wheel", "sensor": c.get("sensor", ""),
+            "hours": hours, "energy": energy, "starts": c.get("starts"),
+            "power_kw": c.get("power_kw"), "speed": c.get("speed"),
+            "exponent": c.get("exponent"), "threshold": threshold,
+            "n_findings": c.get("findings"),
+        })
+    return rows
+
+
+def _charts(data: SavedAudit, comp: dict, days_off: pd.DataFrame) -> None:
+    tz, first, last = data.timezone, data.first_date, data.last_date
+    runs = data.runs[data.runs["component"] == comp["id"]]
+    sched = data.schedule[data.schedule["unit"] == comp["unit"]]
+    doff = days_off[days_off["unit"].isin([comp["unit"], ""])] if len(days_off) else days_off
+    title = f"{comp['id']}: run state by local date and hour"
+    comp["carpet"] = Markup(svg.carpet_svg(runs, sched, doff, tz=tz, first=first, last=last,
+                                           title=title, pid=comp["pid"] + "c"))
+    daily = data.daily[data.daily["component"] == comp["id"]]
+    comp["bars"] = Markup(svg.daily_bars_svg(
+        daily, first=first, last=last, title=f"{comp['id']}: hours per day", pid=comp["pid"] + "b"))
+    th = comp["threshold"]
+    hist = th.get("histogram") or {}
+    comp["histogram"] = None
+    if histogram_svg is not None and hist.get("counts") and hist.get("edges"):
+        comp["histogram"] = Markup(histogram_svg(
+            np.asarray(hist["counts"], dtype=float), np.asarray(hist["edges"], dtype=float),
+            th.get("level"), th.get("on_level"), th.get("off_level"),
+            f"{comp['id']}: levels seen"))
+
+
+def _findings(data: SavedAudit, comps: dict[str, dict]) -> list[dict]:
+    f = data.findings.copy()
+    if len(f) == 0:
+        return []
+    f["sort_cost"] = f["cost"].fillna(0.0) if "cost" in f else 0.0
+    f = f.sort_values(["sort_cost", "kwh", "hours"], ascending=False, kind="stable")
+    out = []
+    for row in f.itertuples(index=False):
+        comp = comps.get(row.component, {})
+        out.append({
+            "component": row.component, "unit_name": comp.get("unit_name", ""),
+            "kind": KIND_LABELS.get(row.kind, row.kind), "kind_code": row.kind,
+            "when": _span(row.start, row.end, data.timezone), "hours": row.hours, "kwh": row.kwh,
+            "cost": getattr(row, "cost", None), "co2_kg": getattr(row, "co2_kg", None),
+            "detail": getattr(row, "detail", ""),
+        })
+    return out
+
+
+def _asks(findings: list[dict], comps: dict[str, dict]) -> list[dict]:
+    """One question for the contractor per component and finding kind, costliest first."""
+    groups: dict[tuple[str, str], dict] = {}
+    for f in findings:
+        g = groups.setdefault((f["component"], f["kind_code"]), {
+            "component": f["component"], "kind": f["kind"], "count": 0, "hours": 0.0,
+            "cost": 0.0, "kwh": 0.0})
+        g["count"] += 1
+        g["hours"] += f["hours"] or 0.0
+        g["kwh"] += f["kwh"] or 0.0
+        g["cost"] += f["cost"] if f["cost"] is not None and math.isfinite(f["cost"]) else 0.0
+    out = []
+    for (cid, kind), g in groups.items():
+        comp = comps.get(cid, {})
+        what = cid + (f" ({comp['unit_name']})" if comp.get("unit_name") else "")
+        g["ask"] = KIND_ASKS.get(kind, "Review the findings of {what}.").format(what=what)
+        out.append(g)
+    return sorted(out, key=lambda g: (-g["cost"], -g["kwh"], g["component"]))
+
+
+def report_context(data: SavedAudit) -> dict:
+    """Everything the template shows, computed from the saved files (no HTML here)."""
+    s = data.summary
+    site = s["site"]
+    comps = _component_rows(data)
+    by_id = {c["id"]: c for c in comps}
+    days_off = pd.DataFrame(s.get("days_off") or [], columns=["unit", "date", "name", "kind"])
+    if len(days_off):
+        days_off["date"] = [dt.date.fromisoformat(str(d)) for d in days_off["date"]]
+        days_off["unit"] = days_off["unit"].fillna("")
+    for c in comps:
+        _charts(data, c, days_off)
+    findings = _findings(data, by_id)
+    units = []
+    for u in s.get("units") or [{"id": uid, "name": ""} for uid in dict.fromkeys(
+            c["unit"] for c in comps)]:
+        members = [c for c in comps if c["unit"] == u.get("id")]
+        units.append({"id": u.get("id"), "name": u.get("name", ""), "components": members,
+                      "state_component": u.get("state_component")})
+    first, last = data.first_date, data.last_date
+    ndays = (last - first).days + 1
+    fans = [c for c in comps if not c["is_wheel"]]
+    totals = {
+        "off_schedule_h": _sum(comps, ("hours", "off_schedule")),
+        "off_schedule_kwh": _sum(comps, ("energy", "off_schedule_kwh")),
+        "off_schedule_cost": _sum(comps, ("energy", "off_schedule_cost")),
+        "off_schedule_co2_kg": _sum(comps, ("energy", "off_schedule_co2_kg")),
+        "missed_h": _sum(fans, ("hours", "missed")),
+        "no_data_h": _sum(comps, ("hours", "no_data")),
+        "period_h": _sum(comps, ("hours", "period")),
+        "running_kwh": _sum(comps, ("energy", "running_kwh")),
+    }
+    totals["no_data_share"] = (totals["no_data_h"] / totals["period_h"]
+                               if totals["period_h"] else 0.0)
+    totals["per_year_cost"] = totals["off_schedule_cost"] * 365.0 / ndays if ndays else 0.0
+    return {
+        "site": site, "currency": site.get("currency") or "", "price": site.get("price"),
+        "co2_per_kwh": site.get("co2_per_kwh"), "reading_unit": site.get("reading_unit", ""),
+        "first": first.strftime("%a %d %b %Y"), "last": last.strftime("%a %d %b %Y"),
+        "ndays": ndays, "period": s["period"], "units": units, "components": comps,
+        "totals": totals, "findings": findings[:FINDINGS_SHOWN],
+        "findings_hidden": findings[FINDINGS_SHOWN:], "n_findings": len(findings),
+        "asks": _asks(findings, by_id),
+        "sensors": [{k: None for k in SENSOR_KEYS} | r for r in s.get("sensors") or []],
+        "days_off": [{"unit": r.unit, "date": r.date.strftime("%a %d %b %Y"), "name": r.name,
+                      "kind": r.kind} for r in days_off.drop_duplicates(
+                          ["date", "name", "kind"]).itertuples(index=False)]
+        if len(days_off) else [],
+        "bad_rows": s.get("bad_rows") or {}, "warnings": s.get("warnings") or [],
+        "generated": s.get("generated", ""), "tool_version": s.get("tool_version", ""),
+        "legend": Markup(svg.legend_svg("lg")), "has_histogram": histogram_svg is not None,
+        "dst_days": _dst_days(data.timezone, first, last),
+    }
+
+
+def _dst_days(tz: str, first: dt.date, last: dt.date) -> list[str]:
+    """Local dates in the window whose length is not 24 h (clock changes)."""
+    days = pd.date_range(pd.Timestamp(first), pd.Timestamp(last + dt.timedelta(days=2)),
+                         freq="D").as_unit("ns")
+    days = days.tz_localize(tz, nonexistent="shift_forward", ambiguous=True)
+    lengths = np.diff(days.asi8) / 3.6e12
+    return [f"{d.strftime('%a %d %b %Y')} ({h:g} h)" for d, h in zip(days[:-1], lengths,
+                                                                      strict=True)
+            if abs(h - 24) > 1e-9 and d.date() <= last]
+
+
+def render_report(data: SavedAudit) -> str:
+    """The report page as HTML text.
+
+    Parameters
+    ----------
+    data : SavedAudit
+        An audit output folder read back with :func:`read_saved_audit`.
+
+    Returns
+    -------
+    str
+        A complete, self-contained HTML document.
+    """
+    return _ENV.get_template("report.html.j2").render(**report_context(data))
+
+
+def write_report(outdir: Path) -> Path:
+    """Render ``outdir/report.html`` from the saved audit files in ``outdir`` alone.
+
+    Parameters
+    ----------
+    outdir : Path
+        An audit output folder (``summary.json``, ``daily.csv``, ``runs.csv``,
+        ``findings.csv``, ``schedule.csv``).
+
+    Returns
+    -------
+    Path
+        The written report.
+
+    Raises
+    ------
+    InputError
+        A file of the folder is missing or malformed (the message names it).
+    """
+    outdir = Path(outdir)
+    html = render_report(read_saved_audit(outdir))
+    path = outdir / "report.html"
+    tmp = path.with_suffix(".html.part")
+    tmp.write_text(html, encoding="utf-8")
+    tmp.replace(path)
+    return path

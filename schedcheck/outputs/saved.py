@@ -1,0 +1,289 @@
+"""Read an audit output folder back (summary.json and the CSV files) for re-rendering the report.
+
+The report is drawn from these saved files alone, so ``schedcheck report OUTDIR`` can redraw it
+without the readings. Every problem raises :class:`~schedcheck.errors.InputError` naming the
+file, and the line and column where there is one.
+
+Instants in the CSV files are local ISO 8601 with an offset; they are read back as tz-aware UTC
+(``datetime64[ns, UTC]``), which is exact across daylight-saving changes because every value
+carries its own offset.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import json
+import math
+import zoneinfo
+from dataclasses import dataclass
+from pathlib import Path
+
+import pandas as pd
+
+from schedcheck.errors import InputError
+
+STATES = ("run", "off", "no_data")
+SCHEDULE_KINDS = ("occupied", "allowance", "allowed")
+
+# file name -> (required columns, instant columns, numeric columns, instants may be blank)
+_CSV_SPECS: dict[str, tuple[tuple[str, ...], tuple[str, ...], tuple[str, ...], bool]] = {
+    "daily.csv": (
+        ("component", "date", "period_h", "scheduled_h", "running_h", "in_schedule_h",
+         "in_allowance_h", "off_schedule_h", "missed_h", "no_data_h"),
+        ("first_start", "last_stop"),
+        ("period_h", "scheduled_h", "running_h", "in_schedule_h", "in_allowance_h",
+         "off_schedule_h", "missed_h", "off_h", "no_data_h", "starts", "off_schedule_kwh"),
+        True,
+    ),
+    "runs.csv": (
+        ("component", "state", "start", "end"),
+        ("start", "end"),
+        ("hours", "level"),
+        False,
+    ),
+    "findings.csv": (
+        ("component", "kind", "start", "end", "hours", "kwh"),
+        ("start", "end"),
+        ("hours", "kwh", "cost", "co2_kg"),
+        False,
+    ),
+    "schedule.csv": (
+        ("unit", "kind", "start", "end"),
+        ("start", "end"),
+        (),
+        False,
+    ),
+}
+
+
+@dataclass(frozen=True)
+class SavedAudit:
+    """An audit output folder read back into memory.
+
+    Attributes
+    ----------
+    outdir : Path
+        The folder the files were read from.
+    summary : dict
+        ``summary.json`` as parsed (validated for the fields the report needs).
+    daily : DataFrame
+        ``daily.csv``; ``date`` as :class:`datetime.date`, hour columns float [h],
+        ``first_start``/``last_stop`` UTC (NaT where blank).
+    runs : DataFrame
+        ``runs.csv``; ``start``/``end`` UTC, ``state`` one of run/off/no_data.
+    findings : DataFrame
+        ``findings.csv``; ``start``/``end`` UTC, ``hours`` [h], ``kwh`` [kWh], ``cost``,
+        ``co2_kg`` [kg].
+    schedule : DataFrame
+        ``schedule.csv``; ``start``/``end`` UTC, ``kind`` one of occupied/allowance/allowed.
+    """
+
+    outdir: Path
+    summary: dict
+    daily: pd.DataFrame
+    runs: pd.DataFrame
+    findings: pd.DataFrame
+    schedule: pd.DataFrame
+
+    @property
+    def timezone(self) -> str:
+        """The site's IANA time zone."""
+        return self.summary["site"]["timezone"]
+
+    @property
+    def first_date(self) -> dt.date:
+        """First local date of the audit window."""
+        return _period_date(self.summary, "first_date", "start", self.timezone, end=False)
+
+    @property
+    def last_date(self) -> dt.date:
+        """Last local date of the audit window (inclusive)."""
+        return _period_date(self.summary, "last_date", "end", self.timezone, end=True)
+
+
+def _period_date(summary: dict, key: str, instant_key: str, tz: str, *, end: bool) -> dt.date:
+    period = summary["period"]
+    if period.get(key):
+        return dt.date.fromisoformat(str(period[key]))
+    ts = pd.Timestamp(period[instant_key]).tz_convert(tz)
+    if end:
+        ts = ts - pd.Timedelta(1, "ns")
+    return ts.date()
+
+
+def read_saved_audit(outdir: str | Path) -> SavedAudit:
+    """Read an audit output folder.
+
+    Parameters
+    ----------
+    outdir : str or Path
+        Folder holding ``summary.json``, ``daily.csv``, ``runs.csv``, ``findings.csv`` and
+        ``schedule.csv`` as written by ``schedcheck audit``.
+
+    Returns
+    -------
+    SavedAudit
+
+    Raises
+    ------
+    InputError
+        A file is missing or malformed; the message names the file (and line and column).
+    """
+    outdir = Path(outdir)
+    if not outdir.is_dir():
+        raise InputError("is not a folder of audit outputs (run `schedcheck audit` first)",
+                         path=outdir)
+    summary = read_summary(outdir / "summary.json")
+    frames = {name: read_csv_file(outdir / name) for name in _CSV_SPECS}
+    return SavedAudit(outdir=outdir, summary=summary, daily=frames["daily.csv"],
+                      runs=frames["runs.csv"], findings=frames["findings.csv"],
+                      schedule=frames["schedule.csv"])
+
+
+def read_summary(path: Path) -> dict:
+    """Read and check ``summary.json`` (the fields the report relies on)."""
+    if not path.is_file():
+        raise InputError("missing; this folder holds no complete audit output", path=path)
+    try:
+        data = json.loads(path.read_text(encoding="utf-8"))
+    except UnicodeDecodeError:
+        raise InputError("is not UTF-8 text", path=path) from None
+    except json.JSONDecodeError as e:
+        raise InputError(f"is not valid JSON ({e.msg}, column {e.colno})", path=path,
+                         line=e.lineno) from None
+    if not isinstance(data, dict):
+        raise InputError("must hold a JSON object", path=path)
+    for key, kind in (("site", dict), ("period", dict), ("components", list)):
+        if not isinstance(data.get(key), kind):
+            raise InputError(f"missing or not a{'n object' if kind is dict else ' list'}",
+                             path=path, key=key)
+    site = data["site"]
+    for key in ("name", "timezone"):
+        if not isinstance(site.get(key), str):
+            raise InputError("missing or not text", path=path, key=f"site.{key}")
+    try:
+        zoneinfo.ZoneInfo(site["timezone"])
+    except (zoneinfo.ZoneInfoNotFoundError, ValueError):
+        raise InputError(f"{site['timezone']!r} is not an IANA time zone", path=path,
+                         key="site.timezone") from None
+    for key in ("start", "end"):
+        try:
+            ts = pd.Timestamp(data["period"].get(key))
+            if ts is pd.NaT or ts.tzinfo is None:
+                raise ValueError
+        except (ValueError, TypeError):
+            raise InputError("missing or not an ISO 8601 instant with an offset", path=path,
+                             key=f"period.{key}") from None
+    for key in ("first_date", "last_date"):
+        value = data["period"].get(key)
+        if value is not None:
+            try:
+                dt.date.fromisoformat(str(value))
+            except ValueError:
+                raise InputError(f"{value!r} is not a date (YYYY-MM-DD)", path=path,
+                                 key=f"period.{key}") from None
+    for i, comp in enumerate(data["components"]):
+        if not isinstance(comp, dict) or not isinstance(comp.get("id"), str):
+            raise InputError("each component needs an id", path=path, key=f"components[{i}].id")
+        if not isinstance(comp.get("hours", {}), dict):
+            raise InputError("must be an object", path=path, key=f"components[{i}].hours")
+        for hkey, value in comp.get("hours", {}).items():
+            if not _is_number(value):
+                raise InputError(f"{value!r} is not a number", path=path,
+                                 key=f"components[{i}].hours.{hkey}")
+    for key in ("findings", "sensors", "days_off", "units", "warnings"):
+        if key in data and not isinstance(data[key], list):
+            raise InputError("must be a list", path=path, key=key)
+    return data
+
+
+def _is_number(value: object) -> bool:
+    return (isinstance(value, (int, float)) and not isinstance(value, bool)
+            and math.isfinite(value)) or value is None
+
+
+def read_csv_file(path: Path) -> pd.DataFrame:
+    """Read one of the audit's CSV files and check its columns and values.
+
+    Instant columns become ``datetime64[ns, UTC]``; numeric columns float64; ``date`` columns
+    :class:`datetime.date`. Raises :class:`InputError` naming file, line and column.
+    """
+    required, instants, numbers, blank_ok = _CSV_SPECS[path.name]
+    if not path.is_file():
+        raise InputError("missing; this folder holds no complete audit output", path=path)
+    try:
+        df = pd.read_csv(path, dtype=str, keep_default_na=False, encoding="utf-8")
+    except UnicodeDecodeError:
+        raise InputError("is not UTF-8 text", path=path) from None
+    except pd.errors.EmptyDataError:
+        raise InputError("is empty; expected a header line", path=path, line=1) from None
+    except pd.errors.ParserError as e:
+        raise InputError(f"is not valid CSV ({' '.join(str(e).split())})", path=path) from None
+    missing = [c for c in required if c not in df.columns]
+    if missing:
+        raise InputError(f"header lacks column(s) {', '.join(missing)}", path=path, line=1)
+    for col in instants:
+        if col in df.columns:
+            df[col] = _parse_instants(df[col], path, col, blank_ok=blank_ok)
+    for col in numbers:
+        if col in df.columns:
+            df[col] = _parse_numbers(df[col], path, col)
+    if "date" in df.columns:
+        df["date"] = _parse_dates(df["date"], path)
+    if "state" in df.columns:
+        _check_choice(df["state"], STATES, path, "state")
+    if path.name == "schedule.csv":
+        _check_choice(df["kind"], SCHEDULE_KINDS, path, "kind")
+    if len(instants) == 2 and not blank_ok:
+        bad = (df["end"] < df["start"]).to_numpy()
+        if bad.any():
+            raise InputError("end is before start", path=path, line=int(bad.argmax()) + 2,
+                             key="end")
+    return df
+
+
+def _parse_instants(col: pd.Series, path: Path, name: str, *, blank_ok: bool) -> pd.Series:
+    text = col.str.strip()
+    blank = text == ""
+    parsed = pd.to_datetime(text.where(~blank, None), utc=True, format="ISO8601",
+                            errors="coerce")
+    bad = parsed.isna() & ~(blank if blank_ok else False)
+    if bad.any():
+        i = int(bad.to_numpy().argmax())
+        raise InputError(f"{col.iloc[i]!r} is not an ISO 8601 instant with an offset",
+                         path=path, line=i + 2, key=name)
+    has_offset = text[~blank].str.contains(r"(?:Z|[+-]\d\d:?\d\d)$", regex=True)
+    if not has_offset.all():
+        i = int(has_offset.index[(~has_offset).to_numpy().argmax()])
+        raise InputError(f"{col.iloc[i]!r} has no UTC offset", path=path, line=i + 2, key=name)
+    return parsed.dt.as_unit("ns")
+
+
+def _parse_numbers(col: pd.Series, path: Path, name: str) -> pd.Series:
+    text = col.str.strip()
+    parsed = pd.to_numeric(text.where(text != "", None), errors="coerce").astype("float64")
+    bad = parsed.isna() & (text != "")
+    bad |= ~parsed.isna() & ~pd.Series(parsed.abs() < float("inf"), index=parsed.index)
+    if bad.any():
+        i = int(bad.to_numpy().argmax())
+        raise InputError(f"{col.iloc[i]!r} is not a number", path=path, line=i + 2, key=name)
+    return parsed
+
+
+def _parse_dates(col: pd.Series, path: Path) -> pd.Series:
+    out = []
+    for i, value in enumerate(col):
+        try:
+            out.append(dt.date.fromisoformat(value.strip()))
+        except ValueError:
+            raise InputError(f"{value!r} is not a date (YYYY-MM-DD)", path=path, line=i + 2,
+                             key="date") from None
+    return pd.Series(out, index=col.index, dtype=object)
+
+
+def _check_choice(col: pd.Series, allowed: tuple[str, ...], path: Path, name: str) -> None:
+    bad = ~col.isin(allowed)
+    if bad.any():
+        i = int(bad.to_numpy().argmax())
+        raise InputError(f"{col.iloc[i]!r} is not one of {', '.join(allowed)}", path=path,
+                         line=i + 2, key=name)
