@@ -1,0 +1,322 @@
+"""Findings: run states x intended schedule -> faults a contractor can act on.
+
+One call, :func:`find_issues`, turns one component's run-state intervals, its unit's intended
+schedule and the days off into a table of findings. The rules, in the order they are applied
+(each later rule only sees what the earlier ones left unexplained, so one cause gives one
+finding, not ten symptoms):
+
+1. **clock_offset** (:mod:`schedcheck.findings_clock`). For each daylight-saving change inside
+   the window, the first start and last stop of each working day (relative to that day's
+   occupied period) are compared with the median of up to ``CLOCK_DAYS`` working days before
+   the change. When, over the first ``CLOCK_DAYS`` working days after it (at least
+   ``CLOCK_MIN_DAYS``), the median start shift *and* the stop shift on at least
+   ``CLOCK_SHARE`` of the days lie within ``CLOCK_TOLERANCE`` of the change itself (+1 h in
+   spring, -1 h in autumn: the direction of a controller clock that kept the old offset), one
+   finding starts on the change date. The off-schedule running and the occupied time off next
+   to the occupied edges of each shifted day (within the shift plus the tolerance) belong to
+   this finding and raise no night, early_start, late_stop or missed finding. A later change
+   that brings the times back into line ends the finding instead of raising a new one.
+2. **continuous**. Running without a stop (gaps with no data of up to ``NO_DATA_BRIDGE``
+   between runs do not count as stops) for ``DEFAULT_CONTINUOUS`` or more, holding at least
+   the persistence of off-schedule running, is one finding from the date the run began; its
+   off-schedule running raises nothing else.
+3. **night / weekend / holiday**. Off-schedule running (running minus occupied, allowance and
+   allowed time) is grouped into episodes: pieces separated by stops shorter than
+   ``DEFAULT_MAX_PAUSE`` with no scheduled time between them belong together. An episode
+   with at least ``DEFAULT_MIN_OFF_SCHEDULE`` of running is cut at local midnights where the
+   kind of day changes: a public holiday or closure date without an occupied period is
+   ``holiday`` (one finding per date, named after the day), any other date without an
+   occupied period (Saturdays and Sundays in most schedules) is ``weekend``, and a date with
+   an occupied period is ``night`` (so a night that runs past midnight stays one finding).
+   A cut piece with less running than the persistence joins its longer neighbour.
+4. **early_start / late_stop**. Episodes below the persistence that end where scheduled time
+   begins (running on into it) are early starts; those that begin where scheduled time ends
+   (running on from it) are late stops. Overruns shorter than ``DEFAULT_MIN_OVERRUN`` are
+   edge jitter and ignored. An ISO week with overruns of one kind on at least
+   ``DEFAULT_REPEAT_DAYS`` local dates is one finding, with the dates listed.
+5. **missed**. Occupied time not running, in one stretch, with at least ``DEFAULT_MIN_MISSED``
+   of it known to be off (no-data time is never counted as off) is one finding. Heat wheels
+   run only when heat recovery pays, so they never raise it.
+6. **short_cycling**. More than ``DEFAULT_MAX_STARTS_PER_DAY`` starts (a run that follows a
+   known stop) in one local day is one finding for that day.
+
+Energy: ``kwh`` is ``running_kw`` times the off-schedule running hours of the finding; it is 0
+for ``missed`` (nothing ran) and ``short_cycling`` (the harm is wear, and the running is
+already priced by the other kinds). ``cost = kwh * price`` and ``co2_kg = kwh * co2_per_kwh``.
+
+None of these rules is a reason to switch off a life-safety sequence: smoke control, freeze
+protection and code-minimum ventilation keep running whatever a finding says; the sentences
+ask the contractor to check, and local codes and licensed practice decide.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+
+import numpy as np
+import pandas as pd
+
+from schedcheck import findings_clock, findings_rules
+from schedcheck.errors import InputError
+from schedcheck.findings_rules import Context, Params
+from schedcheck.intervals import Intervals, to_ns
+from schedcheck.site import Component, FindingSettings
+
+# Off-schedule running must persist this long to be a finding on its own. Common practice for
+# alarms (a one-hour persistence before a schedule alarm is raised), no source.
+DEFAULT_MIN_OFF_SCHEDULE = pd.Timedelta("1h")
+# Occupied time off this long is a missed-operation finding. Common practice, no source: half
+# an hour without ventilation in an occupied space is long enough for people to notice stale
+# air, and short enough to catch a late start every morning.
+DEFAULT_MIN_MISSED = pd.Timedelta("30min")
+# Running without a stop this long is "continuous" (an override left on, a unit stuck in
+# occupied mode). Common practice, no source: a day and a night without a stop cannot be a
+# normal schedule with a night setback.
+DEFAULT_CONTINUOUS = pd.Timedelta("24h")
+# More starts than this in one local day is short cycling. Common practice, no source: a
+# scheduled unit starts once or twice a day (plus a night purge); motor makers allow only a
+# handful of starts per hour for fan motors (from memory), so more than six a day points at a
+# control loop, a trip that resets itself or a schedule fighting an override.
+DEFAULT_MAX_STARTS_PER_DAY = 6
+# Stops shorter than this inside off-schedule running do not end an episode. Common practice,
+# no source: a unit cycling 50 min on, 10 min off all night is one night of running.
+DEFAULT_MAX_PAUSE = pd.Timedelta("30min")
+# Early starts and late stops shorter than this are ignored. Common practice, no source: it
+# absorbs the minute or two of edge jitter in one-a-minute readings.
+DEFAULT_MIN_OVERRUN = pd.Timedelta("10min")
+# Overruns of one kind on this many local dates of one ISO week make a finding. Common
+# practice, no source: three days is a habit, not a one-off.
+DEFAULT_REPEAT_DAYS = 3
+# Gaps with no data of up to this long between two runs are not stops for the continuous
+# rule. Common practice, no source: a lost packet or two does not mean the fan stopped.
+NO_DATA_BRIDGE = pd.Timedelta("1h")
+# Clock offset: "about an hour" means within this of the daylight-saving change (45-75 min).
+# Common practice, no source.
+CLOCK_TOLERANCE = findings_clock.CLOCK_TOLERANCE
+# Clock offset: working days compared before and after a change. Common practice, no source
+# (two working weeks).
+CLOCK_DAYS = findings_clock.CLOCK_DAYS
+# Clock offset: fewest working days on each side of the change. Common practice, no source.
+CLOCK_MIN_DAYS = findings_clock.CLOCK_MIN_DAYS
+# Clock offset: share of the working days after the change that must be shifted. Common
+# practice, no source.
+CLOCK_SHARE = findings_clock.CLOCK_SHARE
+
+KINDS = ("night", "weekend", "holiday", "continuous", "clock_offset", "early_start", "late_stop",
+         "missed", "short_cycling")
+COLUMNS = ["component", "kind", "start", "end", "date", "hours", "kwh", "cost", "co2_kg",
+           "detail"]
+STATES = ("run", "off", "no_data")
+SCHEDULE_KINDS = ("occupied", "allowance", "allowed")
+DAY_OFF_KINDS = ("holiday", "closure")
+
+
+def default_settings() -> dict[str, object]:
+    """The documented default of every finding setting, keyed like ``[findings]`` in a site file."""
+    return {
+        "min_off_schedule": DEFAULT_MIN_OFF_SCHEDULE,
+        "min_missed": DEFAULT_MIN_MISSED,
+        "continuous": DEFAULT_CONTINUOUS,
+        "max_starts_per_day": DEFAULT_MAX_STARTS_PER_DAY,
+        "max_pause": DEFAULT_MAX_PAUSE,
+        "min_overrun": DEFAULT_MIN_OVERRUN,
+        "repeat_days": DEFAULT_REPEAT_DAYS,
+    }
+
+
+def _params(settings: FindingSettings | None) -> Params:
+    values = default_settings()
+    for name in values:
+        given = getattr(settings, name, None) if settings is not None else None
+        if given is not None:
+            values[name] = given
+    for name, value in values.items():
+        if isinstance(value, pd.Timedelta):
+            if value <= pd.Timedelta(0):
+                raise InputError(f"must be a positive duration, not {value}",
+                                 key=f"findings.{name}")
+        elif isinstance(value, bool) or not isinstance(value, (int, np.integer)) or value < 1:
+            raise InputError(f"must be a whole number of at least 1, not {value!r}",
+                             key=f"findings.{name}")
+    return Params(no_data_bridge=NO_DATA_BRIDGE, **values)
+
+
+def _frame_ns(frame: pd.DataFrame, name: str, columns: tuple[str, ...]) -> dict[str, np.ndarray]:
+    if not isinstance(frame, pd.DataFrame):
+        raise InputError(f"expected a table, got {type(frame).__name__}", key=name)
+    missing = [c for c in columns if c not in frame.columns]
+    if missing:
+        raise InputError(f"missing column(s) {', '.join(missing)}", key=name)
+    out = {}
+    for col in ("start", "end"):
+        try:
+            out[col] = np.asarray(to_ns(frame[col]), dtype=np.int64)
+        except (ValueError, TypeError) as exc:
+            raise InputError(f"column '{col}' must hold zone-aware instants ({exc})",
+                             key=name) from None
+    if len(frame) and bool(np.any(out["end"] < out["start"])):
+        row = int(np.flatnonzero(out["end"] < out["start"])[0])
+        raise InputError(f"row {row} ends before it starts", key=name)
+    return out
+
+
+def _check_values(frame: pd.DataFrame, name: str, column: str, allowed: tuple[str, ...]) -> None:
+    bad = sorted(set(frame[column].astype(str)) - set(allowed))
+    if bad:
+        raise InputError(f"unknown {column} {bad[0]!r}; expected one of {', '.join(allowed)}",
+                         key=f"{name}.{column}")
+
+
+def _days_off(days_off: pd.DataFrame | None) -> dict[dt.date, tuple[str, str]]:
+    if days_off is None or len(days_off) == 0:
+        return {}
+    if not isinstance(days_off, pd.DataFrame) or "date" not in days_off.columns:
+        raise InputError("missing column date", key="days_off")
+    names = days_off["name"] if "name" in days_off.columns else pd.Series("", index=days_off.index)
+    kinds = days_off["kind"] if "kind" in days_off.columns else pd.Series("holiday",
+                                                                          index=days_off.index)
+    _check_values(pd.DataFrame({"kind": kinds}), "days_off", "kind", DAY_OFF_KINDS)
+    out: dict[dt.date, tuple[str, str]] = {}
+    for value, nm, kd in zip(days_off["date"], names, kinds, strict=True):
+        try:
+            day = value if type(value) is dt.date else pd.Timestamp(value).date()
+        except (ValueError, TypeError):
+            raise InputError(f"{value!r} is not a date", key="days_off.date") from None
+        label = str(nm).strip() or ("Closure" if kd == "closure" else "Public holiday")
+        if day in out and out[day][0] != label:  # two names on one date: keep both
+            label = f"{out[day][0]} / {label}"
+        out[day] = (label, str(kd))
+    return out
+
+
+def find_issues(
+    component: Component,
+    states: pd.DataFrame,
+    schedule: pd.DataFrame,
+    days_off: pd.DataFrame | None,
+    *,
+    start: pd.Timestamp,
+    end: pd.Timestamp,
+    tz: str,
+    running_kw: float,
+    price: float = 0.0,
+    co2_per_kwh: float = 0.0,
+    currency: str = "",
+    settings: FindingSettings | None = None,
+) -> pd.DataFrame:
+    """Findings for one component over the audit window ``[start, end)``.
+
+    Parameters
+    ----------
+    component : Component
+        The component; its ``key`` names the findings and its ``role`` decides whether
+        occupied time off is a fault (not for ``heat_wheel``).
+    states : DataFrame
+        Run-state intervals ``start, end, state, level`` (UTC) covering the window; ``state`` is
+        ``run``, ``off`` or ``no_data``.
+    schedule : DataFrame
+        The unit's intended intervals ``start, end, kind, source`` (UTC); ``kind`` is
+        ``occupied``, ``allowance`` or ``allowed``.
+    days_off : DataFrame or None
+        Public holidays and closures ``date, name, kind`` (local dates; kind ``holiday`` or
+        ``closure``).
+    start, end : Timestamp
+        The audit window [UTC, zone-aware].
+    tz : str
+        IANA zone of the site; local dates and the sentences use it.
+    running_kw : float
+        Electrical input while running [kW].
+    price : float
+        Energy price [currency/kWh].
+    co2_per_kwh : float
+        Emission factor [kg CO2e/kWh].
+    currency : str
+        Currency label used in the sentences.
+    settings : FindingSettings, optional
+        Overrides of the default constants; None fields keep the defaults.
+
+    Returns
+    -------
+    DataFrame
+        One row per finding, sorted by start: ``component, kind, start, end`` (UTC),
+        ``date`` (local date the finding began), ``hours`` [h], ``kwh`` [kWh], ``cost``
+        [currency], ``co2_kg`` [kg] and ``detail`` (one sentence with local times).
+
+    Raises
+    ------
+    InputError
+        When a table lacks a column, holds an unknown state or kind, naive instants, or when a
+        number or setting is out of range.
+    """
+    try:
+        ZoneInfo(str(tz))
+    except (ZoneInfoNotFoundError, ValueError):
+        raise InputError(f"unknown time zone {tz!r}", key="site.timezone") from None
+    for name, value in (("running_kw", running_kw), ("price", price),
+                        ("co2_per_kwh", co2_per_kwh)):
+        if not isinstance(value, (int, float)) or not math.isfinite(value) or value < 0:
+            raise InputError(f"must be a finite number of at least 0, not {value!r}", key=name)
+    for name, value in (("start", start), ("end", end)):
+        if not isinstance(value, pd.Timestamp) or value.tzinfo is None:
+            raise InputError("must be a zone-aware instant", key=name)
+    w0, w1 = int(to_ns(start)), int(to_ns(end))
+    if w1 <= w0:
+        raise InputError(f"the audit window ends ({end}) before it starts ({start})", key="end")
+    params = _params(settings)
+
+    st = _frame_ns(states, "states", ("start", "end", "state"))
+    _check_values(states, "states", "state", STATES)
+    sc = _frame_ns(schedule, "schedule", ("start", "end", "kind"))
+    _check_values(schedule, "schedule", "kind", SCHEDULE_KINDS)
+
+    def pick(cols, frame, column, value) -> Intervals:
+        mask = (frame[column].astype(str) == value).to_numpy()
+        return Intervals.from_arrays(cols["start"][mask], cols["end"][mask]).clip(start, end)
+
+    ctx = Context(
+        key=component.key, role=component.role, tz=str(tz), start=w0, end=w1,
+        run=pick(st, states, "state", "run"), off=pick(st, states, "state", "off"),
+        no_data=pick(st, states, "state", "no_data"),
+        occupied=pick(sc, schedule, "kind", "occupied"),
+        allowance=pick(sc, schedule, "kind", "allowance"),
+        allowed=pick(sc, schedule, "kind", "allowed"),
+        days_off=_days_off(days_off), params=params,
+    )
+    found = findings_clock.clock_offset(ctx)
+    found += findings_rules.continuous(ctx)
+    found += findings_rules.off_schedule_days(ctx)
+    found += findings_rules.overruns(ctx)
+    found += findings_rules.missed(ctx)
+    found += findings_rules.short_cycling(ctx)
+    return _table(ctx, found, float(running_kw), float(price), float(co2_per_kwh), str(currency))
+
+
+def _table(ctx: Context, found: list, running_kw: float, price: float, co2: float,
+           currency: str) -> pd.DataFrame:
+    rows = []
+    for f in found:
+        kwh = running_kw * f.energy_hours
+        cost = kwh * price
+        money = f" ({kwh:,.1f} kWh, about {cost:,.2f} {currency})".replace(" )", ")") if (
+            kwh > 0 and price > 0) else (f" ({kwh:,.1f} kWh)" if kwh > 0 else "")
+        detail = f.detail.replace("{energy}", money)
+        rows.append({
+            "component": ctx.key, "kind": f.kind, "start": f.start, "end": f.end,
+            "date": f.date.isoformat(), "hours": f.hours, "kwh": kwh, "cost": cost,
+            "co2_kg": kwh * co2, "detail": detail,
+        })
+    if not rows:
+        frame = pd.DataFrame({c: pd.Series(dtype=object) for c in COLUMNS})
+        for c in ("hours", "kwh", "cost", "co2_kg"):
+            frame[c] = frame[c].astype(float)
+        frame["start"] = pd.Series(dtype="datetime64[ns, UTC]")
+        frame["end"] = pd.Series(dtype="datetime64[ns, UTC]")
+        return frame
+    frame = pd.DataFrame(rows, columns=COLUMNS)
+    frame["start"] = pd.DatetimeIndex(np.asarray(frame["start"], dtype=np.int64).view(
+        "datetime64[ns]")).tz_localize("UTC")
+    frame["end"] = pd.DatetimeIndex(np.asarray(frame["end"], dtype=np.int64).view(
+        "datetime64[ns]")).tz_localize("UTC")
+    return frame.sort_values(["start", "kind"], kind="stable").reset_index(drop=True)

@@ -1,0 +1,371 @@
+"""The finding rules behind :func:`schedcheck.findings.find_issues` (documented there).
+
+Each rule takes a :class:`Context` (one component's interval sets, int64 ns UTC) and returns a
+list of :class:`Found`. Sentences carry ``{energy}`` where the caller puts the kWh and cost.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from collections import Counter, defaultdict
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from schedcheck.intervals import NS_PER_H, Intervals, from_ns
+from schedcheck.window import local_midnight
+
+NS_PER_MIN = 60 * 1_000_000_000
+
+
+@dataclass(frozen=True)
+class Params:
+    """Resolved finding settings (defaults and their sources are in findings.py)."""
+
+    min_off_schedule: pd.Timedelta
+    min_missed: pd.Timedelta
+    continuous: pd.Timedelta
+    max_starts_per_day: int
+    max_pause: pd.Timedelta
+    min_overrun: pd.Timedelta
+    repeat_days: int
+    no_data_bridge: pd.Timedelta
+
+
+@dataclass
+class Context:
+    """One component's inputs as interval sets (int64 ns, UTC), clipped to the window."""
+
+    key: str
+    role: str
+    tz: str
+    start: int
+    end: int
+    run: Intervals
+    off: Intervals
+    no_data: Intervals
+    occupied: Intervals
+    allowance: Intervals
+    allowed: Intervals
+    days_off: dict[dt.date, tuple[str, str]]
+    params: Params
+    explained: Intervals = field(default_factory=Intervals.empty)   # set by the clock rule
+    consumed: Intervals = field(default_factory=Intervals.empty)    # set by the continuous rule
+
+    @property
+    def scheduled(self) -> Intervals:
+        return self.occupied | self.allowance | self.allowed
+
+    def off_schedule(self) -> Intervals:
+        """Off-schedule running not yet explained by an earlier rule."""
+        return self.run - self.scheduled - self.explained - self.consumed
+
+    def occupied_dates(self) -> set[dt.date]:
+        out: set[dt.date] = set()
+        for a, b in zip(local_dates(self.occupied.starts, self.tz),
+                        local_dates(self.occupied.ends - 1, self.tz), strict=True):
+            out.update(a + dt.timedelta(days=i) for i in range((b - a).days + 1))
+        return out
+
+
+@dataclass
+class Found:
+    kind: str
+    start: int              # UTC ns
+    end: int                # UTC ns
+    date: dt.date           # local date the finding began
+    hours: float            # [h]
+    energy_hours: float     # off-schedule running hours priced [h]
+    detail: str
+
+
+# -- local time helpers -------------------------------------------------------------------
+def local_dates(ns, tz: str) -> list[dt.date]:
+    """Local dates of int64 ns instants."""
+    return list(from_ns(np.atleast_1d(np.asarray(ns, dtype=np.int64))).tz_convert(tz).date)
+
+
+def local(ns: int, tz: str) -> pd.Timestamp:
+    return pd.Timestamp(int(ns), tz="UTC").tz_convert(tz)
+
+
+def midnight_ns(day: dt.date, tz: str) -> int:
+    return int(local_midnight(day, tz).value)
+
+
+def day_text(day: dt.date, year: bool = True) -> str:
+    return f"{day:%a} {day.day} {day:%b}" + (f" {day.year}" if year else "")
+
+
+def hhmm(ns: int, tz: str) -> str:
+    return f"{local(ns, tz):%H:%M}"
+
+
+def span_text(s: int, e: int, tz: str) -> str:
+    """'from 05:58 to 17:04', with weekdays when the span crosses midnight."""
+    a, b = local(s, tz), local(e, tz)
+    if a.date() == b.date() or (b - a <= pd.Timedelta("24h") and b.hour == 0 and b.minute == 0
+                                and (b - pd.Timedelta("1ns")).date() == a.date()):
+        return f"from {a:%H:%M} to {b:%H:%M}"
+    return f"from {a:%a} {a:%H:%M} to {b:%a} {b:%H:%M}"
+
+
+def minutes_text(ns: int) -> str:
+    m = int(round(ns / NS_PER_MIN))
+    return f"{m} min" if m < 90 else f"{m / 60:.1f} h"
+
+
+def _list_dates(days: list[dt.date]) -> str:
+    parts = [f"{d:%a} {d.day}" for d in days]
+    text = ", ".join(parts[:-1]) + f" and {parts[-1]}" if len(parts) > 1 else parts[0]
+    return f"{text} {days[-1]:%b %Y}"
+
+
+# -- continuous ---------------------------------------------------------------------------
+def continuous(ctx: Context) -> list[Found]:
+    """Running without a stop for the continuous length or more: one finding per run."""
+    run = ctx.run
+    if len(run) == 0:
+        return []
+    s, e = run.starts, run.ends
+    gap_start, gap_end = e[:-1], s[1:]
+    covered = ctx.no_data.cumulative_ns(gap_end) - ctx.no_data.cumulative_ns(gap_start)
+    gap = gap_end - gap_start
+    join = (covered == gap) & (gap <= ctx.params.no_data_bridge.value)
+    groups = Intervals.from_arrays(np.concatenate([s, gap_start[join]]),
+                                   np.concatenate([e, gap_end[join]]))
+    out = []
+    spans = []
+    for gs, ge in groups:
+        if ge - gs < ctx.params.continuous.value:
+            continue
+        off_sched = (ctx.off_schedule()).clip(int(gs), int(ge))
+        hours = off_sched.hours()
+        if hours * NS_PER_H < ctx.params.min_off_schedule.value:
+            continue
+        spans.append((gs, ge))
+        a = local(gs, ctx.tz)
+        since = ("from the start of the audit window" if gs <= ctx.start
+                 else f"from {day_text(a.date())} {a:%H:%M}")
+        b = local(ge, ctx.tz)
+        until = ("and was still running at the end of the audit window" if ge >= ctx.end
+                 else f"to {day_text(b.date())} {b:%H:%M}")
+        out.append(Found(
+            "continuous", int(gs), int(ge), a.date(), hours, hours,
+            f"Ran without a stop for {(ge - gs) / NS_PER_H:.1f} h {since} {until}, "
+            f"{hours:.1f} h of it outside the schedule{{energy}}; look for a manual override, "
+            "a hand switch or a unit stuck in occupied mode, and ask the owner whether any "
+            "of this running is needed.",
+        ))
+    if spans:
+        ctx.consumed = ctx.consumed | Intervals.from_arrays(
+            np.array([a for a, _ in spans]), np.array([b for _, b in spans]))
+    return out
+
+
+# -- night / weekend / holiday ------------------------------------------------------------
+def episodes(ctx: Context, pieces: Intervals) -> list[Intervals]:
+    """Group off-schedule pieces separated by short stops with no scheduled time between."""
+    if len(pieces) == 0:
+        return []
+    gs, ge = pieces.ends[:-1], pieces.starts[1:]
+    sched = ctx.scheduled
+    no_sched = (sched.cumulative_ns(ge) - sched.cumulative_ns(gs)) == 0
+    join = no_sched & ((ge - gs) < ctx.params.max_pause.value)
+    cut = np.concatenate([[0], np.flatnonzero(~join) + 1, [len(pieces)]])
+    return [Intervals(pieces.starts[a:b], pieces.ends[a:b]) for a, b in zip(cut[:-1], cut[1:],
+                                                                               strict=True)]
+
+
+def _day_label(ctx: Context, day: dt.date, occupied_dates: set[dt.date]):
+    if day in occupied_dates:
+        return ("night",)
+    if day in ctx.days_off:
+        return ("holiday", day)
+    return ("weekend",)
+
+
+def off_schedule_days(ctx: Context) -> list[Found]:
+    """Episodes of off-schedule running at least the persistence long, classed by day kind."""
+    persist = ctx.params.min_off_schedule.value
+    occ_dates = ctx.occupied_dates()
+    out = []
+    for ep in episodes(ctx, ctx.off_schedule()):
+        if ep.duration_ns() < persist:
+            continue
+        first, last = local_dates([ep.starts[0], ep.ends[-1] - 1], ctx.tz)
+        segs = []   # [label, seg_start, seg_end, running ns]
+        for i in range((last - first).days + 1):
+            day = first + dt.timedelta(days=i)
+            a = max(int(ep.starts[0]), midnight_ns(day, ctx.tz))
+            b = min(int(ep.ends[-1]), midnight_ns(day + dt.timedelta(days=1), ctx.tz))
+            part = ep.clip(a, b)
+            if len(part) == 0:
+                continue
+            label = _day_label(ctx, day, occ_dates)
+            if segs and segs[-1][0] == label:
+                segs[-1][2] = b
+                segs[-1][3] += part.duration_ns()
+            else:
+                segs.append([label, a, b, part.duration_ns()])
+        while len(segs) > 1:
+            k = min(range(len(segs)), key=lambda j: segs[j][3])
+            if segs[k][3] >= persist:
+                break
+            left = segs[k - 1][3] if k > 0 else -1
+            right = segs[k + 1][3] if k + 1 < len(segs) else -1
+            j = k - 1 if left >= right else k + 1
+            lo, hi = min(j, k), max(j, k)
+            segs[j] = [segs[j][0], segs[lo][1], segs[hi][2], segs[j][3] + segs[k][3]]
+            del segs[k]
+        for label, a, b, _ in segs:
+            out.append(_day_finding(ctx, label, ep.clip(a, b)))
+    return out
+
+
+def _day_finding(ctx: Context, label: tuple, part: Intervals) -> Found:
+    s, e = int(part.starts[0]), int(part.ends[-1])
+    hours = part.hours()
+    d0, d1 = local_dates([s, e - 1], ctx.tz)
+    runs = f" in {len(part)} runs" if len(part) > 1 else ""
+    when = span_text(s, e, ctx.tz)
+    if label[0] == "holiday":
+        name, kind = ctx.days_off[label[1]]
+        what = "a public holiday" if kind == "holiday" else "a closure day"
+        detail = (f"Ran {hours:.1f} h{runs} on {name} ({label[1].day} {label[1]:%b %Y}, {what}) "
+                  f"{when}{{energy}}; check that the "
+                  + ("holiday calendar is loaded in the controller." if kind == "holiday" else
+                     "closure dates are entered in the controller's holiday calendar."))
+        return Found("holiday", s, e, label[1], hours, hours, detail)
+    if label[0] == "weekend":
+        days = [d0 + dt.timedelta(days=i) for i in range((d1 - d0).days + 1)]
+        if all(d.weekday() >= 5 for d in days):
+            where = ("on " + day_text(d0)) if d0 == d1 else (
+                f"over the weekend of {day_text(d0, year=False)} to {day_text(d1)}")
+        else:
+            where = ("on " + day_text(d0)) if d0 == d1 else (
+                f"from {day_text(d0, year=False)} to {day_text(d1)}")
+            where += ", with no occupied period in the schedule"
+        detail = (f"Ran {hours:.1f} h{runs} {where} {when}{{energy}}; check the "
+                  "unoccupied days in the controller's time programme and look for an override "
+                  "left on.")
+        return Found("weekend", s, e, d0, hours, hours, detail)
+    where = f"on {day_text(d0)}" if d0 == d1 else (
+        f"in the night of {day_text(d0, year=False)} to {day_text(d1)}")
+    detail = (f"Ran {hours:.1f} h{runs} outside the schedule {where} {when}{{energy}}; check the "
+              "start and stop times in the controller's time programme and look for an override, "
+              "a hand switch or a demand signal keeping it on.")
+    return Found("night", s, e, d0, hours, hours, detail)
+
+
+# -- early_start / late_stop ----------------------------------------------------------------
+_EARLY_EDGE = {"allowance": "the early-start allowance", "occupied": "the occupied period",
+               "allowed": "an allowed window"}
+_LATE_EDGE = {"allowance": "the late-stop allowance", "occupied": "the occupied period",
+              "allowed": "an allowed window"}
+
+
+def _edge_kind(ctx: Context, t: int) -> str:
+    for kind in ("occupied", "allowance", "allowed"):
+        if bool(getattr(ctx, kind).contains(np.array([t]))[0]):
+            return kind
+    return "allowance"
+
+
+def overruns(ctx: Context) -> list[Found]:
+    """Repeated short early starts and late stops: one finding per ISO week and kind."""
+    p = ctx.params
+    rows = defaultdict(list)   # (kind, iso year, iso week) -> [(date, s, e, edge)]
+    for ep in episodes(ctx, ctx.off_schedule()):
+        if ep.duration_ns() >= p.min_off_schedule.value:
+            continue
+        for s, e in ep:
+            if e - s < p.min_overrun.value:
+                continue
+            late = s > ctx.start and bool(ctx.run.contains(np.array([s - 1]))[0])
+            early = (not late) and e < ctx.end and bool(ctx.run.contains(np.array([e]))[0])
+            if not (late or early):
+                continue
+            kind = "late_stop" if late else "early_start"
+            day = local_dates([s if late else e - 1], ctx.tz)[0]
+            edge = _edge_kind(ctx, s - 1 if late else e)
+            iso = day.isocalendar()
+            rows[(kind, iso[0], iso[1])].append((day, s, e, edge))
+    out = []
+    for (kind, year, week), items in sorted(rows.items(), key=lambda kv: kv[1][0][1]):
+        days = sorted({d for d, *_ in items})
+        if len(days) < p.repeat_days:
+            continue
+        lengths = [e - s for _, s, e, _ in items]
+        hours = sum(lengths) / NS_PER_H
+        edge = Counter(x[3] for x in items).most_common(1)[0][0]
+        size = (f"by {minutes_text(min(lengths))} to {minutes_text(max(lengths))}"
+                if minutes_text(min(lengths)) != minutes_text(max(lengths))
+                else f"by {minutes_text(min(lengths))}")
+        where = f"on {len(days)} days of ISO week {week} of {year} ({_list_dates(days)})"
+        if kind == "early_start":
+            detail = (f"Started before {_EARLY_EDGE[edge]} {where} {size}, {hours:.1f} h in all"
+                      "{energy}; check the start time and the optimal-start limit in the "
+                      "controller's time programme.")
+        else:
+            detail = (f"Ran on after {_LATE_EDGE[edge]} {where} {size}, {hours:.1f} h in all"
+                      "{energy}; check the stop time in the controller's time programme and any "
+                      "run-on or extension timer.")
+        out.append(Found(kind, min(x[1] for x in items), max(x[2] for x in items), days[0],
+                         hours, hours, detail))
+    return out
+
+
+# -- missed ---------------------------------------------------------------------------------
+def missed(ctx: Context) -> list[Found]:
+    """Occupied time off (known, not no data) for the minimum or longer: one per stretch."""
+    if ctx.role == "heat_wheel":
+        return []
+    out = []
+    stretches = ctx.occupied - ctx.run - ctx.explained
+    for a, b in stretches:
+        off = ctx.off.clip(a, b)
+        if off.duration_ns() < ctx.params.min_missed.value:
+            continue
+        s, e = int(off.starts[0]), int(off.ends[-1])
+        hours = off.hours()
+        gap = ctx.no_data.clip(a, b).hours()
+        extra = f" (and {gap:.1f} h with no data)" if gap >= 0.05 else ""
+        day = local_dates([s], ctx.tz)[0]
+        air = (", so the space had no mechanical ventilation from it"
+               if ctx.role in ("supply_fan", "exhaust_fan", "return_fan") else "")
+        detail = (f"Was off for {hours:.1f} h{extra} of the occupied period on {day_text(day)} "
+                  f"{span_text(s, e, ctx.tz)}{air}; check the alarm log for a trip or a held "
+                  "stop, a failed start command and any hand switch left off.")
+        out.append(Found("missed", s, e, day, hours, 0.0, detail))
+    return out
+
+
+# -- short_cycling --------------------------------------------------------------------------
+def short_cycling(ctx: Context) -> list[Found]:
+    """More starts in a local day than the limit: one finding per day."""
+    run = ctx.run
+    if len(run) == 0:
+        return []
+    real = (run.starts > ctx.start) & ctx.off.contains(run.starts - 1)
+    idx = np.flatnonzero(real)
+    if idx.size == 0:
+        return []
+    days = local_dates(run.starts[idx], ctx.tz)
+    count = Counter(days)
+    out = []
+    for day, n in sorted(count.items()):
+        if n <= ctx.params.max_starts_per_day:
+            continue
+        sel = idx[[d == day for d in days]]
+        s, e = int(run.starts[sel[0]]), int(run.ends[sel[-1]])
+        lengths = run.ends[sel] - run.starts[sel]
+        running = run.clip(midnight_ns(day, ctx.tz),
+                           midnight_ns(day + dt.timedelta(days=1), ctx.tz)).hours()
+        detail = (f"Started {n} times on {day_text(day)} (runs of {minutes_text(lengths.min())} "
+                  f"to {minutes_text(lengths.max())}, {running:.1f} h running in all); check the "
+                  "start and stop conditions and the control loop for hunting, and the alarm log "
+                  "for a trip that resets itself.")
+        out.append(Found("short_cycling", s, e, day, running, 0.0, detail))
+    return out
