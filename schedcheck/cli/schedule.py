@@ -1,1 +1,122 @@
-"""`schedcheck schedule`: not yet written."""
+"""`schedcheck schedule SITE`: the intended schedule as concrete local intervals."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import sys
+from pathlib import Path
+from typing import Annotated
+
+import typer
+
+from schedcheck.cli._app import app
+from schedcheck.cli._common import parse_date
+from schedcheck.errors import InputError
+
+FORMATS = ("table", "json", "csv")
+CSV_FIELDS = ["unit", "kind", "start", "end", "source", "date", "name"]
+
+
+def schedule_records(result) -> list[dict]:
+    """The JSON records: intervals ``{unit, kind, start, end, source}`` (local ISO 8601 with
+    offset) and one ``{unit, kind: "holiday", date, name}`` per holiday or closure date;
+    per unit, in time order, a date's days off before its intervals."""
+    tz = result.site.timezone
+    out = []
+    for unit_id, sched in result.units:
+        rows = []
+        for r in sched.days_off.itertuples(index=False):
+            rows.append(((r.date.isoformat(), ""), {
+                "unit": unit_id, "kind": "holiday", "date": r.date.isoformat(),
+                "name": str(r.name)}))
+        for r in sched.intervals.itertuples(index=False):
+            s, e = r.start.tz_convert(tz), r.end.tz_convert(tz)
+            rows.append(((s.date().isoformat(), s.isoformat()), {
+                "unit": unit_id, "kind": r.kind, "start": s.isoformat(),
+                "end": e.isoformat(), "source": str(r.source)}))
+        rows.sort(key=lambda x: x[0])
+        out.extend(rec for _, rec in rows)
+    return out
+
+
+def schedule_table(result, records: list[dict]) -> object:
+    """A rich Table: unit, local date, weekday, kind, start, end, source."""
+    import datetime as dt
+
+    from rich.table import Table
+
+    title = (f"{result.site.name}: intended schedule {result.first} to {result.last} "
+             f"({result.site.timezone} local time)")
+    table = Table(title=title, title_justify="left")
+    for head in ("Unit", "Date", "Day", "Kind", "Start", "End", "Source"):
+        table.add_column(head)
+    styles = {"occupied": "bold", "allowance": "", "allowed": "dim", "holiday": "italic"}
+    for rec in records:
+        if rec["kind"] == "holiday":
+            day = dt.date.fromisoformat(rec["date"])
+            table.add_row(rec["unit"], rec["date"], day.strftime("%a"), "day off", "", "",
+                          rec["name"], style=styles["holiday"])
+            continue
+        s, e = dt.datetime.fromisoformat(rec["start"]), dt.datetime.fromisoformat(rec["end"])
+        end = e.strftime("%H:%M") if e.date() == s.date() else e.strftime("%Y-%m-%d %H:%M")
+        table.add_row(rec["unit"], s.date().isoformat(), s.strftime("%a"), rec["kind"],
+                      s.strftime("%H:%M"), end, rec["source"], style=styles[rec["kind"]])
+    return table
+
+
+def schedule_csv(records: list[dict]) -> str:
+    """CSV text with the JSON fields, one row per record (empty cells where a field is absent)."""
+    buf = io.StringIO()
+    writer = csv.DictWriter(buf, fieldnames=CSV_FIELDS, lineterminator="\n")
+    writer.writeheader()
+    for rec in records:
+        writer.writerow({k: rec.get(k, "") for k in CSV_FIELDS})
+    return buf.getvalue()
+
+
+@app.command()
+def schedule(
+    site: Annotated[Path, typer.Argument(help="The site file (TOML).")],
+    unit: Annotated[str | None, typer.Option(
+        "--unit", help="Only this unit (its id in the site file).")] = None,
+    first: Annotated[str | None, typer.Option(
+        "--from", help="First local date (YYYY-MM-DD).")] = None,
+    last: Annotated[str | None, typer.Option(
+        "--to", help="Last local date, inclusive (YYYY-MM-DD).")] = None,
+    fmt: Annotated[str, typer.Option(
+        "--format", help="table, json or csv.")] = "table",
+) -> int:
+    """Show what each unit was meant to do: occupied periods, allowances (early start, late
+    stop), allowed windows, public holidays and closures, as local times.
+
+    The window defaults to the whole local days covered by the readings, or this month when
+    there are none; with only --from, it runs to the end of that month.
+
+    Example: schedcheck schedule site.toml --unit AHU-1 --from 2026-03-30 --to 2026-04-05
+    """
+    from schedcheck.jobs.schedule import site_schedule
+
+    if fmt not in FORMATS:
+        raise InputError(f"{fmt!r} is not a format; choose table, json or csv", key="--format")
+    d0, d1 = parse_date(first, "--from"), parse_date(last, "--to")
+    result = site_schedule(site, unit=unit, first=d0, last=d1)
+    for w in result.warnings:
+        print(f"warning: {w}", file=sys.stderr)
+    records = schedule_records(result)
+    if fmt == "json":
+        sys.stdout.write(json.dumps(records, indent=2, ensure_ascii=False) + "\n")
+    elif fmt == "csv":
+        sys.stdout.write(schedule_csv(records))
+    else:
+        from rich.console import Console
+
+        console = Console(width=None if sys.stdout.isatty() else 120, highlight=False)
+        if result.window_note != "given":
+            print(f"window: {result.first} to {result.last} ({result.window_note})",
+                  file=sys.stderr)
+        console.print(schedule_table(result, records))
+        if not records:
+            console.print("Nothing is scheduled in this window.")
+    return 0

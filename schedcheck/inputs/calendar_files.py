@@ -1,0 +1,144 @@
+"""Reading iCalendar (.ics) files, with errors that name the file (and line where known).
+
+:func:`read_calendar` parses one file; :func:`check_calendar_file` runs every guard rail of
+:mod:`schedcheck.calendars` on it, plus a trial expansion over one year, and returns the
+problems instead of raising (``schedcheck check`` reports them all).
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import re
+from pathlib import Path
+
+import icalendar
+
+from schedcheck.calendars import check_calendar, expand_calendar
+from schedcheck.errors import InputError, InputProblems
+
+_UID_LINE = re.compile(r"^UID[;:](?:.*:)?(.*)$", re.IGNORECASE)
+
+
+def read_calendar(path: str | Path) -> icalendar.Calendar:
+    """Parse an iCalendar file (RFC 5545).
+
+    Several VCALENDAR objects in one file are merged into one calendar.
+
+    Raises
+    ------
+    InputError
+        When the file is missing, unreadable, not UTF-8 or not an iCalendar file.
+    """
+    path = Path(path)
+    try:
+        data = path.read_bytes()
+    except FileNotFoundError:
+        raise InputError("calendar file not found", path=path) from None
+    except OSError as exc:
+        msg = f"cannot read the calendar file: {exc.strerror or exc}"
+        raise InputError(msg, path=path) from None
+    try:
+        text = data.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        line = data[: exc.start].count(b"\n") + 1
+        raise InputError("is not UTF-8 text (RFC 5545 calendars are UTF-8)", path=path,
+                         line=line) from None
+    if "BEGIN:VCALENDAR" not in text.upper():
+        raise InputError("is not an iCalendar file (no BEGIN:VCALENDAR)", path=path)
+    try:
+        cals = icalendar.Calendar.from_ical(text, multiple=True)
+    except (ValueError, IndexError, KeyError) as exc:
+        raise InputError(f"is not a valid iCalendar file: {exc}", path=path) from None
+    cals = [c for c in cals if c.name == "VCALENDAR"]
+    if not cals:
+        raise InputError("holds no VCALENDAR", path=path)
+    if len(cals) == 1:
+        return cals[0]
+    merged = icalendar.Calendar()
+    for key, value in cals[0].property_items(recursive=False)[1:-1]:
+        merged.add(key, value)
+    for c in cals:
+        for sub in c.subcomponents:
+            merged.add_component(sub)
+    return merged
+
+
+def _event_lines(path: Path) -> dict[str, int]:
+    """1-based line of each VEVENT's BEGIN, by UID (first one wins)."""
+    out: dict[str, int] = {}
+    try:
+        lines = path.read_text(encoding="utf-8-sig", errors="replace").splitlines()
+    except OSError:
+        return out
+    begin = None
+    for i, raw in enumerate(lines, start=1):
+        line = raw.strip()
+        if line.upper() == "BEGIN:VEVENT":
+            begin = i
+        elif begin is not None:
+            m = _UID_LINE.match(line)
+            if m:
+                out.setdefault(m.group(1).strip(), begin)
+                begin = None
+    return out
+
+
+def _with_line(err: InputError, lines: dict[str, int]) -> InputError:
+    if err.key and err.line is None:
+        m = re.search(r"\(([^,()]*)(?:, override of [^)]*)?\)$", err.key)
+        if m and m.group(1) in lines:
+            return InputError(err.message, path=err.path, line=lines[m.group(1)], key=err.key)
+    return err
+
+
+def check_calendar_file(path: str | Path, tz: str) -> list[InputError]:
+    """Every problem in a calendar file, without raising.
+
+    Reads the file, runs the static guard rails on every event, then expands the calendar over
+    the current calendar year in zone ``tz`` to apply the window caps (occurrences, rule
+    steps). Problems carry the file, the event and, where found, the line of its BEGIN:VEVENT.
+
+    Parameters
+    ----------
+    path : str or Path
+        The .ics file.
+    tz : str
+        The site's IANA zone (floating times are read in it).
+
+    Returns
+    -------
+    list of InputError
+        Empty when the calendar is fine.
+    """
+    path = Path(path)
+    try:
+        cal = read_calendar(path)
+    except InputError as exc:
+        return [exc]
+    lines = _event_lines(path)
+    problems = [_with_line(e, lines) for e in check_calendar(cal, path=path)]
+    if problems:
+        return problems
+    year = dt.date.today().year
+    try:
+        expand_calendar(cal, tz, dt.date(year, 1, 1), dt.date(year, 12, 31), path=path)
+    except InputProblems as exc:
+        return [_with_line(e, lines) for e in exc.problems]
+    except InputError as exc:
+        return [_with_line(exc, lines)]
+    return []
+
+
+def read_checked_calendar(path: str | Path) -> icalendar.Calendar:
+    """:func:`read_calendar` plus the static guard rails; raises the first problem with its line.
+
+    Expansion re-checks everything, so this only improves messages (adds the event's line).
+    """
+    path = Path(path)
+    cal = read_calendar(path)
+    problems = check_calendar(cal, path=path)
+    if problems:
+        lines = _event_lines(path)
+        problems = [_with_line(e, lines) for e in problems]
+        raise problems[0] if len(problems) == 1 else InputProblems(problems)
+    return cal
