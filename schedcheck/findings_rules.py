@@ -17,6 +17,11 @@ from schedcheck.intervals import NS_PER_H, Intervals, from_ns
 from schedcheck.window import local_midnight
 
 NS_PER_MIN = 60 * 1_000_000_000
+# An episode from the afternoon or evening of one date to the morning of the next, next to a
+# working day, is one night finding even when the other date is a weekend day or a holiday
+# (the override is the night's, not the day's). Local hour that splits "evening" from
+# "morning"; common practice, no source.
+OVERNIGHT_NOON = 12
 
 
 @dataclass(frozen=True)
@@ -186,6 +191,16 @@ def _day_label(ctx: Context, day: dt.date, occupied_dates: set[dt.date]):
     return ("weekend",)
 
 
+def _overnight(ctx: Context, ep: Intervals, first: dt.date, last: dt.date,
+               occupied_dates: set[dt.date]) -> bool:
+    """One night before or after a working day: the episode crosses one midnight, begins after
+    noon and ends before noon, and one of its two dates has an occupied period."""
+    if (last - first).days != 1 or not ({first, last} & occupied_dates):
+        return False
+    a, b = local(int(ep.starts[0]), ctx.tz), local(int(ep.ends[-1]), ctx.tz)
+    return a.hour >= OVERNIGHT_NOON and (b.hour, b.minute, b.second) <= (OVERNIGHT_NOON, 0, 0)
+
+
 def off_schedule_days(ctx: Context) -> list[Found]:
     """Episodes of off-schedule running at least the persistence long, classed by day kind."""
     persist = ctx.params.min_off_schedule.value
@@ -195,6 +210,9 @@ def off_schedule_days(ctx: Context) -> list[Found]:
         if ep.duration_ns() < persist:
             continue
         first, last = local_dates([ep.starts[0], ep.ends[-1] - 1], ctx.tz)
+        if _overnight(ctx, ep, first, last, occ_dates):
+            out.append(_day_finding(ctx, ("night",), ep))
+            continue
         segs = []   # [label, seg_start, seg_end, running ns]
         for i in range((last - first).days + 1):
             day = first + dt.timedelta(days=i)

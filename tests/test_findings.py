@@ -421,3 +421,25 @@ def test_setting_overrides_the_persistence():
                 settings=FindingSettings(min_off_schedule=pd.Timedelta("45min")))
     assert DEFAULT_MIN_OFF_SCHEDULE == pd.Timedelta("1h")
     assert_one(found, "night", "2026-03-04", hours=50 / 60)
+
+
+def test_sunday_night_before_a_working_day_is_a_night_finding():
+    # Sunday 22:00 to Monday 04:30: one overnight override before a working day, not a
+    # weekend finding plus a night finding
+    runs = sorted(daily_runs("2026-03-02", "2026-03-13")
+                  + [("2026-03-08 22:00", "2026-03-09 04:30")])
+    found = run(states_frame(runs, "2026-03-02", "2026-03-15"),
+                office_schedule("2026-03-02", "2026-03-15"), "2026-03-02", "2026-03-15")
+    row = assert_one(found, "night", "2026-03-08", hours=6.5)
+    assert "night of Sun 8 Mar to Mon 9 Mar 2026" in row["detail"]
+
+
+def test_friday_evening_into_saturday_midday_splits_into_night_and_weekend():
+    runs = sorted(daily_runs("2026-03-02", "2026-03-06")
+                  + [("2026-03-06 20:00", "2026-03-07 13:00")])
+    found = run(states_frame(runs, "2026-03-02", "2026-03-08"),
+                office_schedule("2026-03-02", "2026-03-08"), "2026-03-02", "2026-03-08")
+    assert list(found["kind"]) == ["night", "weekend"]
+    assert list(found["date"]) == ["2026-03-06", "2026-03-07"]
+    assert found["hours"].tolist() == pytest.approx([4.0, 13.0])
+    assert found["kwh"].sum() == pytest.approx(KW * 17.0)   # nothing counted twice
