@@ -1,0 +1,588 @@
+"""Run-state classification: vibration readings -> run / off / no_data intervals per component.
+
+Steps, for each component (see ``docs/run-states.md`` for the user's view):
+
+1. **Level.** One level per reading: the vector magnitude of the RMS axes present,
+   ``sqrt(x_rms^2 + y_rms^2 + z_rms^2)`` [reading unit]; the magnitude of the peak axes is kept
+   as supporting evidence (start transients). Grouping works on ``log10(level)``.
+2. **On/off level.** A ``threshold`` set for the component wins (source ``configured``).
+   Otherwise the log levels are grouped (:func:`schedcheck.thresholds.level_groups`: Otsu's
+   split, Ashman's D, a histogram valley) and the level is learned (source ``learned``), or,
+   when they do not split into well-separated groups, decided against an absolute floor level
+   (source ``floor``). Three groups: the middle one is judged from the unit's other components
+   (a group seen only while a sibling moves is carried vibration, not running).
+3. **Hysteresis.** A reading at or above ``on_level`` means run, at or below ``off_level``
+   means off, in between keeps the previous state; an in-between reading whose peak is a start
+   transient (crest factor >= ``TRANSIENT_CREST``) counts as run.
+4. **Gaps.** Each reading stands for the time up to half-way to its neighbours. A silence
+   longer than ``max_gap`` is ``no_data`` (half a reading period after the last reading to
+   half a period before the next) and no state is carried across it.
+5. **Minimum dwell.** A run shorter than ``min_run`` or a stop shorter than ``min_stop`` with
+   known states on both sides is absorbed by its neighbours (runs first, then stops).
+
+Starts: an ``off`` -> ``run`` change inside the window. A run that follows ``no_data`` or opens
+the window is not counted: nobody saw it start.
+
+Defaults (each with its source):
+
+* ``FLOOR_BY_UNIT`` -- the floor level per reading unit. MEMS accelerometers of the kind used in
+  wireless vibration sensors have noise densities of roughly 25-300 ug/sqrt(Hz) (datasheet
+  figures, from memory); integrated to velocity over 10-1000 Hz that is about 0.01-0.15 mm/s
+  RMS (computed: v = a_n / (2 pi) * sqrt(1/10 Hz - 1/1000 Hz)). The common rule that a running
+  machine should read several times its stopped background (common practice, no source; we
+  take about 3x the upper noise figure) gives 0.2 mm/s, which is also well below the
+  vibration of a healthy running fan (ISO 10816-3 zone A reaches 1.4-2.3 mm/s, from memory).
+  The other units are the same level converted at a typical 30 Hz fan frequency (from memory).
+* ``MIN_RUN``, ``MIN_STOP`` = 3 min: three one-minute readings; one or two odd readings never
+  start or stop a fan (common practice, no source).
+* ``HYSTERESIS`` = 0.1 decade either side (about +-26 %), narrowed to a quarter of the distance
+  to each group's median when the groups are known (common practice, no source).
+* ``TRANSIENT_CREST`` = 2.5: steady running fans show crest factors of about 1.4-2 (sine
+  sqrt(2); common practice, no source), start transients more.
+* ``CARRIED_SHARE`` = 0.95: a middle group is carried vibration when at least this share of its
+  readings fall while a sibling moves and at most 1 - this share of the lowest group's
+  (common practice, no source).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from schedcheck import thresholds as th
+from schedcheck.errors import InputError
+from schedcheck.intervals import to_ns
+from schedcheck.site import Component, RunStateSettings, Unit
+
+FLOOR_BY_UNIT = {"mm/s": 0.2, "in/s": 0.008, "ips": 0.008, "m/s": 0.0002,
+                 "g": 0.004, "mg": 4.0, "m/s2": 0.04, "m/s^2": 0.04, "m/s²": 0.04}
+MIN_RUN = pd.Timedelta("3min")
+MIN_STOP = pd.Timedelta("3min")
+HYSTERESIS = 0.1          # [decades]
+TRANSIENT_CREST = 2.5     # [-]
+CARRIED_SHARE = 0.95      # [-]
+RMS = ("x_rms", "y_rms", "z_rms")
+PEAK = ("x_peak", "y_peak", "z_peak")
+DISPLAY_BINS = 60         # histogram bins kept for pictures and summary.json
+
+
+@dataclass(frozen=True)
+class Threshold:
+    """The on/off level of one component and why it was chosen.
+
+    ``level``, ``on_level``, ``off_level`` are in the reading unit; ``separation`` is Ashman's D
+    between the readings below and above ``level`` (log10 levels) and ``effectiveness`` Otsu's
+    eta of that split (both NaN when one side is empty); ``counts`` / ``edges_log10`` a
+    histogram of log10 levels for pictures; ``groups`` the medians of the level groups found
+    [reading unit]; ``reason`` one plain sentence.
+    """
+
+    level: float
+    source: str                       # "learned" | "configured" | "floor"
+    separation: float
+    effectiveness: float
+    on_level: float
+    off_level: float
+    counts: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
+    edges_log10: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    groups: tuple[float, ...] = ()
+    reason: str = ""
+    warnings: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class ComponentStates:
+    """Run states of one component over ``[start, end)``.
+
+    ``intervals``: DataFrame ``start, end, state, level`` (UTC, contiguous, covering the window,
+    adjacent rows differing in state; ``level`` the median level of the readings inside, NaN for
+    ``no_data``). ``starts``: off -> run changes inside the window. ``run_share``: running time
+    over known (run + off) time [-], NaN with no known time. ``warnings``: data warnings (the
+    threshold's own warnings are in ``threshold.warnings``).
+    """
+
+    component: Component
+    intervals: pd.DataFrame
+    threshold: Threshold
+    starts: int
+    run_share: float
+    warnings: tuple[str, ...] = ()
+
+
+# -- levels ----------------------------------------------------------------------------------
+def reading_levels(frame: pd.DataFrame, *, name: str = "readings") -> tuple[np.ndarray, ...]:
+    """Times, levels and peak levels of one sensor's readings, sorted, one row per instant.
+
+    Parameters
+    ----------
+    frame : DataFrame
+        ``timestamp`` (tz-aware) and at least one of ``x_rms``, ``y_rms``, ``z_rms``; optional
+        ``*_peak`` columns [reading unit].
+    name : str
+        Used in error messages (the sensor id).
+
+    Returns
+    -------
+    t : ndarray of int64
+        Reading instants [ns since epoch, UTC].
+    level : ndarray
+        Vector magnitude of the RMS axes [reading unit]; NaN where no axis has a value.
+    peak : ndarray
+        Vector magnitude of the peak axes [reading unit]; NaN without peaks.
+    """
+    if "timestamp" not in frame.columns:
+        raise InputError("no 'timestamp' column", key=name)
+    rms = [c for c in RMS if c in frame.columns]
+    if not rms:
+        raise InputError("no RMS level column (x_rms, y_rms or z_rms)", key=name)
+    t = to_ns(frame["timestamp"]) if len(frame) else np.zeros(0, np.int64)
+
+    def magnitude(cols: list[str]) -> np.ndarray:
+        if not cols:
+            return np.full(len(frame), np.nan)
+        a = frame[cols].to_numpy(dtype=float)
+        if (a < 0).any():
+            raise InputError("negative vibration level", key=f"{name}: {cols[0][0]}_...")
+        out = np.sqrt(np.nansum(a * a, axis=1))
+        return np.where(np.isnan(a).all(axis=1), np.nan, out)
+
+    level = magnitude(rms)
+    peak = magnitude([c for c in PEAK if c in frame.columns])
+    if t.size > 1 and not (np.diff(t) > 0).all():
+        order = np.argsort(t, kind="stable")
+        t, level, peak = t[order], level[order], peak[order]
+        keep = np.concatenate([[True], np.diff(t) > 0])
+        t, level, peak = t[keep], level[keep], peak[keep]
+    return t, level, peak
+
+
+def log_levels(level: np.ndarray) -> np.ndarray:
+    """log10 of the levels; zeros are raised to half the smallest positive level first."""
+    lv = np.asarray(level, dtype=float)
+    pos = lv[lv > 0]
+    tiny = pos.min() / 2 if pos.size else 1e-9
+    return np.log10(np.maximum(lv, tiny))
+
+
+def default_floor(settings: RunStateSettings, level_unit: str) -> tuple[float, list[str]]:
+    """The floor level [reading unit] from the settings or the table of defaults, + warnings."""
+    if settings.floor is not None:
+        return float(settings.floor), []
+    key = level_unit.strip().lower().replace(" ", "")
+    if key in FLOOR_BY_UNIT:
+        return FLOOR_BY_UNIT[key], []
+    return FLOOR_BY_UNIT["mm/s"], [
+        f"no default floor level for reading unit {level_unit!r}; used 0.2 (meant for mm/s): "
+        "set [run_state] floor"]
+
+
+# -- the on/off level ------------------------------------------------------------------------
+def _band(b: float, lo: float = np.nan, hi: float = np.nan) -> tuple[float, float]:
+    """Hysteresis levels (log10) around ``b``: +-HYSTERESIS, at most a quarter of the way to the
+    group medians ``lo`` / ``hi`` (log10)."""
+    h = HYSTERESIS
+    if np.isfinite(lo):
+        h = min(h, 0.25 * (b - lo))
+    if np.isfinite(hi):
+        h = min(h, 0.25 * (hi - b))
+    h = max(h, 0.0)
+    return b + h, b - h
+
+
+def _moving_share(mask: np.ndarray, sib: np.ndarray | None) -> tuple[float, int]:
+    """Share of the readings in ``mask`` taken while a sibling moved, and how many were known."""
+    if sib is None:
+        return np.nan, 0
+    s = sib[mask]
+    s = s[np.isfinite(s)]
+    return (float(s.mean()) if s.size else np.nan), int(s.size)
+
+
+def _display_histogram(L: np.ndarray, marks: list[float]) -> tuple[np.ndarray, np.ndarray]:
+    lo = min([L.min()] + marks) if L.size else min(marks or [-2.0])
+    hi = max([L.max()] + marks) if L.size else max(marks or [1.0])
+    if hi - lo < 1e-6:
+        lo, hi = lo - 0.5, hi + 0.5
+    pad = 0.03 * (hi - lo)
+    counts, edges = np.histogram(L, bins=DISPLAY_BINS, range=(lo - pad, hi + pad))
+    return counts, edges
+
+
+def choose_threshold(
+    L: np.ndarray,
+    *,
+    configured: float | None,
+    floor: float,
+    sibling_moving: np.ndarray | None = None,
+    groups: th.LevelGroups | None = None,
+) -> Threshold:
+    """The on/off level of one component from its log10 levels.
+
+    Parameters
+    ----------
+    L : ndarray
+        log10 of the component's levels (finite) [log10 reading unit].
+    configured : float or None
+        A level set in the site file [reading unit]; wins when given.
+    floor : float
+        Absolute floor level [reading unit], used when the levels do not split.
+    sibling_moving : ndarray, optional
+        Per reading: 1 when another component of the unit moved, 0 when none did, NaN unknown.
+    groups : LevelGroups, optional
+        A grouping already computed for ``L``.
+
+    Returns
+    -------
+    Threshold
+    """
+    F = float(np.log10(floor))
+    warn: list[str] = []
+    if L.size == 0:
+        lv = configured if configured is not None else floor
+        src = "configured" if configured is not None else "floor"
+        b = float(np.log10(lv))
+        on, off = _band(b)
+        c, e = _display_histogram(L, [b])
+        return Threshold(lv, src, np.nan, np.nan, 10**on, 10**off, c, e, (),
+                         "no readings to learn from", ("no readings to learn a level from",))
+    g = groups if groups is not None else th.level_groups(L)
+    med = [float(m) for m in g.medians]
+    lo_med = hi_med = np.nan
+    if configured is not None:
+        if configured <= 0:
+            raise InputError("threshold must be above 0", key="threshold")
+        b, src = float(np.log10(configured)), "configured"
+        reason = f"set in the site file ({configured:g})"
+    elif g.count == 1:
+        b, src = F, "floor"
+        state = "running" if med[0] > F else "off"
+        side = "above" if med[0] > F else "below"
+        reason = (f"one level group ({g.reason}); its median {10**med[0]:.3g} is {side} "
+                  f"the floor level {floor:g}, so it is {state}")
+        if abs(med[0] - F) < 0.3:
+            warn.append(f"the only level group (median {10**med[0]:.3g}) lies close to the floor "
+                        f"level {floor:g}; check the states and set `threshold` if they are wrong")
+        (lo_med, hi_med) = (np.nan, med[0]) if med[0] > F else (med[0], np.nan)
+    elif g.count == 2:
+        b, src = g.boundaries[0], "learned"
+        lo_med, hi_med = med
+        reason = (f"two level groups (medians {10**med[0]:.3g} and {10**med[1]:.3g}, "
+                  f"Ashman's D {g.separations[0]:.1f}); Otsu's level between them")
+        if med[1] <= F:
+            b, src, lo_med, hi_med = F, "floor", med[1], np.nan
+            reason = (f"both level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}) lie below "
+                      f"the floor level {floor:g}: never running")
+            warn.append(reason + "; set `threshold` if this machine does run")
+        elif med[0] >= F:
+            share, n = _moving_share(L <= g.boundaries[0], sibling_moving)
+            if n and share >= CARRIED_SHARE:
+                reason += ("; the lower group, above the floor, appears only while another "
+                           "component of the unit runs: carried vibration, counted as off")
+            else:
+                b, src, lo_med, hi_med = F, "floor", np.nan, med[0]
+                reason = (f"two level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}) both "
+                          f"above the floor level {floor:g}: two running levels (speeds), "
+                          "never stopped")
+                warn.append(reason + "; if the lower group is a stopped machine shaken by its "
+                            "neighbours, set `threshold` between the groups")
+    else:
+        lo_b, hi_b = g.boundaries
+        low, mid = L <= lo_b, (L > lo_b) & (L <= hi_b)
+        p_mid, n_mid = _moving_share(mid, sibling_moving)
+        p_low, n_low = _moving_share(low, sibling_moving)
+        three = (f"three level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}, "
+                 f"{10**med[2]:.3g})")
+        if n_mid and p_mid >= CARRIED_SHARE and (not n_low or p_low <= 1 - CARRIED_SHARE):
+            b, lo_med, hi_med = hi_b, med[1], med[2]
+            reason = (f"{three}; the middle group appears only while another component of the "
+                      f"unit runs ({p_mid:.0%} of its readings): carried vibration, counted as off")
+        elif n_mid and p_mid <= 0.8:
+            b, lo_med, hi_med = lo_b, med[0], med[1]
+            reason = (f"{three}; the middle group also appears while the rest of the unit is "
+                      f"stopped ({1 - p_mid:.0%} of its readings): a slower running level")
+        else:
+            b, lo_med, hi_med = lo_b, med[0], med[1]
+            why = "no other component of the unit to compare with" if not n_mid else (
+                f"{p_mid:.0%} of its readings fall while another component runs")
+            reason = f"{three}; the middle group counted as running ({why})"
+            warn.append(f"{three}: cannot tell whether the middle group is running or vibration "
+                        f"carried from a neighbour ({why}); counted as running. If it is carried, "
+                        f"set `threshold` to about {10 ** ((med[1] + med[2]) / 2):.3g}")
+        src = "learned"
+    on, off = _band(b, lo_med, hi_med)
+    below, above = L[L <= b], L[L > b]
+    sep = th.ashman_d(below, above)
+    eff = th.otsu_effectiveness(L, b) if below.size and above.size else np.nan
+    c, e = _display_histogram(L, [on, off])
+    return Threshold(float(10**b), src, sep, eff, float(10**on), float(10**off), c, e,
+                     tuple(float(10**m) for m in med), reason, tuple(warn))
+
+
+# -- states ----------------------------------------------------------------------------------
+def hysteresis_states(
+    L: np.ndarray, log_on: float, log_off: float, segment: np.ndarray,
+    transient: np.ndarray | None = None,
+) -> np.ndarray:
+    """Two-level switching: True (run) from a reading >= ``log_on`` until one <= ``log_off``.
+
+    Parameters
+    ----------
+    L : ndarray
+        log10 levels, time-ordered [log10 reading unit].
+    log_on, log_off : float
+        Switching levels, ``log_off <= log_on`` [log10 reading unit].
+    segment : ndarray of int
+        Data segment of each reading (non-decreasing); no state is carried between segments.
+    transient : ndarray of bool, optional
+        Readings whose peak shows a start transient: an in-between one of these counts as run.
+
+    Returns
+    -------
+    ndarray of bool
+        Run state per reading. An in-between reading with no earlier decisive reading in its
+        segment is run when above the mid-level of the band.
+    """
+    n = L.size
+    decisive = np.where(L >= log_on, 1, np.where(L <= log_off, -1, 0))
+    if transient is not None:
+        decisive = np.where((decisive == 0) & transient, 1, decisive)
+    idx = np.where(decisive != 0, np.arange(n), -1)
+    last = np.maximum.accumulate(idx) if n else idx
+    seg_first = np.searchsorted(segment, segment, side="left")
+    known = last >= seg_first
+    own = L >= (log_on + log_off) / 2
+    return np.where(known, decisive[np.clip(last, 0, None)] > 0, own)
+
+
+def min_dwell(
+    starts: np.ndarray, ends: np.ndarray, run: np.ndarray, segment: np.ndarray,
+    min_run: int, min_stop: int,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Absorb runs shorter than ``min_run`` and stops shorter than ``min_stop`` [ns].
+
+    Only pieces with a neighbour on both sides in the same data segment change (at a gap or a
+    window edge nobody knows how long a piece really lasted). Runs are absorbed first, then
+    stops; neighbours of equal state are merged after each pass.
+    """
+    for target, shortest in ((True, min_run), (False, min_stop)):
+        if starts.size < 3:
+            break
+        inner = np.zeros(starts.size, bool)
+        inner[1:-1] = (segment[:-2] == segment[1:-1]) & (segment[2:] == segment[1:-1])
+        flip = inner & (run == target) & (ends - starts < shortest)
+        run = np.where(flip, ~run, run)
+        keep = np.concatenate([[True], (run[1:] != run[:-1]) | (segment[1:] != segment[:-1])])
+        idx = np.flatnonzero(keep)
+        ends = np.concatenate([ends[idx[1:] - 1], ends[-1:]])
+        starts, run, segment = starts[idx], run[idx], segment[idx]
+    return starts, ends, run, segment
+
+
+_CODES = np.array(["off", "run", "no_data"], dtype=object)
+
+
+def _state_table(
+    t: np.ndarray, L: np.ndarray, lv: np.ndarray, pk: np.ndarray, thr: Threshold,
+    s0: int, e0: int, max_gap: int, min_run: int, min_stop: int,
+) -> pd.DataFrame:
+    """Readings (time-ordered, inside the window +- max_gap) -> the contiguous state table."""
+    n = t.size
+    if n == 0:
+        codes, bs, be = np.array([2]), np.array([s0]), np.array([e0])
+    else:
+        dt = np.diff(t)
+        newseg = np.concatenate([[True], dt > max_gap])
+        seg = np.cumsum(newseg) - 1
+        inside = dt[dt <= max_gap]
+        half = min(int(np.median(inside)) if inside.size else max_gap, max_gap) // 2
+        mid = t[:-1] + dt // 2
+        a = np.concatenate([[t[0] - half], np.where(newseg[1:], t[1:] - half, mid)])
+        b = np.concatenate([np.where(newseg[1:], t[:-1] + half, mid), [t[-1] + half]])
+        transient = (pk / np.where(lv > 0, lv, np.nan)) >= TRANSIENT_CREST
+        run = hysteresis_states(L, np.log10(thr.on_level), np.log10(thr.off_level), seg,
+                                np.nan_to_num(transient, nan=False).astype(bool))
+        first = np.concatenate([[True], (run[1:] != run[:-1]) | newseg[1:]])
+        idx = np.flatnonzero(first)
+        rs, re_ = a[idx], np.concatenate([b[idx[1:] - 1], b[-1:]])
+        rs, re_, rr, rseg = min_dwell(rs, re_, run[idx], seg[idx], min_run, min_stop)
+        # no_data: before the first piece, between data segments, after the last
+        seg_start = np.concatenate([[True], rseg[1:] != rseg[:-1]])
+        gap_s = np.concatenate([[s0], re_[np.flatnonzero(seg_start)[1:] - 1], re_[-1:]])
+        gap_e = np.concatenate([rs[:1], rs[seg_start][1:], [e0]])
+        bs = np.concatenate([rs, gap_s])
+        be = np.concatenate([re_, gap_e])
+        codes = np.concatenate([rr.astype(int), np.full(gap_s.size, 2)])
+        order = np.argsort(bs, kind="stable")
+        bs, be, codes = np.clip(bs[order], s0, e0), np.clip(be[order], s0, e0), codes[order]
+        keep = be > bs
+        bs, be, codes = bs[keep], be[keep], codes[keep]
+        first = np.concatenate([[True], codes[1:] != codes[:-1]])
+        idx = np.flatnonzero(first)
+        be = np.concatenate([be[idx[1:] - 1], be[-1:]])
+        bs, codes = bs[idx], codes[idx]
+    level = np.full(bs.size, np.nan)
+    win = (t >= s0) & (t < e0)
+    if win.any():
+        k = np.searchsorted(bs, t[win], side="right") - 1
+        med = pd.Series(lv[win]).groupby(k).median()
+        level[med.index.to_numpy()] = med.to_numpy()
+        empty = np.isnan(level) & (codes != 2)
+        if empty.any():   # a sliver with no reading inside: the nearest reading's level
+            j = np.clip(np.searchsorted(t, (bs[empty] + be[empty]) // 2), 0, n - 1)
+            level[empty] = lv[j]
+    level[codes == 2] = np.nan
+    return pd.DataFrame({
+        "start": pd.DatetimeIndex(bs.view("datetime64[ns]")).tz_localize("UTC"),
+        "end": pd.DatetimeIndex(be.view("datetime64[ns]")).tz_localize("UTC"),
+        "state": _CODES[codes], "level": level,
+    })
+
+
+def _summary(tab: pd.DataFrame) -> tuple[int, float]:
+    st = tab["state"].to_numpy()
+    starts = int(((st[1:] == "run") & (st[:-1] == "off")).sum())
+    length = (tab["end"] - tab["start"]).dt.total_seconds().to_numpy()
+    known = length[st != "no_data"].sum()
+    return starts, (float(length[st == "run"].sum() / known) if known > 0 else float("nan"))
+
+
+def _prepared(frame: pd.DataFrame | None, name: str):
+    if frame is None or len(frame) == 0:
+        z = np.zeros(0)
+        return np.zeros(0, np.int64), z, z, z
+    t, lv, pk = reading_levels(frame, name=name)
+    ok = np.isfinite(lv)
+    t, lv, pk = t[ok], lv[ok], pk[ok]
+    return t, lv, pk, log_levels(lv)
+
+
+def _moving(t: np.ndarray, L: np.ndarray, g: th.LevelGroups, floor: float) -> np.ndarray:
+    b = g.boundaries[0] if g.count >= 2 else np.log10(floor)
+    return L > b
+
+
+def _sibling_moving(t: np.ndarray, others: list[tuple[np.ndarray, np.ndarray]],
+                    max_gap: int) -> np.ndarray | None:
+    """Per reading time: 1 if any other component moved (nearest reading within max_gap)."""
+    if not others or t.size == 0:
+        return None
+    out = np.full(t.size, np.nan)
+    for ts, mv in others:
+        if ts.size == 0:
+            continue
+        j = np.clip(np.searchsorted(ts, t), 1, max(ts.size - 1, 1)) if ts.size > 1 else None
+        if j is None:
+            near, dist = np.zeros(t.size, int), np.abs(ts[0] - t)
+        else:
+            left = np.abs(t - ts[j - 1]) <= np.abs(ts[j] - t)
+            near = np.where(left, j - 1, j)
+            dist = np.abs(ts[near] - t)
+        val = np.where(dist <= max_gap, mv[near].astype(float), np.nan)
+        out = np.where(np.isnan(out), val, np.where(np.isnan(val), out, np.maximum(out, val)))
+    return out
+
+
+def classify_component(
+    component: Component, frame: pd.DataFrame | None, start: pd.Timestamp, end: pd.Timestamp,
+    max_gap: pd.Timedelta, settings: RunStateSettings | None = None, *,
+    level_unit: str = "mm/s", sibling_moving: np.ndarray | None = None,
+) -> ComponentStates:
+    """Run states of one component from its sensor's readings (no siblings unless given).
+
+    Parameters
+    ----------
+    component : Component
+        The component (its ``threshold`` overrides learning).
+    frame : DataFrame or None
+        Its sensor's readings: ``timestamp`` and level columns [reading unit]. Every reading
+        given is used to learn the level; states are produced for ``[start, end)``.
+    start, end : Timestamp
+        The window (tz-aware).
+    max_gap : Timedelta
+        Longer silences are ``no_data`` [duration].
+    settings : RunStateSettings
+        ``min_run``, ``min_stop``, ``floor`` (None = the documented defaults).
+    level_unit : str
+        The readings' unit label, for the default floor level.
+    sibling_moving : ndarray, optional
+        See :func:`choose_threshold`; one entry per finite reading, in time order.
+    """
+    settings = settings if settings is not None else RunStateSettings()
+    t, lv, pk, L = _prepared(frame, component.sensor)
+    floor, fw = default_floor(settings, level_unit)
+    thr = choose_threshold(L, configured=component.threshold, floor=floor,
+                           sibling_moving=sibling_moving)
+    return _finish(component, t, lv, pk, L, thr, start, end, max_gap, settings, fw)
+
+
+def _finish(component, t, lv, pk, L, thr, start, end, max_gap, settings, warnings):
+    s0, e0 = to_ns(pd.Timestamp(start)), to_ns(pd.Timestamp(end))
+    if e0 <= s0:
+        raise InputError(f"the window ends ({end}) before it starts ({start})", key="window")
+    mg = int(pd.Timedelta(max_gap).value)
+    sel = (t >= s0 - mg) & (t < e0 + mg)
+    min_run = int((settings.min_run if settings.min_run is not None else MIN_RUN).value)
+    min_stop = int((settings.min_stop if settings.min_stop is not None else MIN_STOP).value)
+    tab = _state_table(t[sel], L[sel], lv[sel], pk[sel], thr, s0, e0, mg, min_run, min_stop)
+    starts, share = _summary(tab)
+    warn = list(warnings)
+    nd = tab.loc[tab["state"] == "no_data"]
+    nd_h = float((nd["end"] - nd["start"]).dt.total_seconds().sum() / 3600)
+    total_h = (e0 - s0) / 3.6e12
+    if not sel.any():
+        warn.append(f"no readings from sensor {component.sensor} in the window")
+    elif nd_h > 0.05 * total_h:
+        warn.append(f"{nd_h:.1f} h without readings ({nd_h / total_h:.0%} of the window)")
+    return ComponentStates(component, tab, thr, starts, share, tuple(warn))
+
+
+def classify_unit(
+    unit: Unit, readings: Mapping[str, pd.DataFrame], start: pd.Timestamp, end: pd.Timestamp,
+    max_gap: pd.Timedelta, settings: RunStateSettings | None = None, *,
+    level_unit: str = "mm/s",
+) -> dict[str, ComponentStates]:
+    """Run states of every component of a unit, judging middle level groups by the siblings.
+
+    Parameters
+    ----------
+    unit : Unit
+        The unit and its components.
+    readings : mapping
+        Sensor id -> readings frame (``timestamp`` UTC + level columns); a missing sensor gives
+        all ``no_data``.
+    start, end : Timestamp
+        The window [start, end) (tz-aware).
+    max_gap : Timedelta
+        Longer silences are ``no_data`` [duration].
+    settings : RunStateSettings
+        Classifier settings (None fields = documented defaults).
+    level_unit : str
+        The readings' unit label, for the default floor level.
+
+    Returns
+    -------
+    dict
+        ``Component.key`` -> :class:`ComponentStates`.
+    """
+    settings = settings if settings is not None else RunStateSettings()
+    floor, fw = default_floor(settings, level_unit)
+    prep, groups, moving = {}, {}, {}
+    for c in unit.components:
+        prep[c.key] = _prepared(readings.get(c.sensor), c.sensor)
+        t, lv, pk, L = prep[c.key]
+        groups[c.key] = th.level_groups(L) if L.size else None
+        moving[c.key] = (t, _moving(t, L, groups[c.key], floor) if L.size else L.astype(bool))
+    out: dict[str, ComponentStates] = {}
+    mg = int(pd.Timedelta(max_gap).value)
+    for c in unit.components:
+        t, lv, pk, L = prep[c.key]
+        others = [moving[o.key] for o in unit.components
+                  if o.key != c.key and o.sensor != c.sensor]
+        sib = _sibling_moving(t, others, mg)
+        thr = choose_threshold(L, configured=c.threshold, floor=floor, sibling_moving=sib,
+                               groups=groups[c.key])
+        out[c.key] = _finish(c, t, lv, pk, L, thr, start, end, max_gap, settings, fw)
+    return out

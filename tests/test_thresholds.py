@@ -1,0 +1,89 @@
+"""Published grouping methods, checked against reference implementations and closed forms."""
+
+import numpy as np
+import pytest
+from skimage.filters import threshold_multiotsu, threshold_otsu
+
+from schedcheck import thresholds as th
+
+
+def _mix(rng, parts):
+    return np.concatenate([rng.normal(m, s, n) for m, s, n in parts])
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+@pytest.mark.parametrize("parts", [
+    [(-1.5, 0.1, 5000), (0.0, 0.05, 2000)],
+    [(-1.5, 0.2, 300), (0.1, 0.1, 9000)],
+    [(0.0, 1.0, 4000)],
+])
+def test_otsu_equals_scikit_image(seed, parts):
+    # validation: scikit-image's threshold_otsu (skimage.filters, 256 bins) on the same values
+    v = _mix(np.random.default_rng(seed), parts)
+    assert th.otsu_threshold(v) == threshold_otsu(v)
+
+
+def test_otsu_single_value_returns_it():
+    # same convention as scikit-image's threshold_otsu for a constant image
+    assert th.otsu_threshold(np.full(10, 0.3)) == 0.3 == threshold_otsu(np.full(10, 0.3))
+
+
+def test_multi_otsu_equals_scikit_image():
+    # validation: scikit-image's threshold_multiotsu(classes=3) on the same values
+    v = _mix(np.random.default_rng(5), [(-1.5, 0.1, 5000), (-0.7, 0.05, 1500), (0, 0.05, 2000)])
+    ours = th.multi_otsu_thresholds(v)
+    ref = threshold_multiotsu(v, classes=3)
+    assert ours == pytest.approx(tuple(ref), abs=1e-12)
+
+
+def test_ashman_d_closed_form():
+    # Ashman, Bird & Zepf (1994): D = sqrt(2)|mu1 - mu2| / sqrt(s1^2 + s2^2); two groups with
+    # exact means 0 and 4 and population variances 1 and 1 give D = sqrt(2) * 4 / sqrt(2) = 4
+    a = np.array([-1.0, 1.0])
+    b = np.array([3.0, 5.0])
+    assert th.ashman_d(a, b) == pytest.approx(4.0)
+    assert np.isnan(th.ashman_d(a, np.array([])))
+
+
+def test_effectiveness_bounds_and_value():
+    # Otsu (1979): eta = between-class / total variance; two point masses -> 1
+    v = np.array([0.0] * 5 + [1.0] * 5)
+    assert th.otsu_effectiveness(v, 0.5) == pytest.approx(1.0)
+    # 0,1 | 2,3: total var 1.25, class means 0.5 and 2.5, between var 1.0 -> 0.8 (hand-computed)
+    assert th.otsu_effectiveness(np.array([0.0, 1, 2, 3]), 1.5) == pytest.approx(0.8)
+
+
+def test_groups_one_two_three():
+    rng = np.random.default_rng(3)
+    one = th.level_groups(rng.normal(0, 0.1, 20000))
+    assert one.count == 1 and "one group" in one.reason
+    two = th.level_groups(_mix(rng, [(-1.5, 0.1, 8000), (0, 0.08, 4000)]))
+    assert two.count == 2 and two.separations[0] > 10
+    three = th.level_groups(_mix(rng, [(-1.5, 0.1, 8000), (-0.6, 0.05, 2000), (0, 0.05, 3000)]))
+    assert three.count == 3
+    assert three.medians == pytest.approx((-1.5, -0.6, 0.0), abs=0.03)
+
+
+def test_single_group_is_not_cut_in_half():
+    # Ashman's D of the two halves of ONE normal group cut at its mean is about 2.65 (above 2),
+    # so D alone would split it; the valley test must refuse.
+    rng = np.random.default_rng(4)
+    for v in (rng.normal(0, 1, 50000), rng.uniform(-0.4, 0, 50000)):
+        g = th.level_groups(v)
+        assert g.count == 1
+        assert g.two_way[1] > 2          # D alone would have accepted the split
+
+
+def test_tiny_group_is_not_a_group():
+    rng = np.random.default_rng(6)
+    v = _mix(rng, [(0.0, 0.05, 100000), (-1.5, 0.1, 40)])   # 0.04 % of readings
+    g = th.level_groups(v)
+    assert g.count == 1          # Otsu cuts the big group; D and the valley refuse it
+
+
+def test_valley_ratio():
+    rng = np.random.default_rng(7)
+    gap = _mix(rng, [(-1.5, 0.1, 5000), (0, 0.1, 5000)])
+    assert th.valley_ratio(gap, -0.75, -1.5, 0.0) < 0.05
+    flat = rng.uniform(0, 1, 20000)
+    assert th.valley_ratio(flat, 0.5, 0.25, 0.75) > 0.7
