@@ -232,6 +232,7 @@ class Readings:
     unconfigured: dict[str, int] = field(default_factory=dict)   # sensor -> rows, not mapped
     bad_rows_count: int = 0
     bad_rows_examples: list[str] = field(default_factory=list)   # "FILE:LINE: reason"
+    bad_rows_problems: list = field(default_factory=list)   # InputError per file (if skipped)
     warnings: list[str] = field(default_factory=list)
     start: pd.Timestamp | None = None
     end: pd.Timestamp | None = None

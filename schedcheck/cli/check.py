@@ -1,16 +1,94 @@
 """`schedcheck check SITE`: validate every input and report every problem found."""
 
+from __future__ import annotations
+
+import sys
 from pathlib import Path
+from typing import Annotated
 
 import typer
 
 from schedcheck.cli._app import app
 
 
+def _local(ts, tz: str) -> str:
+    return "-" if ts is None else ts.tz_convert(tz).strftime("%Y-%m-%d %H:%M")
+
+
+def health_table(report) -> object:
+    """The per-sensor data-health table (a rich Table)."""
+    from rich import box
+    from rich.table import Table
+
+    from schedcheck.durations import format_duration
+
+    site = report.site
+    tz = site.timezone
+    table = Table(title=f"{site.name}: readings per sensor (times in {tz}, silences longer "
+                  f"than {format_duration(site.readings.max_gap)} are gaps)",
+                  title_justify="left", box=box.SIMPLE_HEAD,
+                  caption="Step: median time between readings. Dupl.: identical rows dropped. "
+                  "Conflicts: rows at an instant already seen with other levels (averaged). "
+                  "Late: rows earlier than one read before them (sorted). Fold lost: rows in "
+                  "the repeated autumn hour that could not be placed (no data). Bad: malformed "
+                  "rows skipped.", caption_justify="left")
+    for name, just in (("Sensor", "left"), ("Component", "left"), ("First", "left"),
+                       ("Last", "left"), ("Readings", "right"), ("Step", "right"),
+                       ("Gaps", "right"), ("Gap h", "right"), ("Dupl.", "right"),
+                       ("Conflicts", "right"), ("Late", "right"), ("Fold lost", "right"),
+                       ("Bad", "right")):
+        table.add_column(name, justify=just, no_wrap=True)
+    for h in report.health:
+        step = "-" if h.median_interval is None else format_duration(h.median_interval)
+        table.add_row(h.sensor, h.component or "-", _local(h.first, tz), _local(h.last, tz),
+                      f"{h.count:,}", step, str(h.gaps), f"{h.gap_hours:.1f}",
+                      str(h.duplicates_exact), str(h.duplicates_conflicting),
+                      str(h.out_of_order), str(h.ambiguous_dropped), str(h.bad_rows))
+    return table
+
+
 @app.command()
-def check(site: Path = typer.Argument(..., help="The site file (TOML).")) -> int:
-    """Validate the site file, readings and calendars; report every problem found.
+def check(
+    site: Annotated[Path, typer.Argument(help="The site file (TOML).")],
+    skip_bad_rows: Annotated[bool, typer.Option(
+        "--skip-bad-rows", help="Count and list malformed readings rows instead of treating "
+        "them as problems.")] = False,
+) -> int:
+    """Validate the site file, calendars and readings; report every problem found, not just the
+    first, with per-sensor data health. Exit status 2 if there is any problem.
 
     Example: schedcheck check site.toml
     """
-    raise NotImplementedError("check is being written")
+    from rich.console import Console
+
+    from schedcheck.jobs.check import check_site
+
+    report = check_site(site, skip_bad_rows=skip_bad_rows)
+    out = Console(width=None if sys.stdout.isatty() else 200, highlight=False)
+    if report.site is not None:
+        s = report.site
+        comps = len(s.components)
+        out.print(f"Site {s.name!r} ({s.timezone}): {len(s.units)} unit(s), {comps} "
+                  f"component(s), {len(report.calendars)} calendar file(s), "
+                  f"{len(report.files)} readings file(s)", markup=False)
+        if report.health:
+            out.print(health_table(report))
+        if report.unconfigured:
+            listed = ", ".join(f"{k} ({v:,} rows)" for k, v in report.unconfigured.items())
+            out.print(f"Sensors in the readings that the site file does not map: {listed}",
+                      markup=False)
+        if report.bad_rows_count and (skip_bad_rows or s.readings.skip_bad_rows):
+            out.print(f"Skipped {report.bad_rows_count} bad row(s); first: "
+                      + "; ".join(report.bad_rows_examples), markup=False)
+    for note in report.notes:
+        out.print(f"note: {note}", markup=False)
+    for w in report.warnings:
+        print(f"warning: {' '.join(w.split())}", file=sys.stderr)
+    for p in report.problems:
+        print(f"error: {' '.join(str(p).split())}", file=sys.stderr)
+    n = len(report.problems)
+    if n:
+        print(f"{n} problem{'s' if n > 1 else ''} found in the inputs of {site}", file=sys.stderr)
+        return 2
+    out.print(f"All inputs look fine ({len(report.warnings)} warning(s)).", markup=False)
+    return 0

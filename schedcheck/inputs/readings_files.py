@@ -7,7 +7,6 @@ than the whole file. Rows are turned into clean per-sensor frames by :mod:`sched
 
 from __future__ import annotations
 
-import warnings as _warnings
 from collections import Counter
 from pathlib import Path
 
@@ -144,7 +143,8 @@ class _Collector:
             if len(self.bad_examples) < BAD_ROW_EXAMPLES:
                 self.bad_examples.append(err)
 
-    def file_errors(self, skip: bool) -> list[InputError]:
+    def file_errors(self) -> list[InputError]:
+        """Problems that no option skips: unreadable files, missing columns, naive times."""
         out = list(self.problems)
         for first, n in self.naive_by_file.values():
             where, text = first
@@ -153,21 +153,25 @@ class _Collector:
                 f"timestamp {str(text)!r} has no UTC offset{more}; add Z or an offset in the "
                 "export, or set naive_time = \"local\" or \"utc\" in [readings] of the site file",
                 path=where.path, line=where.line, key=where.key))
-        if not skip:
-            for rec in self.bad_by_file.values():
-                named = [e for e in rec if e is not None]
-                first, rest = named[0], len(rec) - 1
-                if rest:
-                    spots = [str(e.line) if e.line is not None else e.key
-                             for e in named[1:BAD_ROW_EXAMPLES]]
-                    label = "lines" if first.line is not None else "rows"
-                    extra = f" and {rest - len(spots)} more" if rest > len(spots) else ""
-                    tail = (f" (and {rest} more bad row{'s' if rest > 1 else ''}: {label} "
-                            f"{', '.join(spots)}{extra}; pass --skip-bad-rows to drop them)")
-                else:
-                    tail = " (pass --skip-bad-rows to drop bad rows)"
-                out.append(InputError(first.message + tail, path=first.path, line=first.line,
-                                      key=first.key))
+        return out
+
+    def bad_row_errors(self) -> list[InputError]:
+        """One problem per file with bad rows: the first, then where the next few are."""
+        out = []
+        for rec in self.bad_by_file.values():
+            named = [e for e in rec if e is not None]
+            first, rest = named[0], len(rec) - 1
+            if rest:
+                spots = [str(e.line) if e.line is not None else e.key
+                         for e in named[1:BAD_ROW_EXAMPLES]]
+                label = "lines" if first.line is not None else "rows"
+                extra = f" and {rest - len(spots)} more" if rest > len(spots) else ""
+                tail = (f" (and {rest} more bad row{'s' if rest > 1 else ''}: {label} "
+                        f"{', '.join(spots)}{extra}; pass --skip-bad-rows to drop them)")
+            else:
+                tail = " (pass --skip-bad-rows to drop bad rows)"
+            out.append(InputError(first.message + tail, path=first.path, line=first.line,
+                                  key=first.key))
         return out
 
 
@@ -220,31 +224,16 @@ def _read_csv(col: _Collector, site: Site, path: Path, file_idx: int) -> tuple[s
         raise InputError("the file is empty (no header line)", path=path) from None
     mapping, levels = _mapping(site, [str(c) for c in head.columns], path, 1)
     inverse = {v: k for k, v in mapping.items()}
-    skipped: list[int] = []
-    with _warnings.catch_warnings(record=True) as caught:
-        _warnings.simplefilter("always", pd.errors.ParserWarning)
-        reader = pd.read_csv(path, sep=sep, compression=comp, encoding="utf-8-sig",
-                             usecols=list(mapping.values()), dtype=str, keep_default_na=False,
-                             skip_blank_lines=False, on_bad_lines="warn",
-                             chunksize=CSV_CHUNK_ROWS)
-        for chunk in reader:
-            for w in caught:
-                m = __import__("re").search(r"line (\d+): (.*)", str(w.message))
-                if m:
-                    skipped.append(int(m.group(1)))
-                    err = InputError(f"wrong number of fields: {m.group(2)}", path=path,
-                                     line=int(m.group(1)))
-                    col.bad_by_file.setdefault(str(path), []).append(err)
-                    col.bad_total += 1
-                    if len(col.bad_examples) < BAD_ROW_EXAMPLES:
-                        col.bad_examples.append(err)
-            caught.clear()
-            k = chunk.index.to_numpy(np.int64)
-            s = np.array(sorted(skipped), np.int64)
-            shift = np.searchsorted(s - 2 - np.arange(len(s)), k, side="right")
-            lines = k + 2 + shift
-            chunk = chunk.rename(columns=inverse)
-            col.take(chunk, path, file_idx, levels, lines, lines, comma_decimal=sep == ";")
+    # Only the needed columns are read (usecols); a blank line stays a row (skip_blank_lines
+    # off) so that file line = row index + 2 (header on line 1). Quoted fields holding line
+    # breaks would shift the numbering; readings exports do not use them.
+    reader = pd.read_csv(path, sep=sep, compression=comp, encoding="utf-8-sig",
+                         usecols=list(mapping.values()), dtype=str, keep_default_na=False,
+                         skip_blank_lines=False, chunksize=CSV_CHUNK_ROWS)
+    for chunk in reader:
+        lines = chunk.index.to_numpy(np.int64) + 2
+        col.take(chunk.rename(columns=inverse), path, file_idx, levels, lines, lines,
+                 comma_decimal=sep == ";")
     return levels
 
 
@@ -326,7 +315,7 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
         except (UnicodeDecodeError, EOFError, OSError, pd.errors.ParserError) as e:
             col.problems.append(InputError(f"cannot read the file ({type(e).__name__}: "
                                            f"{e})", path=path))
-    problems = col.file_errors(skip)
+    problems = col.file_errors() + ([] if skip else col.bad_row_errors())
     if problems:
         raise InputProblems(problems)
     return _assemble(col, site, files, start, end, skip)
@@ -379,5 +368,6 @@ def _assemble(col: _Collector, site: Site, files, start, end, skip: bool) -> rd.
                      f"(first: {first})")
     return rd.Readings(by_sensor=by_sensor, health=health, unconfigured=dict(col.unconfigured),
                        bad_rows_count=col.bad_total,
-                       bad_rows_examples=[str(e) for e in col.bad_examples], warnings=warns,
+                       bad_rows_examples=[str(e) for e in col.bad_examples],
+                       bad_rows_problems=col.bad_row_errors(), warnings=warns,
                        start=start, end=end, files=tuple(str(f) for f in files))

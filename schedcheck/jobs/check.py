@@ -1,0 +1,115 @@
+"""The check job (``schedcheck check``): validate every input, collect every problem.
+
+Order: the site file (all of its problems), then each calendar file, then the readings (file
+problems, bad rows, per-sensor data health). When the site file itself has problems, the
+calendars and readings cannot be located reliably and are not read; the report says so.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from schedcheck.errors import InputError, InputProblems
+from schedcheck.readings import SensorHealth
+from schedcheck.site import Site
+
+
+@dataclass
+class CheckReport:
+    """What ``schedcheck check`` found."""
+
+    path: Path                                   # the site file
+    site: Site | None = None                     # None when the site file has problems
+    problems: list[InputError] = field(default_factory=list)
+    warnings: list[str] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+    health: list[SensorHealth] = field(default_factory=list)
+    unconfigured: dict[str, int] = field(default_factory=dict)   # sensor -> rows
+    calendars: list[Path] = field(default_factory=list)
+    files: tuple[str, ...] = ()                  # readings files read
+    bad_rows_count: int = 0
+    bad_rows_examples: list[str] = field(default_factory=list)
+
+    @property
+    def ok(self) -> bool:
+        return not self.problems
+
+
+def _problems(exc: InputError) -> list[InputError]:
+    return list(exc.problems) if isinstance(exc, InputProblems) else [exc]
+
+
+def site_calendars(site: Site) -> list[Path]:
+    """Every calendar file the site uses (site default and unit overrides), once each."""
+    out: list[Path] = []
+    for sched in [site.schedule] + [u.schedule for u in site.units]:
+        for p in (*sched.occupied, *sched.allowed):
+            if p not in out:
+                out.append(p)
+    return out
+
+
+def check_calendars(site: Site, paths: list[Path]) -> list[InputError]:
+    """Problems in the calendar files (their contents where the calendar reader is present)."""
+    try:
+        from schedcheck.inputs.calendar_files import check_calendar_file
+    except ImportError:  # pragma: no cover - the reader ships with the package
+        check_calendar_file = None
+    out: list[InputError] = []
+    for p in paths:
+        if not p.is_file():
+            out.append(InputError("calendar file does not exist", path=p))
+        elif check_calendar_file is not None:
+            out.extend(check_calendar_file(p, site.timezone))
+    return out
+
+
+def check_site(path: str | Path, skip_bad_rows: bool = False) -> CheckReport:
+    """Validate a site file, its calendars and its readings; never raises for input problems.
+
+    Parameters
+    ----------
+    path : str or Path
+        The site file (TOML).
+    skip_bad_rows : bool
+        Treat malformed readings rows as skipped (counted, listed) rather than as problems; also
+        on when the site file sets ``[readings] skip_bad_rows = true``.
+
+    Returns
+    -------
+    CheckReport
+        ``problems`` is empty when every input is usable.
+    """
+    from schedcheck.jobs.common import load_readings
+    from schedcheck.site import load_site
+
+    report = CheckReport(path=Path(path))
+    try:
+        site = load_site(path)
+    except InputError as e:
+        report.problems.extend(_problems(e))
+        report.notes.append("calendars and readings are checked once the site file is valid")
+        return report
+    report.site = site
+    report.calendars = site_calendars(site)
+    report.problems.extend(check_calendars(site, report.calendars))
+    skip = skip_bad_rows or site.readings.skip_bad_rows
+    try:
+        # read with skipping so that the health table is complete; bad rows become problems
+        # below unless the user asked to skip them
+        readings = load_readings(site, skip_bad_rows=True)
+    except InputError as e:
+        report.problems.extend(_problems(e))
+        return report
+    report.health = list(readings.health.values())
+    report.unconfigured = dict(sorted(readings.unconfigured.items()))
+    report.files = readings.files
+    report.bad_rows_count = readings.bad_rows_count
+    report.bad_rows_examples = list(readings.bad_rows_examples)
+    if skip:
+        report.warnings.extend(readings.warnings)
+    else:
+        report.problems.extend(readings.bad_rows_problems)
+        report.warnings.extend(w for w in readings.warnings if not w.startswith("skipped "))
+    return report
