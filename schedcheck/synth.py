@@ -189,6 +189,7 @@ def readings_for_component(
     out_of_order: float = 0.002,
     axes: str = "xyz",
     peaks: bool = True,
+    scatter: float = 1.0,
 ) -> pd.DataFrame:
     """Readings of one sensor on a component whose true run intervals are ``truth``.
 
@@ -234,6 +235,9 @@ def readings_for_component(
         Which axes the sensor reports, e.g. ``"xyz"`` or ``"z"``.
     peaks : bool
         Whether to write the ``*_peak`` columns.
+    scatter : float
+        Multiplies every random scatter of the levels [-]; 0 gives noise-free levels (the
+        background is then exactly ``noise_floor``).
 
     Returns
     -------
@@ -246,7 +250,12 @@ def readings_for_component(
     jit = pd.Timedelta(jitter).value
     nominal = np.arange(s0, e0, step, dtype=np.int64)
     n = nominal.size
-    t = nominal + (rng.integers(-jit, jit + 1, n) if jit else 0)
+    # jitter in whole seconds, as gateways stamp readings (sub-second jitter is kept as is)
+    if jit >= 1_000_000_000:
+        js = jit // 1_000_000_000
+        t = nominal + rng.integers(-js, js + 1, n) * 1_000_000_000
+    else:
+        t = nominal + (rng.integers(-jit, jit + 1, n) if jit else 0)
     t = np.clip(t, s0, e0 - 1)
 
     run = _run_set(truth)
@@ -261,11 +270,12 @@ def readings_for_component(
         k = np.searchsorted(idx, t, side="right") - 1
         sp = np.where(k >= 0, val[np.clip(k, 0, None)], 1.0)
     r_level = running_level * np.power(np.clip(sp, 0, None), speed_exponent) * drift
-    r_level = np.where(running, r_level * np.exp(rng.normal(0, 0.08, n)), 0.0)
+    r_level = np.where(running, r_level * np.exp(rng.normal(0, 0.08 * scatter, n)), 0.0)
     c_level = np.zeros(n)
     if carried is not None and carried_level > 0:
         c_run = _run_set(carried).contains(t)
-        c_level = np.where(c_run, carried_level * drift * np.exp(rng.normal(0, 0.10, n)), 0.0)
+        c_wobble = np.exp(rng.normal(0, 0.10 * scatter, n))
+        c_level = np.where(c_run, carried_level * drift * c_wobble, 0.0)
 
     # start transients: first TRANSIENT_TIME of every run that follows an off period
     after_start = np.zeros(n, bool)
@@ -276,15 +286,15 @@ def readings_for_component(
             since = t - starts[np.clip(k, 0, None)]
             after_start = (k >= 0) & running & (since < TRANSIENT_TIME.value)
 
-    weights = rng.uniform(0.5, 1.0, len(axes))
+    weights = rng.uniform(0.5, 1.0, len(axes)) if scatter else np.ones(len(axes))
     weights = weights / np.sqrt((weights**2).sum())
     cols: dict[str, np.ndarray] = {}
     for i, ax in enumerate(axes):
-        bg = noise_floor / np.sqrt(len(axes)) * np.exp(rng.normal(0, 0.25, n))
+        bg = noise_floor / np.sqrt(len(axes)) * np.exp(rng.normal(0, 0.25 * scatter, n))
         rms = np.sqrt((weights[i] * r_level) ** 2 + (weights[i] * c_level) ** 2 + bg**2)
         cols[f"{ax}_rms"] = rms
         if peaks:
-            crest = CREST_FACTOR * np.exp(rng.normal(0, 0.1, n))
+            crest = CREST_FACTOR * np.exp(rng.normal(0, 0.1 * scatter, n))
             cols[f"{ax}_peak"] = rms * crest * np.where(after_start, transient_factor, 1.0)
 
     keep = rng.random(n) >= packet_loss
