@@ -90,8 +90,9 @@ DEFAULT_MIN_OVERRUN = pd.Timedelta("10min")
 # practice, no source: three days is a habit, not a one-off.
 DEFAULT_REPEAT_DAYS = 3
 # Gaps with no data of up to this long between two runs are not stops for the continuous
-# rule. Common practice, no source: a lost packet or two does not mean the fan stopped.
-NO_DATA_BRIDGE = pd.Timedelta("1h")
+# rule (the sentence says how long the data was missing). Common practice, no source: a flat
+# sensor battery or a gateway outage over a long weekend does not mean the fan stopped.
+NO_DATA_BRIDGE = pd.Timedelta("72h")
 # Clock offset: "about an hour" means within this of the daylight-saving change (45-75 min).
 # Common practice, no source.
 CLOCK_TOLERANCE = findings_clock.CLOCK_TOLERANCE

@@ -165,11 +165,11 @@ def clock_offset(ctx: Context) -> list[Found]:
         began = "began" if delta > 0 else "ended"
         way = "later" if delta > 0 else "earlier"
         detail = (f"From {day_text(change)}, the day daylight saving time {began}, the unit "
-                  f"started and stopped about {abs(delta) / 60:.0f} h {way} than before (median "
-                  f"start {med_start:+.0f} min, stop {med_stop:+.0f} min; shifted on {len(hits)} "
-                  f"of the first {len(after)} working days){{energy}}; check that the controller "
-                  "clock follows daylight saving time (its time zone and daylight-saving "
-                  "setting).")
+                  f"started and stopped about {abs(delta) / 60:.0f} h {way} than before on "
+                  f"{len(hits)} of the first {len(after)} working days (median start "
+                  f"{med_start:+.0f} min, stop {med_stop:+.0f} min), running {hours:.1f} h "
+                  "outside the schedule because of it{energy}; check that the controller clock "
+                  "follows daylight saving time (its time zone and daylight-saving setting).")
         start = midnight_ns(change, ctx.tz)
         end = max(start + 1, max(d.last for d in shifted_days))
         out.append(Found("clock_offset", start, end, change, hours, hours, detail))

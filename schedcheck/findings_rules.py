@@ -156,9 +156,11 @@ def continuous(ctx: Context) -> list[Found]:
         b = local(ge, ctx.tz)
         until = ("and was still running at the end of the audit window" if ge >= ctx.end
                  else f"to {day_text(b.date())} {b:%H:%M}")
+        gap = ctx.no_data.clip(int(gs), int(ge)).hours()
+        seen = f" (with {gap:.1f} h of no data in between)" if gap >= 0.05 else ""
         out.append(Found(
             "continuous", int(gs), int(ge), a.date(), hours, hours,
-            f"Ran without a stop for {(ge - gs) / NS_PER_H:.1f} h {since} {until}, "
+            f"Ran without a stop seen for {(ge - gs) / NS_PER_H:.1f} h {since} {until}{seen}, "
             f"{hours:.1f} h of it outside the schedule{{energy}}; look for a manual override, "
             "a hand switch or a unit stuck in occupied mode, and ask the owner whether any "
             "of this running is needed.",
@@ -270,7 +272,7 @@ def _day_finding(ctx: Context, label: tuple, part: Intervals) -> Found:
                   "left on.")
         return Found("weekend", s, e, d0, hours, hours, detail)
     where = f"on {day_text(d0)}" if d0 == d1 else (
-        f"in the night of {day_text(d0, year=False)} to {day_text(d1)}")
+        f"on the night of {day_text(d0, year=False)} to {day_text(d1)}")
     detail = (f"Ran {hours:.1f} h{runs} outside the schedule {where} {when}{{energy}}; check the "
               "start and stop times in the controller's time programme and look for an override, "
               "a hand switch or a demand signal keeping it on.")
@@ -351,8 +353,10 @@ def missed(ctx: Context) -> list[Found]:
         gap = ctx.no_data.clip(a, b).hours()
         extra = f" (and {gap:.1f} h with no data)" if gap >= 0.05 else ""
         day = local_dates([s], ctx.tz)[0]
-        air = (", so the space had no mechanical ventilation from it"
-               if ctx.role in ("supply_fan", "exhaust_fan", "return_fan") else "")
+        air = {"supply_fan": ", so the spaces it serves got no supply air from it",
+               "exhaust_fan": ", so the spaces it serves got no extract from it",
+               "return_fan": ", so the spaces it serves got no return air from it"}.get(
+                   ctx.role, "")
         detail = (f"Was off for {hours:.1f} h{extra} of the occupied period on {day_text(day)} "
                   f"{span_text(s, e, ctx.tz)}{air}; check the alarm log for a trip or a held "
                   "stop, a failed start command and any hand switch left off.")

@@ -220,7 +220,7 @@ def test_override_left_on_over_a_weekend_is_one_continuous_finding():
     # off schedule: Fri 17:30 to Mon 05:00 = 59.5 h; the run began on Friday 6 March
     row = assert_one(found, "continuous", "2026-03-06", hours=59.5)
     assert row["start"] == loc("2026-03-06 06:00") and row["end"] == loc("2026-03-09 17:10")
-    assert "without a stop for 83.2 h" in row["detail"]
+    assert "without a stop seen for 83.2 h" in row["detail"]
 
 
 def test_short_no_data_gap_does_not_break_a_continuous_run():
@@ -443,3 +443,16 @@ def test_friday_evening_into_saturday_midday_splits_into_night_and_weekend():
     assert list(found["date"]) == ["2026-03-06", "2026-03-07"]
     assert found["hours"].tolist() == pytest.approx([4.0, 13.0])
     assert found["kwh"].sum() == pytest.approx(KW * 17.0)   # nothing counted twice
+
+
+def test_flat_battery_inside_a_continuous_run_keeps_one_finding():
+    # running from Monday, sensor silent Wednesday 10:00 to Friday 13:00 (51 h), running seen
+    # again until Sunday: one continuous finding that says how long the data was missing
+    runs = [("2026-03-02 06:00", "2026-03-04 10:00"), ("2026-03-06 13:00", "2026-03-08 20:00")]
+    found = run(states_frame(runs, "2026-03-02", "2026-03-08",
+                             no_data=[("2026-03-04 10:00", "2026-03-06 13:00")]),
+                office_schedule("2026-03-02", "2026-03-08"), "2026-03-02", "2026-03-08")
+    # off schedule seen: Mon 17:30-Tue 05:00, Tue 17:30-Wed 05:00 (23 h), Fri 17:30 to Sun
+    # 20:00 (50.5 h)
+    row = assert_one(found, "continuous", "2026-03-02", hours=23 + 50.5)
+    assert "with 51.0 h of no data in between" in row["detail"]
