@@ -308,12 +308,11 @@ class _Validator:
         if x != x or x in (float("inf"), float("-inf")):
             self.err(key, f"must be a finite number, not {x!r}")
             return default
-        if lo is not None and (x <= lo if lo_open else x < lo):
-            self.err(key, f"{x!r} is out of range: must be {'>' if lo_open else '>='} {lo}"
-                     + (f" and <= {hi}" if hi is not None else ""))
-            return default
-        if hi is not None and x > hi:
-            self.err(key, f"{x!r} is out of range: must be <= {hi}")
+        low = lo is not None and (x <= lo if lo_open else x < lo)
+        if low or (hi is not None and x > hi):
+            rule = " and ".join(([f"{'>' if lo_open else '>='} {lo:g}"] if lo is not None
+                                 else []) + ([f"<= {hi:g}"] if hi is not None else []))
+            self.err(key, f"{x!r} is out of range: must be {rule}")
             return default
         return int(x) if integer else float(x)
 
