@@ -120,6 +120,9 @@ class FindingSettings:
     min_missed: pd.Timedelta | None = None         # occupied time off before it is a finding
     continuous: pd.Timedelta | None = None         # running without a stop this long = continuous
     max_starts_per_day: int | None = None          # more starts a day = short cycling
+    max_pause: pd.Timedelta | None = None          # shorter stops do not end an episode
+    min_overrun: pd.Timedelta | None = None        # shorter early starts / late stops are ignored
+    repeat_days: int | None = None                 # overrun days in one ISO week = a finding
 
 
 @dataclass(frozen=True)
