@@ -1,0 +1,270 @@
+"""schedcheck.calendars: time rules, daylight saving, and one hostile calendar per guard rail."""
+
+from __future__ import annotations
+
+import datetime as dt
+
+import icalendar
+import pytest
+
+import schedcheck.calendars as calendars
+from schedcheck.calendars import check_calendar, expand_calendar, is_open_on_holidays
+from schedcheck.errors import InputError
+
+OSLO = "Europe/Oslo"
+NY = "America/New_York"
+
+
+def cal(*events: str, head: str = "") -> icalendar.Calendar:
+    text = "BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//schedcheck tests//EN\r\n" + head
+    for i, body in enumerate(events):
+        lines = body.strip().splitlines()
+        if not any(x.startswith("UID") for x in lines):
+            lines.insert(0, f"UID:ev{i}@example.org")
+        if not any(x.startswith("SUMMARY") for x in lines):
+            lines.insert(0, f"SUMMARY:Event {i}")
+        text += "BEGIN:VEVENT\r\n" + "\r\n".join(lines) + "\r\nEND:VEVENT\r\n"
+    return icalendar.Calendar.from_ical(text + "END:VCALENDAR\r\n")
+
+
+def local_spans(res, tz: str) -> list[tuple[str, str]]:
+    ev = res.events.sort_values("start")
+    return [(s.tz_convert(tz).isoformat(), e.tz_convert(tz).isoformat())
+            for s, e in zip(ev["start"], ev["end"], strict=True)]
+
+
+def hours(res) -> list[float]:
+    ev = res.events.sort_values("start")
+    return [round((e - s).total_seconds() / 3600, 3) for s, e in zip(ev["start"], ev["end"],
+                                                                       strict=True)]
+
+
+D = dt.date
+
+
+# -- time rules ------------------------------------------------------------------------------
+def test_tzid_event_weekdays_and_columns():
+    c = cal("DTSTART;TZID=Europe/Oslo:20260302T070000\nDTEND;TZID=Europe/Oslo:20260302T170000\n"
+            "RRULE:FREQ=WEEKLY;BYDAY=MO,TU,WE,TH,FR")
+    res = expand_calendar(c, OSLO, D(2026, 3, 2), D(2026, 3, 8))
+    assert list(res.events.columns) == calendars.EVENT_COLUMNS
+    assert str(res.events["start"].dtype) == "datetime64[ns, UTC]"
+    assert local_spans(res, OSLO)[0] == ("2026-03-02T07:00:00+01:00", "2026-03-02T17:00:00+01:00")
+    assert len(res.events) == 5 and res.warnings == []
+
+
+def test_floating_time_is_read_in_site_zone():
+    c = cal("DTSTART:20260302T070000\nDTEND:20260302T170000")
+    oslo = expand_calendar(c, OSLO, D(2026, 3, 1), D(2026, 3, 3))
+    ny = expand_calendar(c, NY, D(2026, 3, 1), D(2026, 3, 3))
+    assert local_spans(oslo, OSLO) == [("2026-03-02T07:00:00+01:00", "2026-03-02T17:00:00+01:00")]
+    assert local_spans(ny, NY) == [("2026-03-02T07:00:00-05:00", "2026-03-02T17:00:00-05:00")]
+
+
+def test_utc_time_stays_utc():
+    c = cal("DTSTART:20260302T060000Z\nDTEND:20260302T160000Z")
+    res = expand_calendar(c, OSLO, D(2026, 3, 1), D(2026, 3, 3))
+    assert local_spans(res, OSLO) == [("2026-03-02T07:00:00+01:00", "2026-03-02T17:00:00+01:00")]
+
+
+def test_all_day_event_dtend_exclusive_and_default_one_day():
+    # RFC 5545 section 3.6.1: DTEND of a DATE event is exclusive; without it, one day.
+    c = cal("DTSTART;VALUE=DATE:20260330\nDTEND;VALUE=DATE:20260401",
+            "DTSTART;VALUE=DATE:20260403")
+    res = expand_calendar(c, OSLO, D(2026, 3, 28), D(2026, 4, 5))
+    assert local_spans(res, OSLO) == [
+        ("2026-03-30T00:00:00+02:00", "2026-04-01T00:00:00+02:00"),
+        ("2026-04-03T00:00:00+02:00", "2026-04-04T00:00:00+02:00")]
+
+
+def test_all_day_event_on_spring_change_day_is_23_hours():
+    c = cal("DTSTART;VALUE=DATE:20260329\nDTEND;VALUE=DATE:20260330")
+    assert hours(expand_calendar(c, OSLO, D(2026, 3, 29), D(2026, 3, 29))) == [23.0]
+
+
+def test_non_iana_tzid_with_vtimezone():
+    vtz = ("BEGIN:VTIMEZONE\r\nTZID:Fjord Standard Time\r\nBEGIN:STANDARD\r\n"
+           "DTSTART:19701025T030000\r\nRRULE:FREQ=YEARLY;BYMONTH=10;BYDAY=-1SU\r\n"
+           "TZOFFSETFROM:+0200\r\nTZOFFSETTO:+0100\r\nEND:STANDARD\r\nBEGIN:DAYLIGHT\r\n"
+           "DTSTART:19700329T020000\r\nRRULE:FREQ=YEARLY;BYMONTH=3;BYDAY=-1SU\r\n"
+           "TZOFFSETFROM:+0100\r\nTZOFFSETTO:+0200\r\nEND:DAYLIGHT\r\nEND:VTIMEZONE\r\n")
+    c = cal("DTSTART;TZID=Fjord Standard Time:20260327T070000\n"
+            "DTEND;TZID=Fjord Standard Time:20260327T170000\nRRULE:FREQ=DAILY;COUNT=3", head=vtz)
+    res = expand_calendar(c, OSLO, D(2026, 3, 27), D(2026, 3, 31))
+    assert local_spans(res, OSLO) == [
+        ("2026-03-27T07:00:00+01:00", "2026-03-27T17:00:00+01:00"),
+        ("2026-03-28T07:00:00+01:00", "2026-03-28T17:00:00+01:00"),
+        ("2026-03-29T07:00:00+02:00", "2026-03-29T17:00:00+02:00")]
+
+
+def test_overlapping_and_midnight_crossing_events_are_kept_as_they_are():
+    c = cal("DTSTART;TZID=Europe/Oslo:20260302T220000\nDTEND;TZID=Europe/Oslo:20260303T060000",
+            "DTSTART;TZID=Europe/Oslo:20260303T050000\nDTEND;TZID=Europe/Oslo:20260303T090000")
+    res = expand_calendar(c, OSLO, D(2026, 3, 2), D(2026, 3, 3))
+    assert local_spans(res, OSLO) == [
+        ("2026-03-02T22:00:00+01:00", "2026-03-03T06:00:00+01:00"),
+        ("2026-03-03T05:00:00+01:00", "2026-03-03T09:00:00+01:00")]
+
+
+def test_events_are_clipped_to_the_window():
+    c = cal("DTSTART;TZID=Europe/Oslo:20260301T220000\nDTEND;TZID=Europe/Oslo:20260302T060000")
+    res = expand_calendar(c, OSLO, D(2026, 3, 2), D(2026, 3, 2))
+    assert local_spans(res, OSLO) == [("2026-03-02T00:00:00+01:00", "2026-03-02T06:00:00+01:00")]
+
+
+def test_cancelled_occurrence_is_not_a_period():
+    c = cal("UID:w@x\nDTSTART;TZID=Europe/Oslo:20260302T070000\n"
+            "DTEND;TZID=Europe/Oslo:20260302T170000\nRRULE:FREQ=DAILY;COUNT=3",
+            "UID:w@x\nRECURRENCE-ID;TZID=Europe/Oslo:20260303T070000\n"
+            "DTSTART;TZID=Europe/Oslo:20260303T070000\nDTEND;TZID=Europe/Oslo:20260303T170000\n"
+            "STATUS:CANCELLED\nSEQUENCE:1")
+    res = expand_calendar(c, OSLO, D(2026, 3, 1), D(2026, 3, 5))
+    assert [s[:10] for s, _ in local_spans(res, OSLO)] == ["2026-03-02", "2026-03-04"]
+
+
+def test_holiday_marker_in_categories():
+    c = cal("CATEGORIES:Work,open-on-holidays\nDTSTART:20260302T070000\nDTEND:20260302T080000",
+            "CATEGORIES:Work\nDTSTART:20260302T070000\nDTEND:20260302T080000")
+    events = c.walk("VEVENT")
+    assert is_open_on_holidays(events[0]) and not is_open_on_holidays(events[1])
+    res = expand_calendar(c, OSLO, D(2026, 3, 2), D(2026, 3, 2))
+    assert sorted(res.events["open_on_holidays"].tolist()) == [False, True]
+
+
+# -- daylight saving: wall-clock ends (IANA rules: EU last Sunday of March/October,
+#    US second Sunday of March / first Sunday of November) ------------------------------------
+@pytest.mark.parametrize("tz,day,expected_h", [
+    (OSLO, "20260328", 7.0),    # night into 2026-03-29 (spring gap): 22:00-06:00 is 7 h
+    (OSLO, "20261024", 9.0),    # night into 2026-10-25 (autumn fold): 9 h
+    (NY, "20260307", 7.0),      # night into 2026-03-08
+    (NY, "20261031", 9.0),      # night into 2026-11-01
+])
+def test_night_event_across_dst_change_follows_wall_clock(tz, day, expected_h):
+    c = cal(f"DTSTART;TZID={tz}:{day}T220000\nDURATION:PT8H\nRRULE:FREQ=DAILY;COUNT=2")
+    d = dt.datetime.strptime(day, "%Y%m%d").date()
+    res = expand_calendar(c, tz, d, d + dt.timedelta(days=2))
+    assert hours(res) == [expected_h, 8.0]
+    ends = [e for _, e in local_spans(res, tz)]
+    assert all(e[11:16] == "06:00" for e in ends)
+
+
+def test_gap_time_uses_offset_before_the_gap():
+    # RFC 5545 section 3.3.5: "TZID=America/New_York:20070311T023000 indicates March 11, 2007
+    # at 3:30 A.M. EDT (UTC-04:00), one hour after 1:30 A.M. EST (UTC-05:00)".
+    c = cal("DTSTART;TZID=America/New_York:20070311T023000\n"
+            "DTEND;TZID=America/New_York:20070311T050000")
+    res = expand_calendar(c, NY, D(2007, 3, 11), D(2007, 3, 11))
+    assert local_spans(res, NY)[0][0] == "2007-03-11T03:30:00-04:00"
+
+
+def test_fold_time_is_the_first_occurrence():
+    # RFC 5545 section 3.3.5: "TZID=America/New_York:20071104T013000 indicates November 4,
+    # 2007 at 1:30 A.M. EDT (UTC-04:00)".
+    c = cal("DTSTART;TZID=America/New_York:20071104T013000\n"
+            "DTEND;TZID=America/New_York:20071104T030000")
+    res = expand_calendar(c, NY, D(2007, 11, 4), D(2007, 11, 4))
+    assert local_spans(res, NY) == [("2007-11-04T01:30:00-04:00", "2007-11-04T03:00:00-05:00")]
+    assert hours(res) == [2.5]
+
+
+def test_oslo_fold_floating_time_first_occurrence():
+    c = cal("DTSTART:20261025T023000\nDTEND:20261025T040000")
+    res = expand_calendar(c, OSLO, D(2026, 10, 25), D(2026, 10, 25))
+    assert local_spans(res, OSLO) == [("2026-10-25T02:30:00+02:00", "2026-10-25T04:00:00+01:00")]
+
+
+@pytest.mark.parametrize("start,end,word", [("020000", "030000", "zero"),
+                                            ("023000", "030000", "negative")])
+def test_event_inside_spring_gap_is_a_warning_naming_it(start, end, word):
+    c = cal(f"SUMMARY:Gap test\nUID:gap@x\nDTSTART;TZID=Europe/Oslo:20260329T{start}\n"
+            f"DTEND;TZID=Europe/Oslo:20260329T{end}")
+    res = expand_calendar(c, OSLO, D(2026, 3, 29), D(2026, 3, 29), path="occ.ics")
+    assert len(res.events) == 0
+    assert len(res.warnings) == 1
+    assert "occ.ics" in res.warnings[0] and "'Gap test'" in res.warnings[0]
+    assert word in res.warnings[0]
+
+
+def test_instant_event_without_end_is_a_warning():
+    c = cal("SUMMARY:Blip\nDTSTART:20260302T070000")
+    res = expand_calendar(c, OSLO, D(2026, 3, 2), D(2026, 3, 2))
+    assert len(res.events) == 0 and "instant" in res.warnings[0]
+
+
+# -- guard rails: one hostile calendar each -------------------------------------------------
+HOSTILE = [
+    ("interval zero", "DTSTART:20260302T070000\nDTEND:20260302T080000\n"
+     "RRULE:FREQ=DAILY;INTERVAL=0", "INTERVAL=0"),
+    ("secondly", "DTSTART:20260302T070000\nDTEND:20260302T080000\nRRULE:FREQ=SECONDLY",
+     "SECONDLY"),
+    ("minutely", "DTSTART:20260302T070000\nDTEND:20260302T080000\nRRULE:FREQ=MINUTELY;"
+     "INTERVAL=15", "MINUTELY"),
+    ("unknown tzid", "DTSTART;TZID=Office/Basement:20260302T070000\n"
+     "DTEND;TZID=Office/Basement:20260302T080000", "Office/Basement"),
+    ("broken rrule", "DTSTART:20260302T070000\nDTEND:20260302T080000\n"
+     "RRULE:FREQ=FORTNIGHTLY;BYDAY=MO", "RRULE does not parse"),
+    ("bad byday", "DTSTART:20260302T070000\nDTEND:20260302T080000\nRRULE:FREQ=WEEKLY;BYDAY=XY",
+     "RRULE"),
+    ("no freq", "DTSTART:20260302T070000\nDTEND:20260302T080000\nRRULE:COUNT=3", "RRULE"),
+    ("end before start", "DTSTART:20260302T170000\nDTEND:20260302T070000", "before DTSTART"),
+    ("missing dtstart", "DTEND:20260302T070000", "no DTSTART"),
+    ("dtend and duration", "DTSTART:20260302T070000\nDTEND:20260302T080000\nDURATION:PT1H",
+     "both DTEND and DURATION"),
+    ("mixed types", "DTSTART;VALUE=DATE:20260302\nDTEND:20260302T080000", "value type"),
+    ("negative duration", "DTSTART:20260302T070000\nDURATION:-PT1H", "negative"),
+    ("too dense", "DTSTART:20260302T000000\nDURATION:PT10M\nRRULE:FREQ=DAILY;"
+     "BYHOUR=0,1,2,3,4,5,6,7,8,9,10,11,12,13,14,15,16,17,18,19,20,21,22,23;BYMINUTE=0,15,30,45",
+     "96 starts a day"),
+    ("never occurs", "DTSTART:20260302T070000\nDTEND:20260302T080000\n"
+     "RRULE:FREQ=DAILY;BYMONTH=2;BYMONTHDAY=30", "can never occur"),
+    ("count zero", "DTSTART:20260302T070000\nDTEND:20260302T080000\nRRULE:FREQ=DAILY;COUNT=0",
+     "COUNT"),
+]
+
+
+@pytest.mark.parametrize("name,body,needle", HOSTILE, ids=[h[0] for h in HOSTILE])
+def test_hostile_calendar_is_refused_naming_file_and_event(name, body, needle):
+    c = cal(f"SUMMARY:Hostile {name}\nUID:h@x\n{body}")
+    problems = check_calendar(c, path="bad.ics")
+    assert problems, name
+    text = str(problems[0])
+    assert text.startswith("bad.ics: event 'Hostile ") and needle in text
+    assert "\n" not in text
+    with pytest.raises(InputError, match=needle.replace("(", r"\(")):
+        expand_calendar(c, OSLO, D(2026, 3, 1), D(2026, 3, 31), path="bad.ics")
+
+
+def test_every_problem_is_reported_not_just_the_first():
+    c = cal("SUMMARY:A\nDTSTART:20260302T070000\nDTEND:20260302T080000\nRRULE:FREQ=SECONDLY",
+            "SUMMARY:B\nDTEND:20260302T070000")
+    assert len(check_calendar(c, path="bad.ics")) == 2
+
+
+def test_huge_count_from_distant_start_hits_the_step_cap():
+    c = cal("SUMMARY:Hourly since 1950\nDTSTART:19500101T000000\nDURATION:PT30M\n"
+            "RRULE:FREQ=HOURLY;COUNT=999999999")
+    with pytest.raises(InputError, match="would step .* times"):
+        expand_calendar(c, OSLO, D(2026, 1, 1), D(2026, 12, 31), path="bad.ics")
+
+
+def test_occurrence_cap(monkeypatch):
+    # the real cap is 100,000 (documented); a small one shows the mechanism in a fast test
+    monkeypatch.setattr(calendars, "MAX_OCCURRENCES", 50)
+    c = cal("SUMMARY:Daily\nDTSTART:20260101T070000\nDTEND:20260101T170000\nRRULE:FREQ=DAILY")
+    with pytest.raises(InputError, match="more than 50 occurrences"):
+        expand_calendar(c, OSLO, D(2026, 1, 1), D(2026, 3, 31), path="busy.ics")
+    assert len(expand_calendar(c, OSLO, D(2026, 1, 1), D(2026, 1, 31)).events) == 31
+
+
+def test_window_longer_than_cap_is_refused():
+    c = cal("DTSTART:20260302T070000\nDTEND:20260302T080000")
+    last = D(2026, 1, 1) + dt.timedelta(days=calendars.MAX_WINDOW_DAYS)
+    with pytest.raises(InputError, match="1101 days"):
+        expand_calendar(c, OSLO, D(2026, 1, 1), last)
+    expand_calendar(c, OSLO, D(2026, 1, 1), last - dt.timedelta(days=1))
+
+
+def test_window_ending_before_start_is_refused():
+    with pytest.raises(InputError, match="before it starts"):
+        expand_calendar(cal("DTSTART:20260302T070000\nDTEND:20260302T080000"), OSLO,
+                        D(2026, 3, 2), D(2026, 3, 1))
