@@ -29,6 +29,8 @@ References
    population variances are involved. Biometrika 34, 28-35.
 .. [4] Satterthwaite F.E. (1946). An approximate distribution of estimates of variance
    components. Biometrics Bulletin 2(6), 110-114.
+.. [5] Fearnhead P., Rigaill G. (2019). Changepoint detection in the presence of outliers.
+   Journal of the American Statistical Association 114(525), 169-183.
 """
 
 from __future__ import annotations
@@ -148,7 +150,52 @@ def mean_shift_penalty(values, groups=None, *, sigma_floor: float = 0.0) -> floa
     return float((k + 2) * np.log(n) * sigma**2)
 
 
-def pelt_mean_shift(values, penalty: float, *, groups=None, min_size: int = 1) -> list[int]:
+def biweight_cost(values, cap: float) -> float:
+    """Least capped squared error of one segment: ``min over m of sum min((y - m)^2, cap^2)``.
+
+    Parameters
+    ----------
+    values : array-like of float
+        The segment's values [any unit].
+    cap : float
+        Residual beyond which a value costs no more [unit of values].
+
+    Returns
+    -------
+    float
+        The cost [unit of values squared]; 0.0 for an empty segment.
+
+    Notes
+    -----
+    The biweight loss of Fearnhead and Rigaill [5]_. The cost is piecewise quadratic in ``m``
+    with breakpoints at ``y_i +- cap``; on each piece the values within ``cap`` of ``m`` are a
+    fixed run of the sorted values, and the best ``m`` there is their mean, clipped to the
+    piece. Every piece is checked, so the result is exact, in O(k log k) for k values.
+    """
+    v = np.sort(np.asarray(values, dtype=float))
+    k = v.size
+    if k == 0:
+        return 0.0
+    c2 = float(cap) ** 2
+    s1 = np.concatenate([[0.0], np.cumsum(v)])
+    s2 = np.concatenate([[0.0], np.cumsum(v**2)])
+    edges = np.sort(np.concatenate([v - cap, v + cap]))
+    mids = np.concatenate([[edges[0] - 1.0], (edges[:-1] + edges[1:]) / 2, [edges[-1] + 1.0]])
+    lo = np.searchsorted(v, mids - cap, side="right")
+    hi = np.searchsorted(v, mids + cap, side="left")
+    cnt = hi - lo
+    a = np.concatenate([[-np.inf], edges])
+    b = np.concatenate([edges, [np.inf]])
+    with np.errstate(invalid="ignore", divide="ignore"):
+        m = np.where(cnt > 0, (s1[hi] - s1[lo]) / np.maximum(cnt, 1), mids)
+    m = np.clip(m, a, b)
+    inside = (s2[hi] - s2[lo]) - 2 * m * (s1[hi] - s1[lo]) + cnt * m**2
+    return float(max(np.min(inside + (k - cnt) * c2), 0.0))
+
+
+def pelt_mean_shift(
+    values, penalty: float, *, groups=None, min_size: int = 1, cap: float | None = None
+) -> list[int]:
     """Change points in the mean of a series, by PELT with a Gaussian (squared-error) cost.
 
     Parameters
@@ -164,6 +211,10 @@ def pelt_mean_shift(values, penalty: float, *, groups=None, min_size: int = 1) -
         a change point moves the means of the labels together.
     min_size : int, optional
         Fewest values in a segment [-]. 1 allows a single value to be a segment.
+    cap : float, optional
+        When given, the squared error of each value is capped at ``cap^2`` (the biweight loss,
+        :func:`biweight_cost`) [unit of values], so that a single odd day cannot buy a change
+        point of its own. None (default) is the plain squared error.
 
     Returns
     -------
@@ -174,11 +225,11 @@ def pelt_mean_shift(values, penalty: float, *, groups=None, min_size: int = 1) -
     Notes
     -----
     Minimises ``sum over segments of C(segment) + penalty * (number of change points)`` exactly,
-    with ``C`` the sum of squared deviations from the segment mean (per label). PELT [1]_ is
-    optimal partitioning with pruning: a candidate last change ``tau`` is dropped once
-    ``F(tau) + C(tau:t) > F(t)``, which is safe because splitting a segment never raises this
-    cost (the constant ``K`` of [1]_ is 0). Segment costs come from cumulative sums, so each
-    step costs O(number of candidates).
+    with ``C`` the sum of (capped) squared deviations from the segment mean, per label. PELT
+    [1]_ is optimal partitioning with pruning: a candidate last change ``tau`` is dropped once
+    ``F(tau) + C(tau:t) > F(t)``, which is safe because splitting a segment never raises either
+    cost (the constant ``K`` of [1]_ is 0). Squared-error costs come from cumulative sums, so a
+    step costs O(number of candidates); capped costs are computed segment by segment.
     """
     y = _as_float_array(values)
     n = len(y)
@@ -186,6 +237,8 @@ def pelt_mean_shift(values, penalty: float, *, groups=None, min_size: int = 1) -
         raise InputError(f"the penalty must be a positive number, got {penalty!r}", key="penalty")
     if int(min_size) != min_size or min_size < 1:
         raise InputError(f"min_size must be a whole number >= 1, got {min_size!r}", key="min_size")
+    if cap is not None and not (np.isfinite(cap) and cap > 0):
+        raise InputError(f"the cap must be a positive number, got {cap!r}", key="cap")
     min_size = int(min_size)
     if n < 2 * min_size:
         return []
@@ -197,8 +250,9 @@ def pelt_mean_shift(values, penalty: float, *, groups=None, min_size: int = 1) -
     c0 = np.vstack([zeros, np.cumsum(onehot, axis=0)])
     c1 = np.vstack([zeros, np.cumsum(onehot * y[:, None], axis=0)])
     c2 = np.vstack([zeros, np.cumsum(onehot * (y**2)[:, None], axis=0)])
+    members = [np.flatnonzero(codes == g) for g in range(k)]
 
-    def cost(starts: np.ndarray, end: int) -> np.ndarray:
+    def squared(starts: np.ndarray, end: int) -> np.ndarray:
         cnt = c0[end] - c0[starts]
         s1 = c1[end] - c1[starts]
         s2 = c2[end] - c2[starts]
@@ -206,6 +260,15 @@ def pelt_mean_shift(values, penalty: float, *, groups=None, min_size: int = 1) -
             sse = np.where(cnt > 0, s2 - s1**2 / np.where(cnt > 0, cnt, 1.0), 0.0)
         return np.maximum(sse.sum(axis=1), 0.0)
 
+    def capped(starts: np.ndarray, end: int) -> np.ndarray:
+        out = np.zeros(len(starts))
+        for i, s in enumerate(starts):
+            for idx in members:
+                sel = idx[(idx >= s) & (idx < end)]
+                out[i] += biweight_cost(y[sel], cap) if sel.size else 0.0
+        return out
+
+    cost = squared if cap is None else capped
     best = np.full(n + 1, np.inf)
     best[0] = 0.0
     last = np.zeros(n + 1, dtype=np.int64)

@@ -11,6 +11,7 @@ Other expectations are the true change points of seeded synthetic series.
 from __future__ import annotations
 
 import datetime as dt
+import itertools
 
 import numpy as np
 import pandas as pd
@@ -20,6 +21,7 @@ from scipy import stats
 
 from schedcheck.changes import (
     before_after,
+    biweight_cost,
     mean_shift_penalty,
     pelt_mean_shift,
     robust_sigma,
@@ -126,6 +128,64 @@ def test_weekly_pattern_is_not_a_change_but_a_real_shift_is(seed):
     # A unit that goes 24/7 on day 31 (a Thursday): found on that day.
     y, types = weekly_series(56, 31, (0.2, 0.0), (14.0, 24.0), noise=0.3, seed=seed)
     assert pelt_mean_shift(y, mean_shift_penalty(y, types), groups=types, min_size=3) == [31]
+
+
+# --- the capped (biweight) cost: one odd day is not a change --------------------------------
+
+
+@pytest.mark.parametrize("seed", range(5))
+def test_biweight_cost_is_the_minimum_over_a_dense_grid(seed):
+    # Check by brute force: the capped cost evaluated on 20001 levels between the extremes.
+    rng = np.random.default_rng(seed)
+    v = np.r_[rng.normal(0.0, 2.0, 12), [9.0, 11.0]]
+    cap = 1.5
+    grid = np.linspace(v.min() - 1, v.max() + 1, 20001)
+    ref = np.minimum((v[None, :] - grid[:, None]) ** 2, cap**2).sum(axis=1).min()
+    assert biweight_cost(v, cap) == pytest.approx(ref, abs=1e-3)
+    assert biweight_cost(v, 1e6) == pytest.approx(((v - v.mean()) ** 2).sum())
+
+
+def _best_partition_by_enumeration(y, pen, groups, min_size, cap):
+    n, best = len(y), (np.inf, None)
+    for r in range(n):
+        for pts in itertools.combinations(range(1, n), r):
+            e = [0, *pts, n]
+            if min(np.diff(e)) < min_size:
+                continue
+            c = pen * r + sum(
+                biweight_cost(y[a:b][groups[a:b] == g], cap)
+                for a, b in zip(e[:-1], e[1:], strict=True)
+                for g in set(groups)
+            )
+            if c < best[0] - 1e-12:
+                best = (c, list(pts))
+    return best[1]
+
+
+@pytest.mark.parametrize("seed", range(8))
+def test_capped_pelt_finds_the_optimal_partition(seed):
+    # Check against enumerating every segmentation of a short series (PELT must be exact).
+    rng = np.random.default_rng(seed)
+    n = 9
+    y = rng.normal(0.0, 1.0, n) + np.r_[np.zeros(4), np.full(5, 3.0)]
+    groups = rng.integers(0, 2, n)
+    got = pelt_mean_shift(y, 2.0, groups=groups, min_size=2, cap=1.5)
+    assert got == _best_partition_by_enumeration(y, 2.0, groups, 2, 1.5)
+
+
+@pytest.mark.parametrize("seed", range(2))
+def test_single_odd_days_are_not_changes_with_the_cap(seed):
+    # A clean unit that ran on a few holidays and one night: days, not a new pattern.
+    rng = np.random.default_rng(seed)
+    y = np.abs(rng.normal(0.0, 0.1, 56))
+    y[[10, 25, 26, 40]] = [7.0, 11.0, 10.0, 7.0]
+    types = np.where(np.arange(56) % 7 >= 5, "weekend", "weekday")
+    sigma = max(robust_sigma(y, types), 0.25)
+    pen = mean_shift_penalty(y, types, sigma_floor=0.25)
+    assert pelt_mean_shift(y, pen, groups=types, min_size=3, cap=3 * sigma) == []
+    assert pelt_mean_shift(y, pen, groups=types, min_size=3) != []  # the plain cost bites
+    y[33:] += 12.0  # ... while a lasting change is still found
+    assert pelt_mean_shift(y, pen, groups=types, min_size=3, cap=3 * sigma) == [33]
 
 
 def test_robust_sigma_of_gaussian_noise_is_near_its_standard_deviation():
