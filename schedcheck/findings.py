@@ -35,8 +35,9 @@ finding, not ten symptoms):
    edge jitter and ignored. An ISO week with overruns of one kind on at least
    ``DEFAULT_REPEAT_DAYS`` local dates is one finding, with the dates listed.
 5. **missed**. Occupied time not running, in one stretch, with at least ``DEFAULT_MIN_MISSED``
-   of it known to be off (no-data time is never counted as off) is one finding. Heat wheels
-   run only when heat recovery pays, so they never raise it.
+   of it known to be off (no-data time is never counted as off) is one finding. Only fans
+   (supply, exhaust, return) raise it: a heat wheel runs only when heat recovery pays, and a
+   component of role ``other`` is not known to be required.
 6. **short_cycling**. More than ``DEFAULT_MAX_STARTS_PER_DAY`` starts (a run that follows a
    known stop) in one local day is one finding for that day.
 
@@ -213,7 +214,7 @@ def find_issues(
     ----------
     component : Component
         The component; its ``key`` names the findings and its ``role`` decides whether
-        occupied time off is a fault (not for ``heat_wheel``).
+        occupied time off is a fault (fans only).
     states : DataFrame
         Run-state intervals ``start, end, state, level`` (UTC) covering the window; ``state`` is
         ``run``, ``off`` or ``no_data``.

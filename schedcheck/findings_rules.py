@@ -14,6 +14,7 @@ import numpy as np
 import pandas as pd
 
 from schedcheck.intervals import NS_PER_H, Intervals, from_ns
+from schedcheck.site import FAN_ROLES
 from schedcheck.window import local_midnight
 
 NS_PER_MIN = 60 * 1_000_000_000
@@ -340,7 +341,7 @@ def overruns(ctx: Context) -> list[Found]:
 # -- missed ---------------------------------------------------------------------------------
 def missed(ctx: Context) -> list[Found]:
     """Occupied time off (known, not no data) for the minimum or longer: one per stretch."""
-    if ctx.role == "heat_wheel":
+    if ctx.role not in FAN_ROLES:   # only fans must run through every occupied period
         return []
     out = []
     stretches = ctx.occupied - ctx.run - ctx.explained

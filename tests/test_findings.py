@@ -253,6 +253,23 @@ def test_two_early_starts_in_a_week_are_not_a_habit():
     assert len(found) == 0
 
 
+def test_repeat_days_setting_makes_two_early_starts_a_finding():
+    runs = sorted(daily_runs("2026-03-02", "2026-03-03", start="04:30")
+                  + daily_runs("2026-03-04", "2026-03-06"))
+    found = run(states_frame(runs, "2026-03-02", "2026-03-08"),
+                office_schedule("2026-03-02", "2026-03-08"), "2026-03-02", "2026-03-08",
+                settings=FindingSettings(repeat_days=2, min_overrun=pd.Timedelta("5min")))
+    assert_one(found, "early_start", "2026-03-02", hours=1.0)
+
+
+def test_early_starts_a_few_minutes_over_are_edge_jitter():
+    # 04:55 starts are 5 min before the allowance: below the 10 min minimum overrun
+    runs = daily_runs("2026-03-02", "2026-03-06", start="04:55")
+    found = run(states_frame(runs, "2026-03-02", "2026-03-08"),
+                office_schedule("2026-03-02", "2026-03-08"), "2026-03-02", "2026-03-08")
+    assert len(found) == 0
+
+
 def test_repeated_late_stops_in_one_week():
     runs = sorted(daily_runs("2026-03-02", "2026-03-04", stop="18:10")
                   + daily_runs("2026-03-05", "2026-03-06"))
@@ -289,6 +306,8 @@ def test_heat_wheel_gives_no_missed():
     st = states_frame(runs, "2026-03-02", "2026-03-08")
     sched = office_schedule("2026-03-02", "2026-03-08")
     assert len(run(st, sched, "2026-03-02", "2026-03-08", component=WHEEL)) == 0
+    other = Component("pump", "AHU-9", "other", "S-3", 1.0, 1.0)
+    assert len(run(st, sched, "2026-03-02", "2026-03-08", component=other)) == 0
     assert set(run(st, sched, "2026-03-02", "2026-03-08")["kind"]) == {"missed"}
 
 
@@ -315,16 +334,17 @@ def test_dst_change_dates_match_the_eu_rule():
     assert ZoneInfo(TZ).utcoffset(dt.datetime(2026, 3, 29, 12)) == dt.timedelta(hours=2)
 
 
-def _clock_runs(first, last, *, stuck_from=None, offset="UTC+01:00"):
-    """Weekday runs 06:00-17:05 by a controller clock; from ``stuck_from`` the controller keeps
-    UTC+1 while local time moves to UTC+2, so in local time it runs an hour later."""
+def _clock_runs(first, last, *, stuck_from=None, clock="Etc/GMT-1"):
+    """Weekday runs 06:00-17:05 by a controller clock. From ``stuck_from`` on the controller
+    keeps the fixed zone ``clock`` (POSIX sign: Etc/GMT-1 is UTC+1 all year) instead of
+    following local time, so its programme runs at shifted local times."""
     out = []
     for d in days(first, last):
         if d.weekday() >= 5:
             continue
         shift = pd.Timedelta(0)
         if stuck_from is not None and d >= stuck_from:
-            ctrl = pd.Timestamp(f"{d} 12:00", tz="Etc/GMT-1")
+            ctrl = pd.Timestamp(f"{d} 12:00", tz=clock)
             shift = ctrl.tz_convert(TZ).tz_localize(None) - ctrl.tz_localize(None)
         a = pd.Timestamp(f"{d} 06:00") + shift
         b = pd.Timestamp(f"{d} 17:05") + shift
@@ -456,3 +476,24 @@ def test_flat_battery_inside_a_continuous_run_keeps_one_finding():
     # 20:00 (50.5 h)
     row = assert_one(found, "continuous", "2026-03-02", hours=23 + 50.5)
     assert "with 51.0 h of no data in between" in row["detail"]
+
+
+def test_clock_kept_on_summer_time_after_the_autumn_change():
+    # controller stays on UTC+2 after 25 Oct 2026: from then on it runs an hour early
+    runs = _clock_runs("2026-10-01", "2026-11-20", stuck_from=dt.date(2026, 10, 25),
+                       clock="Etc/GMT-2")
+    found = run(states_frame(runs, "2026-10-01", "2026-11-22"),
+                office_schedule("2026-10-01", "2026-11-22"), "2026-10-01", "2026-11-22")
+    row = assert_one(found, "clock_offset", "2026-10-25")
+    assert "about 1 h earlier" in row["detail"] and "daylight saving time ended" in row["detail"]
+
+
+def test_clock_on_standard_time_all_year_is_one_finding_from_spring_to_autumn():
+    # a controller on UTC+1 all year is right in winter, an hour late all summer; the autumn
+    # change brings it back into line, which ends the spring finding and raises no new one
+    runs = _clock_runs("2026-03-02", "2026-11-20", stuck_from=dt.date(2026, 1, 1))
+    found = run(states_frame(runs, "2026-03-02", "2026-11-22"),
+                office_schedule("2026-03-02", "2026-11-22"), "2026-03-02", "2026-11-22")
+    row = assert_one(found, "clock_offset", "2026-03-29")
+    assert row["end"] < loc("2026-10-25 00:00")
+    assert row["end"] == loc("2026-10-23 18:05")   # the last Friday before the change
