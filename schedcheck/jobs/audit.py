@@ -52,23 +52,27 @@ def _as_dates(span, tz: str) -> tuple[dt.date, dt.date]:
     return whole_days_covered(pd.Timestamp(a), pd.Timestamp(b), tz)
 
 
-def _load_schedules(site: Site, start, end) -> dict[str, object]:
-    from schedcheck.inputs.calendar_files import read_calendar
+def _load_schedules(site: Site, first: dt.date, last: dt.date) -> dict[str, object]:
+    from schedcheck.inputs.calendar_files import read_checked_calendar
     from schedcheck.schedule import expand_unit_schedule
 
     cache: dict[Path, object] = {}
 
-    def cal(path: Path):
-        if path not in cache:
-            cache[path] = read_calendar(path)
-        return cache[path]
+    def cals(paths) -> list:
+        out = []
+        for p in paths:
+            if p not in cache:
+                cache[p] = read_checked_calendar(p)
+            out.append((p, cache[p]))
+        return out
 
     out = {}
     for unit in site.units:
         s = unit.schedule
         out[unit.id] = expand_unit_schedule(
-            unit, [cal(p) for p in s.occupied], [cal(p) for p in s.allowed],
-            site=site, start=start, end=end,
+            cals(s.occupied), cals(s.allowed), site.timezone, first, last,
+            early_start=s.early_start, late_stop=s.late_stop, holidays=site.holidays,
+            unit=unit.id, site_path=site.path,
         )
     return out
 
@@ -117,9 +121,10 @@ def audit_site(
         states.update(classify_unit(unit, readings.by_sensor, start, end,
                                     site.readings.max_gap, site.run_state))
     say("expanding the intended schedule")
-    schedules = _load_schedules(site, start, end)
+    schedules = _load_schedules(site, first, last)
     say("comparing and pricing")
-    bad = getattr(readings, "bad_rows", None)
+    bad = {"count": int(getattr(readings, "bad_rows_count", 0) or 0),
+           "examples": list(getattr(readings, "bad_rows_examples", []) or [])[:20]}
     result = run_audit(
         site, states, schedules, start, end, first_date=first, last_date=last,
         health=getattr(readings, "health", {}), bad_rows=_bad_rows(bad),

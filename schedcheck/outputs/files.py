@@ -133,16 +133,32 @@ def _component_summary(comp, result: AuditResult) -> dict:
 
 
 def _sensor_rows(result: AuditResult) -> list[dict]:
+    """Data health per sensor in the summary's field names."""
+    tz = result.site.timezone
     by_sensor: dict[str, list[str]] = {}
     for c in result.site.components:
         by_sensor.setdefault(c.sensor, []).append(c.key)
+    period_h = (result.end - result.start) / pd.Timedelta("1h")
     rows = []
     for sensor, h in sorted(result.health.items()):
-        d = _plain(h) if not isinstance(h, dict) else _plain(h)
-        d = d if isinstance(d, dict) else {"value": d}
-        d.setdefault("sensor", sensor)
-        d["component"] = ", ".join(by_sensor.get(sensor, []))
-        rows.append(d)
+        get = h.get if isinstance(h, dict) else (lambda k, d=None, h=h: getattr(h, k, d))
+        mi = get("median_interval", None)
+        gap_h = float(get("gap_hours", 0.0) or 0.0)
+        rows.append({
+            "sensor": sensor,
+            "component": get("component", None) or ", ".join(by_sensor.get(sensor, [])),
+            "first": local_iso(get("first", None), tz), "last": local_iso(get("last", None), tz),
+            "count": int(get("count", 0) or 0),
+            "median_interval_s": None if mi is None or pd.isna(mi)
+            else _r(pd.Timedelta(mi).total_seconds(), 1),
+            "gaps": int(get("gaps", 0) or 0), "gap_hours": _r(gap_h, HOURS_DECIMALS),
+            "duplicates": int(get("duplicates_exact", get("duplicates", 0)) or 0),
+            "conflicting": int(get("duplicates_conflicting", get("conflicting", 0)) or 0),
+            "out_of_order": int(get("out_of_order", 0) or 0),
+            "ambiguous_dropped": int(get("ambiguous_dropped", 0) or 0),
+            "bad_rows": int(get("bad_rows", 0) or 0),
+            "coverage": _r(max(0.0, 1.0 - gap_h / period_h), 4) if period_h > 0 else None,
+        })
     return rows
 
 
