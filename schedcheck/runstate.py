@@ -16,7 +16,8 @@ Steps, for each component (see ``docs/run-states.md`` for the user's view):
    transient (crest factor >= ``TRANSIENT_CREST``) counts as run.
 4. **Gaps.** Each reading stands for the time up to half-way to its neighbours. A silence
    longer than ``max_gap`` is ``no_data`` (half a reading period after the last reading to
-   half a period before the next) and no state is carried across it.
+   half a period before the next) and no state is carried across it. A silence between a
+   window edge and the nearest reading is bridged when it is no longer than ``max_gap``.
 5. **Minimum dwell.** A run shorter than ``min_run`` or a stop shorter than ``min_stop`` with
    known states on both sides is absorbed by its neighbours (runs first, then stops).
 
@@ -39,6 +40,9 @@ Defaults (each with its source):
   to each group's median when the groups are known (common practice, no source).
 * ``TRANSIENT_CREST`` = 2.5: steady running fans show crest factors of about 1.4-2 (sine
   sqrt(2); common practice, no source), start transients more.
+* ``GAP_EDGE`` = 0.5 %: a learned level is put in the middle of the gap between the top 0.5 %
+  of the group below and the bottom 0.5 % of the group above, so stray readings do not pull it
+  (common practice, no source).
 * ``CARRIED_SHARE`` = 0.95: a middle group is carried vibration when at least this share of its
   readings fall while a sibling moves and at most 1 - this share of the lowest group's
   (common practice, no source).
@@ -64,6 +68,7 @@ MIN_STOP = pd.Timedelta("3min")
 HYSTERESIS = 0.1          # [decades]
 TRANSIENT_CREST = 2.5     # [-]
 CARRIED_SHARE = 0.95      # [-]
+GAP_EDGE = 0.005          # group edges for the middle of the gap [-] (common practice, no source)
 RMS = ("x_rms", "y_rms", "z_rms")
 PEAK = ("x_peak", "y_peak", "z_peak")
 DISPLAY_BINS = 60         # histogram bins kept for pictures and summary.json
@@ -180,6 +185,10 @@ def default_floor(settings: RunStateSettings, level_unit: str) -> tuple[float, l
 
 
 # -- the on/off level ------------------------------------------------------------------------
+def _d(x: float) -> str:
+    return "over 1000" if x > 1000 else f"{x:.1f}"
+
+
 def _band(b: float, lo: float = np.nan, hi: float = np.nan) -> tuple[float, float]:
     """Hysteresis levels (log10) around ``b``: +-HYSTERESIS, at most a quarter of the way to the
     group medians ``lo`` / ``hi`` (log10)."""
@@ -190,6 +199,21 @@ def _band(b: float, lo: float = np.nan, hi: float = np.nan) -> tuple[float, floa
         h = min(h, 0.25 * (hi - b))
     h = max(h, 0.0)
     return b + h, b - h
+
+
+def gap_middle(L: np.ndarray, b: float, edge: float = GAP_EDGE) -> float:
+    """The middle of the empty gap around a group boundary ``b`` (log10 levels).
+
+    Otsu's level decides which readings are in which group, but it sits wherever the
+    between-class variance peaks, often close to the larger group. The level used is the
+    middle between the top of the group below (its ``1 - edge`` quantile) and the bottom of the
+    group above (its ``edge`` quantile); where those overlap, ``b`` itself.
+    """
+    below, above = L[L <= b], L[L > b]
+    if below.size == 0 or above.size == 0:
+        return b
+    top, bottom = np.quantile(below, 1 - edge), np.quantile(above, edge)
+    return float((top + bottom) / 2) if bottom > top else b
 
 
 def _moving_share(mask: np.ndarray, sib: np.ndarray | None) -> tuple[float, int]:
@@ -270,7 +294,7 @@ def choose_threshold(
         b, src = g.boundaries[0], "learned"
         lo_med, hi_med = med
         reason = (f"two level groups (medians {10**med[0]:.3g} and {10**med[1]:.3g}, "
-                  f"Ashman's D {g.separations[0]:.1f}); Otsu's level between them")
+                  f"Ashman's D {_d(g.separations[0])}); the level is in the middle of the gap")
         if med[1] <= F:
             b, src, lo_med, hi_med = F, "floor", med[1], np.nan
             reason = (f"both level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}) lie below "
@@ -312,12 +336,15 @@ def choose_threshold(
                         f"carried from a neighbour ({why}); counted as running. If it is carried, "
                         f"set `threshold` to about {10 ** ((med[1] + med[2]) / 2):.3g}")
         src = "learned"
+    if src == "learned":
+        b = gap_middle(L, b)
     on, off = _band(b, lo_med, hi_med)
     below, above = L[L <= b], L[L > b]
     sep = th.ashman_d(below, above)
     eff = th.otsu_effectiveness(L, b) if below.size and above.size else np.nan
     c, e = _display_histogram(L, [on, off])
-    return Threshold(float(10**b), src, sep, eff, float(10**on), float(10**off), c, e,
+    level = float(configured) if configured is not None else float(10**b)
+    return Threshold(level, src, sep, eff, float(10**on), float(10**off), c, e,
                      tuple(float(10**m) for m in med), reason, tuple(warn))
 
 
@@ -401,6 +428,11 @@ def _state_table(
         mid = t[:-1] + dt // 2
         a = np.concatenate([[t[0] - half], np.where(newseg[1:], t[1:] - half, mid)])
         b = np.concatenate([np.where(newseg[1:], t[:-1] + half, mid), [t[-1] + half]])
+        # a silence at a window edge no longer than max_gap is bridged like any other
+        if t[0] - s0 <= max_gap:
+            a[0] = min(a[0], s0)
+        if e0 - t[-1] <= max_gap:
+            b[-1] = max(b[-1], e0)
         transient = (pk / np.where(lv > 0, lv, np.nan)) >= TRANSIENT_CREST
         run = hysteresis_states(L, np.log10(thr.on_level), np.log10(thr.off_level), seg,
                                 np.nan_to_num(transient, nan=False).astype(bool))

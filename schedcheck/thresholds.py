@@ -229,16 +229,19 @@ def valley_ratio(values: np.ndarray, boundary: float, left: float, right: float)
     """
     v = np.asarray(values, dtype=float)
     sel = v[(v >= left - (boundary - left)) & (v <= right + (right - boundary))]
-    if sel.size == 0:
+    if sel.size == 0 or not left < right:
         return 1.0
-    counts, centres = level_histogram(sel, 128)
-    sm = np.convolve(counts, np.ones(SMOOTH_BINS) / SMOOTH_BINS, mode="same")
-    between = (centres >= left) & (centres <= right)
-    lo_side, hi_side = centres <= boundary, centres > boundary
-    if not between.any() or not lo_side.any() or not hi_side.any():
+    edges = np.linspace(sel.min(), sel.max(), 129)
+    if edges[-1] <= edges[0]:
         return 1.0
-    peak = min(sm[lo_side].max(), sm[hi_side].max())
-    return float(sm[between].min() / peak) if peak > 0 else 1.0
+    kernel = np.ones(SMOOTH_BINS) / SMOOTH_BINS
+    lo = np.convolve(np.histogram(sel[sel <= boundary], edges)[0], kernel, mode="same")
+    hi = np.convolve(np.histogram(sel[sel > boundary], edges)[0], kernel, mode="same")
+    peak = min(lo.max(), hi.max())
+    if peak <= 0:
+        return 1.0
+    k = np.clip(np.searchsorted(edges, [left, right], side="right") - 1, 0, 127)
+    return float((lo + hi)[k[0]:k[1] + 1].min() / peak)
 
 
 def _describe(v: np.ndarray, bounds: tuple[float, ...]):

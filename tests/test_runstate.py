@@ -1,0 +1,261 @@
+"""Run-state classifier: recovery of the generator's true intervals (synth.py)."""
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from schedcheck import runstate, synth
+from schedcheck.errors import InputError
+from schedcheck.site import Component, RunStateSettings, ScheduleSettings, Unit
+
+T0 = pd.Timestamp("2026-03-02T00:00Z")
+GAP = pd.Timedelta("5min")
+TZ = "Europe/Oslo"
+
+
+def comp(cid="supply", sensor="S1", role="supply_fan", threshold=None):
+    return Component(cid, "AHU-1", role, sensor, 5.0, 1.0, threshold)
+
+
+def unit(*components):
+    return Unit("AHU-1", "test unit", ScheduleSettings(), tuple(components))
+
+
+def quiet(truth, rng, start, end, **kw):
+    """Readings with no random scatter, no jitter, no losses: only the truth shows."""
+    args = dict(sensor="S1", rng=rng, start=start, end=end, jitter="0s", packet_loss=0.0,
+                duplicates=0.0, out_of_order=0.0, scatter=0.0)
+    args.update(kw)
+    return synth.readings_for_component(truth, **args)
+
+
+def assert_covers(tab, start, end):
+    assert tab["start"].iloc[0] == start and tab["end"].iloc[-1] == end
+    assert (tab["start"].iloc[1:].to_numpy() == tab["end"].iloc[:-1].to_numpy()).all()
+    assert (tab["state"].iloc[1:].to_numpy() != tab["state"].iloc[:-1].to_numpy()).all()
+    assert set(tab["state"]) <= {"run", "off", "no_data"}
+
+
+def test_exact_recovery_without_noise():
+    # truth changes at hh:mm:30 and readings come on the minute, so the half-way rule puts
+    # every boundary exactly on the truth's, including the edges of an outage
+    end = T0 + pd.Timedelta("7D")
+    half = pd.Timedelta("30s")
+    runs = [(T0 + pd.Timedelta(days=d, hours=6) - half, T0 + pd.Timedelta(days=d, hours=18) - half)
+            for d in range(5)]
+    runs.append((T0 + pd.Timedelta(days=5, hours=9, minutes=17) - half,
+                 T0 + pd.Timedelta(days=5, hours=9, minutes=29) - half))      # 12 min run
+    truth = synth.truth_from_runs(runs, T0, end)
+    outage = (T0 + pd.Timedelta(days=2, hours=10) - half,
+              T0 + pd.Timedelta(days=2, hours=11) - half)
+    r = quiet(truth, np.random.default_rng(0), T0, end, outages=[outage])
+    cs = runstate.classify_component(comp(), r, T0, end, GAP)
+    want = synth.truth_with_gaps(truth, [outage], T0, end)
+    got = cs.intervals
+    assert_covers(got, T0, end)
+    pd.testing.assert_frame_equal(got[["start", "end", "state"]], want, check_dtype=False)
+    assert cs.threshold.source == "learned"
+    assert cs.starts == 6        # the outage falls inside a run: a run after it is no start
+    assert got.loc[got.state == "run", "level"].to_numpy() == pytest.approx(1.0, rel=1e-3)
+    assert np.isnan(got.loc[got.state == "no_data", "level"]).all()
+
+
+def test_realistic_unit_meets_targets():
+    # noise, slow drift, lost packets, jitter, duplicates, out-of-order rows, start transients,
+    # a variable-speed supply fan, and a heat wheel shaken by the fans (three level groups)
+    rng = np.random.default_rng(42)
+    end = T0 + pd.Timedelta("42D")
+    truth = synth.weekday_truth(T0, end, TZ, rng, extra_runs=[
+        (pd.Timestamp("2026-03-14T20:00Z"), pd.Timestamp("2026-03-15T02:00Z"))])
+    wheel = synth.truth_from_runs(
+        [(a, a + pd.Timedelta("150min")) for a in truth.loc[truth.state == "run", "start"]],
+        T0, end)
+    outages = [(pd.Timestamp("2026-03-20T04:00Z"), pd.Timestamp("2026-03-20T11:00Z"))]
+    idx = pd.date_range(T0, end, freq="15min")
+    speed = pd.Series(rng.uniform(0.55, 1.0, idx.size), index=idx)
+    kw = dict(start=T0, end=end, rng=rng, level_drift=0.08, packet_loss=0.03)
+    readings = {
+        "S1": synth.readings_for_component(truth, sensor="S1", speed=speed, outages=outages,
+                                           running_level=2.5, **kw),
+        "S2": synth.readings_for_component(truth, sensor="S2", running_level=1.2, carried=truth,
+                                           carried_level=0.1, **kw),
+        "S3": synth.readings_for_component(wheel, sensor="S3", running_level=0.8, carried=truth,
+                                           carried_level=0.25, **kw),
+    }
+    u = unit(comp(), comp("exhaust", "S2", "exhaust_fan"), comp("wheel", "S3", "heat_wheel"))
+    res = runstate.classify_unit(u, readings, T0, end, GAP, RunStateSettings())
+    truths = {"supply": synth.truth_with_gaps(truth, outages, T0, end), "exhaust": truth,
+              "wheel": wheel}
+    for cid, want in truths.items():
+        cs = res[f"AHU-1/{cid}"]
+        assert_covers(cs.intervals, T0, end)
+        score = synth.score_states(want, cs.intervals, T0, end)
+        assert score["known_share_correct"] >= 0.995, (cid, score)
+        assert score["unmatched"] == [], (cid, score)
+        assert score["max_error"] <= pd.Timedelta("2min")
+        assert cs.threshold.source == "learned"
+    th = res["AHU-1/wheel"].threshold
+    assert len(th.groups) == 3 and "carried" in th.reason
+    assert th.level > 0.25           # above the carried group, below the wheel's own running
+    # the outage shows as no data, about where it was
+    nd = res["AHU-1/supply"].intervals.query("state == 'no_data'")
+    assert len(nd) == 1
+    assert abs(nd["start"].iloc[0] - outages[0][0]) <= pd.Timedelta("2min")
+
+
+@pytest.mark.parametrize("vfd", [False, True])
+def test_never_stopping_unit_is_100_percent_running(vfd):
+    rng = np.random.default_rng(7)
+    end = T0 + pd.Timedelta("21D")
+    truth = synth.truth_from_runs([(T0, end)], T0, end)
+    speed = None
+    if vfd:   # day speed 100 %, night speed 60 %: two level groups, both running
+        idx = pd.date_range(T0, end, freq="12h")
+        speed = pd.Series(np.tile([1.0, 0.6], idx.size // 2 + 1)[: idx.size], index=idx)
+    r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=T0, end=end, speed=speed)
+    cs = runstate.classify_component(comp(), r, T0, end, GAP)
+    assert cs.threshold.source == "floor"
+    assert cs.run_share == 1.0 and cs.starts == 0
+    assert set(cs.intervals["state"]) == {"run"}
+    if vfd:
+        assert "two running levels" in cs.threshold.reason and cs.threshold.warnings
+
+
+def test_never_starting_unit_is_0_percent_running():
+    rng = np.random.default_rng(8)
+    end = T0 + pd.Timedelta("14D")
+    truth = synth.truth_from_runs([], T0, end)
+    r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=T0, end=end)
+    cs = runstate.classify_component(comp(), r, T0, end, GAP)
+    assert cs.threshold.source == "floor" and cs.run_share == 0.0 and cs.starts == 0
+
+
+def test_short_real_stop_of_a_continuous_fan_is_found_against_the_floor():
+    rng = np.random.default_rng(9)
+    end = T0 + pd.Timedelta("60D")
+    stop = (T0 + pd.Timedelta("20D 10h"), T0 + pd.Timedelta("20D 10h40min"))
+    truth = synth.truth_from_runs([(T0, stop[0]), (stop[1], end)], T0, end)
+    r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=T0, end=end)
+    cs = runstate.classify_component(comp(), r, T0, end, GAP)
+    assert cs.threshold.source == "floor"        # 40 of 86,400 minutes: not a level group
+    off = cs.intervals.query("state == 'off'")
+    assert len(off) == 1 and cs.starts == 1
+    assert abs(off["start"].iloc[0] - stop[0]) <= pd.Timedelta("2min")
+    assert abs(off["end"].iloc[0] - stop[1]) <= pd.Timedelta("2min")
+
+
+def test_gap_is_no_data_and_state_is_not_carried_across():
+    end = T0 + pd.Timedelta("3D")
+    rng = np.random.default_rng(10)
+    truth = synth.weekday_truth(T0, end, TZ, rng, scatter="0min")
+    r = quiet(truth, rng, T0, end)
+    r = r.set_index("timestamp")
+    # a 20-minute silence while running, and after it readings just below the learned level
+    # but above the off level would have kept "run" had the state been carried across
+    g0, g1 = pd.Timestamp("2026-03-03T10:00Z"), pd.Timestamp("2026-03-03T10:20Z")
+    r = r[(r.index < g0) | (r.index >= g1)].copy()
+    first = runstate.classify_component(comp(), r.reset_index(), T0, end, GAP).threshold
+    lvl = (first.level * 0.97) / np.sqrt(3)           # between off_level and level
+    after = (r.index >= g1) & (r.index < g1 + pd.Timedelta("10min"))
+    r.loc[after, ["x_rms", "y_rms", "z_rms"]] = lvl
+    r.loc[after, ["x_peak", "y_peak", "z_peak"]] = 1.5 * lvl      # no start transient either
+    cs = runstate.classify_component(comp(), r.reset_index(), T0, end, GAP)
+    tab = cs.intervals
+    nd = tab.query("state == 'no_data'")
+    assert len(nd) == 1
+    assert nd["start"].iloc[0] == g0 - pd.Timedelta("30s")     # half a period after the last
+    assert nd["end"].iloc[0] == g1 - pd.Timedelta("30s")       # half a period before the next
+    nxt = tab.iloc[nd.index[0] + 1]
+    assert nxt["state"] == "off"                                # judged on its own level
+    assert first.off_level < first.level * 0.97 < first.on_level
+
+
+def test_short_gap_is_bridged():
+    end = T0 + pd.Timedelta("2D")
+    rng = np.random.default_rng(11)
+    truth = synth.weekday_truth(T0, end, TZ, rng)
+    r = quiet(truth, rng, T0, end)
+    ts = r["timestamp"]
+    r = r[~((ts >= pd.Timestamp("2026-03-02T11:00Z")) & (ts < pd.Timestamp("2026-03-02T11:04Z")))]
+    cs = runstate.classify_component(comp(), r, T0, end, GAP)
+    assert "no_data" not in set(cs.intervals["state"])
+
+
+def test_single_odd_readings_neither_start_nor_stop_a_fan():
+    end = T0 + pd.Timedelta("7D")
+    rng = np.random.default_rng(12)
+    truth = synth.weekday_truth(T0, end, TZ, rng)
+    r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=T0, end=end)
+    base = runstate.classify_component(comp(), r, T0, end, GAP)
+    r = r.sort_values("timestamp").reset_index(drop=True)
+    cols = ["x_rms", "y_rms", "z_rms"]
+    state = synth._state_at(truth, synth.to_ns(r["timestamp"]))
+    night = np.flatnonzero(state == "off")[500:5000:700]
+    day = np.flatnonzero(state == "run")[300:3000:500]
+    r.loc[night, cols] = 3.0                      # a door slam at night
+    r.loc[night[:3] + 1, cols] = 3.0              # ... some two readings long
+    r.loc[day, cols] = 0.01                       # a dropped reading value by day
+    cs = runstate.classify_component(comp(), r, T0, end, GAP)
+    assert cs.starts == base.starts
+    assert cs.run_share == pytest.approx(base.run_share, abs=1e-3)
+
+
+def test_short_cycling_runs_are_kept():
+    # 10-minute runs every hour are real (a fault to report), not noise
+    end = T0 + pd.Timedelta("3D")
+    runs = [(T0 + pd.Timedelta(hours=h), T0 + pd.Timedelta(hours=h, minutes=10))
+            for h in range(72)]
+    truth = synth.truth_from_runs(runs, T0, end)
+    r = synth.readings_for_component(truth, sensor="S1", rng=np.random.default_rng(13),
+                                     start=T0, end=end)
+    cs = runstate.classify_component(comp(), r, T0, end, GAP)
+    assert cs.starts == 71
+    # (the share of minutes right is not the figure here: with one reading a minute each of
+    # the 143 changes is placed within half a minute, about 1 % of these 4,320 minutes)
+    score = synth.score_states(truth, cs.intervals, T0, end)
+    assert score["unmatched"] == [] and score["max_error"] <= pd.Timedelta("2min")
+
+
+def test_configured_threshold_wins():
+    end = T0 + pd.Timedelta("7D")
+    rng = np.random.default_rng(14)
+    truth = synth.weekday_truth(T0, end, TZ, rng)
+    r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=T0, end=end)
+    cs = runstate.classify_component(comp(threshold=5.0), r, T0, end, GAP)
+    assert cs.threshold.source == "configured" and cs.threshold.level == 5.0
+    assert cs.run_share == 0.0            # every running level (about 1.0) is below 5
+    cs = runstate.classify_component(comp(threshold=0.3), r, T0, end, GAP)
+    assert cs.threshold.source == "configured" and cs.threshold.separation > 10
+    assert synth.score_states(truth, cs.intervals, T0, end)["known_share_correct"] > 0.995
+
+
+def test_three_groups_without_siblings_warns_and_points_at_threshold():
+    rng = np.random.default_rng(15)
+    end = T0 + pd.Timedelta("14D")
+    truth = synth.weekday_truth(T0, end, TZ, rng)
+    wheel = synth.truth_from_runs(
+        [(a, a + pd.Timedelta("3h")) for a in truth.loc[truth.state == "run", "start"]], T0, end)
+    r = synth.readings_for_component(wheel, sensor="S3", rng=rng, start=T0, end=end,
+                                     running_level=0.8, carried=truth, carried_level=0.25)
+    res = runstate.classify_unit(unit(comp("wheel", "S3", "heat_wheel")), {"S3": r}, T0, end, GAP)
+    th = res["AHU-1/wheel"].threshold
+    assert len(th.groups) == 3
+    assert any("`threshold`" in w for w in th.warnings)
+
+
+def test_missing_sensor_is_all_no_data_and_bad_columns_are_refused():
+    end = T0 + pd.Timedelta("1D")
+    res = runstate.classify_unit(unit(comp()), {}, T0, end, GAP)
+    cs = res["AHU-1/supply"]
+    assert list(cs.intervals["state"]) == ["no_data"] and np.isnan(cs.run_share)
+    assert any("no readings" in w for w in cs.warnings)
+    bad = pd.DataFrame({"timestamp": [T0], "temperature": [20.0]})
+    with pytest.raises(InputError, match="S1.*RMS"):
+        runstate.classify_unit(unit(comp()), {"S1": bad}, T0, end, GAP)
+
+
+def test_floor_default_follows_the_reading_unit():
+    assert runstate.default_floor(RunStateSettings(), "mm/s") == (0.2, [])
+    assert runstate.default_floor(RunStateSettings(floor=0.5), "g") == (0.5, [])
+    value, warnings = runstate.default_floor(RunStateSettings(), "furlongs")
+    assert value == 0.2 and "floor" in warnings[0]
