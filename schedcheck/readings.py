@@ -197,8 +197,11 @@ def describe_time(raw_value, code: int, tz: str) -> str:
         return (f"local time {text!r} does not exist in {tz} (the clocks skip that hour in "
                 "spring), so this row cannot be right")
     if code == EPOCH_RANGE_BAD:
-        return (f"timestamp {text!r} read as epoch seconds is outside 2000-2100 (milliseconds? "
-                "divide by 1000)")
+        try:
+            hint = " (milliseconds? divide by 1000)" if float(text) >= EPOCH_RANGE[1] else ""
+        except ValueError:
+            hint = ""
+        return f"timestamp {text!r} read as epoch seconds is outside 2000-2100{hint}"
     return (f"timestamp {text!r} is not a date and time (ISO 8601 with Z or an offset, or "
             "epoch seconds)")
 
