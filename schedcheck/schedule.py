@@ -151,6 +151,12 @@ def _allowance_labels(allowance: Intervals, occupied: Intervals, early, late) ->
     return out
 
 
+def _clipped_labels(clipped: Intervals, full: Intervals, labels: list[str]) -> list[str]:
+    """Labels of ``full``'s intervals carried over to their clipped parts."""
+    k = np.searchsorted(full.starts, clipped.starts, side="right") - 1
+    return [labels[i] for i in k.tolist()]
+
+
 def _frame(iv: Intervals, kind: str, sources: list[str]) -> pd.DataFrame:
     f = iv.to_frame()
     f["kind"] = kind
@@ -225,7 +231,8 @@ def expand_unit_schedule(
     occ_c, allow_c, alw_c = occ.clip(w0, w1), allowance.clip(w0, w1), allowed_iv.clip(w0, w1)
     frames = [
         _frame(occ_c, "occupied", _label_merged(occ_c, _clip_pieces(pieces, w0, w1))),
-        _frame(allow_c, "allowance", _allowance_labels(allow_c, occ, early, late)),
+        _frame(allow_c, "allowance", _clipped_labels(
+            allow_c, allowance, _allowance_labels(allowance, occ, early, late))),
         _frame(alw_c, "allowed", _label_merged(alw_c, _clip_pieces(alw_events, w0, w1))),
     ]
     intervals = pd.concat(frames, ignore_index=True)

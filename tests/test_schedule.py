@@ -1,0 +1,171 @@
+"""schedcheck.schedule: union, days off, allowances, allowed windows, priorities, window edges."""
+
+from __future__ import annotations
+
+import datetime as dt
+
+import icalendar
+import pandas as pd
+import pytest
+
+from schedcheck.intervals import Intervals
+from schedcheck.schedule import UnitSchedule, expand_unit_schedule
+from schedcheck.site import HolidaySettings
+
+OSLO = "Europe/Oslo"
+D = dt.date
+WEEKDAYS = ("SUMMARY:Offices\nDTSTART;TZID=Europe/Oslo:20260302T070000\n"
+            "DTEND;TZID=Europe/Oslo:20260302T170000\nRRULE:FREQ=WEEKLY;BYDAY=MO,TU,WE,TH,FR")
+
+
+def cal(*events: str) -> icalendar.Calendar:
+    text = "BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//schedcheck tests//EN\r\n"
+    for i, body in enumerate(events):
+        text += f"BEGIN:VEVENT\r\nUID:ev{i}@example.org\r\n"
+        text += body.strip().replace("\n", "\r\n") + "\r\nEND:VEVENT\r\n"
+    return icalendar.Calendar.from_ical(text + "END:VCALENDAR\r\n")
+
+
+def rows(s: UnitSchedule, kind: str | None = None) -> list[tuple[str, str, str, str]]:
+    f = s.intervals if kind is None else s.intervals[s.intervals["kind"] == kind]
+    return [(a.tz_convert(OSLO).strftime("%m-%d %H:%M"), b.tz_convert(OSLO).strftime("%m-%d %H:%M"),
+             k, src) for a, b, k, src in zip(f["start"], f["end"], f["kind"], f["source"],
+                                             strict=True)]
+
+
+MARCH_2 = D(2026, 3, 2)
+
+
+def expand(occupied, allowed=(), first=MARCH_2, last=MARCH_2, **kw) -> UnitSchedule:
+    return expand_unit_schedule([("occ.ics", c) for c in occupied],
+                                [("allowed.ics", c) for c in allowed], OSLO, first, last, **kw)
+
+
+def assert_disjoint_and_sorted(s: UnitSchedule) -> None:
+    f = s.intervals
+    assert list(f.columns) == ["start", "end", "kind", "source"]
+    assert str(f["start"].dtype) == "datetime64[ns, UTC]"
+    assert (f["end"] > f["start"]).all()
+    assert f["start"].is_monotonic_increasing
+    assert (f["start"].iloc[1:].to_numpy() >= f["end"].iloc[:-1].to_numpy()).all()
+
+
+def test_overlapping_events_are_unioned_with_both_sources():
+    c = cal(WEEKDAYS, "SUMMARY:Canteen\nDTSTART;TZID=Europe/Oslo:20260302T100000\n"
+            "DTEND;TZID=Europe/Oslo:20260302T190000")
+    s = expand([c])
+    assert rows(s) == [("03-02 07:00", "03-02 19:00", "occupied", "Offices; Canteen")]
+    assert_disjoint_and_sorted(s)
+
+
+def test_allowances_after_union_and_allowed_window_minus_both():
+    night = cal("SUMMARY:Night purge\nDTSTART;TZID=Europe/Oslo:20260302T030000\n"
+                "DTEND;TZID=Europe/Oslo:20260302T060000")
+    s = expand([cal(WEEKDAYS)], [night], early_start=pd.Timedelta("2h"),
+               late_stop=pd.Timedelta("30min"))
+    assert rows(s) == [
+        ("03-02 03:00", "03-02 05:00", "allowed", "Night purge"),
+        ("03-02 05:00", "03-02 07:00", "allowance", "early start 2h"),
+        ("03-02 07:00", "03-02 17:00", "occupied", "Offices"),
+        ("03-02 17:00", "03-02 17:30", "allowance", "late stop 30min"),
+    ]
+    assert_disjoint_and_sorted(s)
+
+
+def test_allowance_between_close_periods_is_one_piece_naming_both_rules():
+    c = cal("SUMMARY:Morning\nDTSTART;TZID=Europe/Oslo:20260302T070000\n"
+            "DTEND;TZID=Europe/Oslo:20260302T110000",
+            "SUMMARY:Evening\nDTSTART;TZID=Europe/Oslo:20260302T120000\n"
+            "DTEND;TZID=Europe/Oslo:20260302T150000")
+    s = expand([c], early_start=pd.Timedelta("1h"), late_stop=pd.Timedelta("30min"))
+    gap = ("03-02 11:00", "03-02 12:00", "allowance", "late stop 30min + early start 1h")
+    assert gap in rows(s)
+
+
+def test_public_holiday_removes_occupied_period_and_its_allowances():
+    # 2026-04-02 and 04-03 are Norwegian public holidays (Maundy Thursday, Good Friday)
+    s = expand([cal(WEEKDAYS)], first=D(2026, 4, 1), last=D(2026, 4, 3),
+               early_start=pd.Timedelta("1h"), holidays=HolidaySettings(country="NO"))
+    assert [r[0][:5] for r in rows(s, "occupied")] == ["04-01"]
+    assert rows(s, "allowance") == [("04-01 06:00", "04-01 07:00", "allowance", "early start 1h")]
+    assert s.days_off["date"].tolist() == [D(2026, 4, 2), D(2026, 4, 3)]
+
+
+def test_event_marked_open_on_holidays_stays():
+    duty = ("SUMMARY:Easter duty\nCATEGORIES:OPEN-ON-HOLIDAYS\n"
+            "DTSTART;TZID=Europe/Oslo:20260402T090000\nDTEND;TZID=Europe/Oslo:20260402T120000")
+    s = expand([cal(WEEKDAYS, duty)], first=D(2026, 4, 2), last=D(2026, 4, 2),
+               holidays=HolidaySettings(country="NO"))
+    assert rows(s) == [("04-02 09:00", "04-02 12:00", "occupied", "Easter duty")]
+
+
+def test_closure_dates_remove_periods_too():
+    s = expand([cal(WEEKDAYS)], first=D(2026, 3, 2), last=D(2026, 3, 4),
+               holidays=HolidaySettings(closed=((D(2026, 3, 3), D(2026, 3, 3)),)))
+    assert [r[0][:5] for r in rows(s, "occupied")] == ["03-02", "03-04"]
+    assert s.days_off["kind"].tolist() == ["closure"]
+
+
+def test_night_period_belongs_to_the_date_it_starts_on():
+    # 22:00-06:00 shifts; 2026-03-03 is a closure date
+    night = cal("SUMMARY:Night shift\nDTSTART;TZID=Europe/Oslo:20260302T220000\n"
+                "DTEND;TZID=Europe/Oslo:20260303T060000\nRRULE:FREQ=DAILY;COUNT=3")
+    s = expand([night], first=D(2026, 3, 2), last=D(2026, 3, 5),
+               holidays=HolidaySettings(closed=((D(2026, 3, 3), D(2026, 3, 3)),)))
+    # the shift starting on the 2nd runs into the closed 3rd and is kept whole; the one
+    # starting on the closed 3rd is removed whole; the one starting on the 4th stays
+    assert rows(s) == [("03-02 22:00", "03-03 06:00", "occupied", "Night shift"),
+                       ("03-04 22:00", "03-05 06:00", "occupied", "Night shift")]
+
+
+def test_multi_day_event_loses_whole_days_off_it_spans():
+    week = cal("SUMMARY:Trade fair\nDTSTART;TZID=Europe/Oslo:20260330T080000\n"
+               "DTEND;TZID=Europe/Oslo:20260403T180000")
+    s = expand([week], first=D(2026, 3, 30), last=D(2026, 4, 3),
+               holidays=HolidaySettings(country="NO"))
+    assert rows(s) == [("03-30 08:00", "04-02 00:00", "occupied", "Trade fair")]
+
+
+def test_allowance_reaches_into_the_window_from_a_period_after_it():
+    early = cal("SUMMARY:Early shift\nDTSTART;TZID=Europe/Oslo:20260303T003000\n"
+                "DTEND;TZID=Europe/Oslo:20260303T080000")
+    s = expand([early], first=D(2026, 3, 2), last=D(2026, 3, 2),
+               early_start=pd.Timedelta("2h"))
+    assert rows(s) == [("03-02 22:30", "03-03 00:00", "allowance", "early start 2h")]
+
+
+def test_allowed_windows_ignore_days_off():
+    night = cal("SUMMARY:Night purge\nDTSTART;TZID=Europe/Oslo:20260402T030000\n"
+                "DTEND;TZID=Europe/Oslo:20260402T060000")
+    s = expand([cal(WEEKDAYS)], [night], first=D(2026, 4, 2), last=D(2026, 4, 2),
+               holidays=HolidaySettings(country="NO"))
+    assert rows(s) == [("04-02 03:00", "04-02 06:00", "allowed", "Night purge")]
+
+
+def test_dst_day_hours():
+    # on 2026-03-29 (spring change) a 07:00-17:00 period is still 10 h, the local day 23 h
+    daily = cal("SUMMARY:Daily\nDTSTART;TZID=Europe/Oslo:20260328T070000\n"
+                "DTEND;TZID=Europe/Oslo:20260328T170000\nRRULE:FREQ=DAILY")
+    s = expand([daily], first=D(2026, 3, 29), last=D(2026, 3, 29),
+               early_start=pd.Timedelta("8h"), late_stop=pd.Timedelta("8h"))
+    assert s.of_kind("occupied").hours() == pytest.approx(10.0)
+    # allowance: 00:00-07:00 local (6 h of real time: 02:00-03:00 does not exist) + 17-24 (7 h)
+    assert s.of_kind("allowance").hours() == pytest.approx(13.0)
+
+
+def test_kinds_never_overlap_on_a_messy_month():
+    occ = cal(WEEKDAYS, "SUMMARY:Late\nDTSTART;TZID=Europe/Oslo:20260304T150000\n"
+              "DTEND;TZID=Europe/Oslo:20260305T010000\nRRULE:FREQ=WEEKLY;BYDAY=WE",
+              "SUMMARY:Saturday\nDTSTART:20260307T090000\nDTEND:20260307T140000\n"
+              "RRULE:FREQ=WEEKLY")
+    allowed = cal("SUMMARY:Purge\nDTSTART;TZID=Europe/Oslo:20260301T020000\n"
+                  "DTEND;TZID=Europe/Oslo:20260301T080000\nRRULE:FREQ=DAILY")
+    s = expand([occ], [allowed], first=D(2026, 3, 1), last=D(2026, 4, 30),
+               early_start=pd.Timedelta("3h"), late_stop=pd.Timedelta("1h"),
+               holidays=HolidaySettings(country="NO"))
+    assert_disjoint_and_sorted(s)
+    o, a, w = (s.of_kind(k) for k in ("occupied", "allowance", "allowed"))
+    assert (o & a).duration_ns() == 0 and (o & w).duration_ns() == 0
+    assert (a & w).duration_ns() == 0
+    total = Intervals.from_frame(s.intervals).duration_ns()
+    assert total == o.duration_ns() + a.duration_ns() + w.duration_ns()
