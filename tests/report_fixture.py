@@ -56,7 +56,7 @@ def write_fixture(outdir: Path, *, first: dt.date = dt.date(2026, 3, 23), days: 
     dates = np.array(local.date)
     day_idx = np.array([(d - first).days for d in dates])
     mod = local.hour.to_numpy() * 60 + local.minute.to_numpy()
-    wd = local.weekday.to_numpy()
+    wd = local.day_of_week.to_numpy()
     hol_dates = {}
     if holiday is not None:
         hol_dates[first + dt.timedelta(days=holiday[0])] = holiday[1]
@@ -118,11 +118,16 @@ def write_fixture(outdir: Path, *, first: dt.date = dt.date(2026, 3, 23), days: 
                                   "alw": (state == 1) & allow, "os": off_sched,
                                   "occ": occ, "missed": occ & (state == 0)})
             per = frame.groupby("day").sum() / 60.0
+            run_min = np.flatnonzero(state == 1)
+            run_day = day_idx[run_min]
+            rise = np.flatnonzero(np.diff(np.concatenate([[0], (state == 1).astype(int)])) == 1)
+            n_starts = np.bincount(day_idx[rise], minlength=days)
+            firsts = pd.Series(run_min).groupby(run_day).min()
+            lasts = pd.Series(run_min).groupby(run_day).max()
             for d_i, row in per.iterrows():
                 d = first + dt.timedelta(days=int(d_i))
-                mday = (day_idx == d_i) & (state == 1)
-                on_min = np.flatnonzero(mday)
-                starts = int((np.diff(np.concatenate([[0], mday.astype(int)])) == 1).sum())
+                on_min = ([firsts[d_i], lasts[d_i]] if d_i in firsts.index else [])
+                starts = int(n_starts[d_i])
                 daily_rows.append({
                     "component": key, "date": d.isoformat(), "weekday": d.strftime("%a"),
                     "day_off": hol_dates.get(d, ""), "period_h": float((day_idx == d_i).sum() / 60),

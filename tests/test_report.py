@@ -1,0 +1,185 @@
+"""Tests of the evidence pack (report.html): content, self-containment, escaping, size, CLI."""
+
+from __future__ import annotations
+
+import datetime as dt
+import json
+from html.parser import HTMLParser
+
+import pandas as pd
+import pytest
+from report_fixture import write_fixture
+
+from schedcheck.cli import main
+from schedcheck.outputs.report import render_report, report_context, write_report
+from schedcheck.outputs.saved import read_saved_audit
+
+HOSTILE_SITE = '<script>alert("site")</script> & Sons'
+HOSTILE_UNIT = "<img src=x onerror=alert(1)>"
+HOSTILE_COMP = 'fan"><b>'
+HOSTILE_SENSOR = "S-1' onmouseover='alert(2)"
+HOSTILE_HOLIDAY = 'Tom & Jerry\'s <iframe src="https://evil.invalid"></iframe> day'
+
+
+class _Tags(HTMLParser):
+    """Collects every start tag and attribute name of a page."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.tags: set[str] = set()
+        self.attrs: set[str] = set()
+
+    def handle_starttag(self, tag, attrs):
+        self.tags.add(tag)
+        self.attrs.update(name for name, _ in attrs)
+
+
+@pytest.fixture(scope="module")
+def outdir(tmp_path_factory):
+    return write_fixture(tmp_path_factory.mktemp("audit"))
+
+
+@pytest.fixture(scope="module")
+def page(outdir):
+    return write_report(outdir).read_text(encoding="utf-8")
+
+
+def test_page_names_site_window_and_every_component(outdir, page):
+    data = read_saved_audit(outdir)
+    assert "Harbour Street Offices" in page
+    assert "Mon 23 Mar 2026" in page and "Sun 05 Apr 2026" in page and "Europe/Oslo" in page
+    for comp in data.summary["components"]:
+        assert comp["id"] in page
+        assert comp["sensor"] in page
+    n = len(data.summary["components"])
+    assert page.count('class="chart carpet"') == n
+    assert page.count('class="chart bars"') == n
+    # the window holds the spring clock change (Europe/Oslo, 29 Mar 2026: EU rule, last Sunday
+    # of March, Directive 2000/84/EC) and the page says how it is drawn
+    assert "Sun 29 Mar 2026 (23 h)" in page
+
+
+def test_headline_figures_agree_with_the_daily_file(outdir, page):
+    data = read_saved_audit(outdir)
+    ctx = report_context(data)
+    off_h = data.daily["off_schedule_h"].sum()
+    assert ctx["totals"]["off_schedule_h"] == pytest.approx(off_h)
+    kwh = data.daily["off_schedule_kwh"].sum()
+    assert ctx["totals"]["off_schedule_kwh"] == pytest.approx(kwh, rel=1e-3)
+    assert f"<b>{off_h:,.1f} h</b>" in page
+    fans = data.daily[~data.daily["component"].str.endswith("wheel")]
+    assert ctx["totals"]["missed_h"] == pytest.approx(fans["missed_h"].sum())
+
+
+def test_findings_sorted_by_cost_with_local_times(outdir, page):
+    data = read_saved_audit(outdir)
+    rows = report_context(data)["findings"]
+    assert len(rows) == len(data.findings) > 0
+    costs = [r["cost"] for r in rows]
+    assert costs == sorted(costs, reverse=True)
+    # every finding's local time and sentence is on the page, in that order
+    positions = [page.index(r["when"]) for r in rows if page.count(r["when"]) == 1]
+    assert positions == sorted(positions)
+    top = data.findings.sort_values("cost", ascending=False).iloc[0]
+    local_start = top["start"].tz_convert("Europe/Oslo").strftime("%a %d %b %Y %H:%M")
+    assert rows[0]["when"].startswith(local_start)
+
+
+def test_asks_cautions_and_method_are_present(page):
+    assert "What to ask the controls contractor" in page
+    assert "holiday calendar" in page       # the holiday finding's question
+    for words in ("Ventilation minimums", "Freeze protection", "Smoke control",
+                  "licensed", "local codes", "affinity laws", "No data</b> means"):
+        assert words in page
+    assert "switch off" not in page.lower().replace("switched off or", "")
+
+
+def test_page_is_self_contained(page):
+    tags = _Tags()
+    tags.feed(page)
+    assert not tags.tags & {"script", "link", "iframe", "img", "object", "embed"}
+    assert not {a for a in tags.attrs if a.startswith("on")}
+    assert "src=" not in page and "@import" not in page and "url(http" not in page
+    assert page.replace('xmlns="http://www.w3.org/2000/svg"', "").count("http") == 0
+    assert "@media print" in page and "@page" in page
+
+
+def test_hostile_names_are_escaped(tmp_path):
+    units = [(f"AHU-{HOSTILE_UNIT}", HOSTILE_UNIT,
+              [(HOSTILE_COMP, "supply_fan", HOSTILE_SENSOR, 7.5)])]
+    write_fixture(tmp_path, days=5, units=units, site_name=HOSTILE_SITE,
+                  holiday=(1, HOSTILE_HOLIDAY))
+    page = write_report(tmp_path).read_text(encoding="utf-8")
+    tags = _Tags()
+    tags.feed(page)
+    assert not tags.tags & {"script", "img", "iframe"}
+    assert not {a for a in tags.attrs if a.startswith("on")}
+    for raw in (HOSTILE_SITE, HOSTILE_UNIT, HOSTILE_COMP, HOSTILE_SENSOR, HOSTILE_HOLIDAY):
+        assert raw not in page
+    assert "&lt;script&gt;alert(&#34;site&#34;)&lt;/script&gt; &amp; Sons" in page
+    assert "&lt;img src=x onerror=alert(1)&gt;" in page
+    assert "S-1&#39; onmouseover=&#39;alert(2)" in page
+    assert "Tom &amp; Jerry&#39;s &lt;iframe" in page
+
+
+def test_rendering_is_repeatable(outdir):
+    data = read_saved_audit(outdir)
+    assert render_report(data) == render_report(data)
+
+
+def test_no_findings_says_so(tmp_path):
+    write_fixture(tmp_path, days=3)
+    head = (tmp_path / "findings.csv").read_text().splitlines()[0]
+    (tmp_path / "findings.csv").write_text(head + "\n")
+    page = write_report(tmp_path).read_text(encoding="utf-8")
+    assert "No findings" in page
+
+
+def test_a_quarter_of_three_units_stays_small(tmp_path):
+    units = [(f"AHU-{i}", f"Wing {i}", [("supply", "supply_fan", f"S{i}1", 7.5),
+                                        ("exhaust", "exhaust_fan", f"S{i}2", 5.5)])
+             for i in (1, 2, 3)]
+    write_fixture(tmp_path, first=dt.date(2026, 1, 1), days=91, units=units)
+    size = write_report(tmp_path).stat().st_size
+    assert size < 2_000_000 * 91 / 365  # the year target (2 MB) pro rata
+
+
+def test_cli_report_rerenders_and_prints_path(outdir, capsys):
+    (outdir / "report.html").unlink()
+    assert main(["report", str(outdir)]) == 0
+    assert capsys.readouterr().out.strip() == str(outdir / "report.html")
+    assert (outdir / "report.html").stat().st_size > 10_000
+
+
+@pytest.mark.parametrize(("name", "damage", "expected"), [
+    ("runs.csv", None, "runs.csv: missing"),
+    ("summary.json", lambda t: t[:-20], "summary.json:"),
+    ("summary.json", lambda t: t.replace('"Europe/Oslo"', '"Mars/Olympus"', 1),
+     "summary.json: site.timezone: 'Mars/Olympus' is not an IANA time zone"),
+    ("daily.csv", lambda t: t.replace(",24.0,", ",lots,", 1), "daily.csv:2: period_h: 'lots'"),
+    ("runs.csv", lambda t: t.replace(",run,", ",spinning,", 1), "runs.csv:3: state: 'spinning'"),
+    ("schedule.csv", lambda t: t.replace("+01:00", "", 1), "schedule.csv:2: start:"),
+    ("findings.csv", lambda t: t.replace("kwh", "energy", 1), "findings.csv:1: header lacks"),
+])
+def test_bad_folder_is_one_line_error(tmp_path, capsys, name, damage, expected):
+    write_fixture(tmp_path, days=2)
+    path = tmp_path / name
+    if damage is None:
+        path.unlink()
+    else:
+        path.write_text(damage(path.read_text(encoding="utf-8")), encoding="utf-8")
+    assert main(["report", str(tmp_path)]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("error: ") and err.count("\n") == 1
+    assert expected in err
+
+
+def test_saved_audit_round_trips_instants(outdir):
+    data = read_saved_audit(outdir)
+    assert str(data.runs["start"].dtype) == "datetime64[ns, UTC]"
+    # runs.csv covers the window exactly, per component (contiguous, no overlap)
+    period = json.loads((outdir / "summary.json").read_text())["period"]
+    for _, g in data.runs.groupby("component"):
+        assert g["start"].iloc[0] == pd.Timestamp(period["start"])
+        assert g["end"].iloc[-1] == pd.Timestamp(period["end"])
+        assert (g["start"].iloc[1:].to_numpy() == g["end"].iloc[:-1].to_numpy()).all()
