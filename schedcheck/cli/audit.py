@@ -79,16 +79,18 @@ def audit(
     console = Console(width=None if sys.stdout.isatty() else 120, highlight=False)
     console.print(summary_table(result))
     for w in result.warnings[:10]:
-        console.print(f"warning: {w}", markup=False)
+        console.print(f"warning: {w}", markup=False, soft_wrap=True)
     if len(result.warnings) > 10:
         console.print(f"... and {len(result.warnings) - 10} more warnings in summary.json")
     console.print(f"{len(result.findings)} finding(s). Files written to {result.outdir}:",
-                  markup=False)
+                  markup=False, soft_wrap=True)
     for name in ("report.html", "summary.json", "daily.csv", "runs.csv", "findings.csv",
                  "findings.ics", "schedule.csv"):
         if name in result.files:
-            console.print(f"  {result.files[name]}", markup=False)
-    console.print("Energy figures are affinity-law estimates, not meter readings. Keep "
-                  "ventilation minimums, freeze protection and smoke control as designed when "
-                  "changing schedules.", markup=False)
+            console.print(f"  {result.files[name]}", markup=False, soft_wrap=True)
+    console.print("Energy figures are affinity-law estimates, not meter readings.",
+                  markup=False, soft_wrap=True)
+    console.print("Before changing schedules: keep ventilation minimums, freeze protection and "
+                  "smoke control as designed; defer to local codes.", markup=False,
+                  soft_wrap=True)
     return 0
