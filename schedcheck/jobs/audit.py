@@ -77,6 +77,45 @@ def _load_schedules(site: Site, first: dt.date, last: dt.date) -> dict[str, obje
     return out
 
 
+def audit_result(
+    site: Site,
+    first: dt.date | None = None,
+    last: dt.date | None = None,
+    skip_bad_rows: bool = False,
+    progress: Callable[[str], None] | None = None,
+) -> AuditResult:
+    """Audit a loaded site over local dates ``first`` .. ``last`` without writing any file.
+
+    The computing half of :func:`audit_site` (also used by ``schedcheck compare``); the
+    parameters are as there.
+    """
+    from schedcheck.jobs.common import load_readings
+    from schedcheck.runstate import classify_unit
+
+    say = progress or (lambda _msg: None)
+    first, last = audit_window(site, first, last)
+    start, end = day_window(first, last, site.timezone)
+    say(f"reading readings for {first} .. {last}")
+    readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows)
+    states: dict[str, object] = {}
+    for unit in site.units:
+        say(f"classifying run states of {unit.id}")
+        states.update(classify_unit(unit, readings.by_sensor, start, end,
+                                    site.readings.max_gap, site.run_state))
+    say("expanding the intended schedule")
+    schedules = _load_schedules(site, first, last)
+    say("comparing and pricing")
+    bad = {"count": int(getattr(readings, "bad_rows_count", 0) or 0),
+           "examples": list(getattr(readings, "bad_rows_examples", []) or [])[:20]}
+    result = run_audit(
+        site, states, schedules, start, end, first_date=first, last_date=last,
+        health=getattr(readings, "health", {}), bad_rows=_bad_rows(bad),
+        warnings=[str(w) for w in getattr(readings, "warnings", []) or []]
+        + [f"{u}: {w}" for u, s in schedules.items() for w in getattr(s, "warnings", []) or []],
+    )
+    return result
+
+
 def audit_site(
     site_path: str | Path,
     first: dt.date | None = None,
@@ -105,32 +144,12 @@ def audit_site(
     AuditResult
         With ``outdir`` and ``files`` (name -> path) set.
     """
-    from schedcheck.jobs.common import load_readings, open_site
+    from schedcheck.jobs.common import open_site
     from schedcheck.outputs.files import write_audit_files
-    from schedcheck.runstate import classify_unit
 
     say = progress or (lambda _msg: None)
     site = open_site(site_path)
-    first, last = audit_window(site, first, last)
-    start, end = day_window(first, last, site.timezone)
-    say(f"reading readings for {first} .. {last}")
-    readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows)
-    states: dict[str, object] = {}
-    for unit in site.units:
-        say(f"classifying run states of {unit.id}")
-        states.update(classify_unit(unit, readings.by_sensor, start, end,
-                                    site.readings.max_gap, site.run_state))
-    say("expanding the intended schedule")
-    schedules = _load_schedules(site, first, last)
-    say("comparing and pricing")
-    bad = {"count": int(getattr(readings, "bad_rows_count", 0) or 0),
-           "examples": list(getattr(readings, "bad_rows_examples", []) or [])[:20]}
-    result = run_audit(
-        site, states, schedules, start, end, first_date=first, last_date=last,
-        health=getattr(readings, "health", {}), bad_rows=_bad_rows(bad),
-        warnings=[str(w) for w in getattr(readings, "warnings", []) or []]
-        + [f"{u}: {w}" for u, s in schedules.items() for w in getattr(s, "warnings", []) or []],
-    )
+    result = audit_result(site, first, last, skip_bad_rows=skip_bad_rows, progress=say)
     outdir = Path(out) if out is not None else default_outdir(site)
     say(f"writing files to {outdir}")
     result.files = write_audit_files(result, outdir)
