@@ -497,3 +497,93 @@ def test_clock_on_standard_time_all_year_is_one_finding_from_spring_to_autumn():
     row = assert_one(found, "clock_offset", "2026-03-29")
     assert row["end"] < loc("2026-10-25 00:00")
     assert row["end"] == loc("2026-10-23 18:05")   # the last Friday before the change
+
+
+# -- the demo's planted faults ---------------------------------------------------------------
+# find_issues runs on the demo's TRUE run intervals (observed_truth: what truth/runs.csv holds,
+# no_data over the data gaps), not on classified states, so this checks the rules alone; the
+# end-to-end audit test lives with the audit. Expected kinds, components and dates come from
+# the generator's fault records (faults_document: what truth/faults.json holds), not from a
+# snapshot of this tool's output.
+@pytest.fixture(scope="module")
+def demo_findings(tmp_path_factory):
+    demo_mod = pytest.importorskip("schedcheck.demo")   # the demo generator's module
+    demo_files = pytest.importorskip("schedcheck.outputs.demo_files")
+    from schedcheck.jobs.schedule import unit_schedules
+    from schedcheck.site import load_site
+
+    demo = demo_mod.build_demo()
+    folder = tmp_path_factory.mktemp("demo")
+    (folder / "site.toml").write_text(demo.site_toml, encoding="utf-8")
+    (folder / "calendars").mkdir()
+    for name, text in demo.calendars.items():
+        (folder / "calendars" / name).write_text(text, encoding="utf-8", newline="")
+    # the site file's readings patterns must match a file; readings are not read here
+    (folder / "readings").mkdir()
+    (folder / "readings" / "unused.csv.gz").write_bytes(b"")
+    (folder / "readings" / "unused.parquet").write_bytes(b"")
+    site = load_site(folder / "site.toml")
+    schedules = unit_schedules(site, demo.first, demo.last)
+    truth = demo_mod.observed_truth(demo)
+    frames = []
+    for comp in site.components:
+        states = truth[truth["component"] == comp.key][["start", "end", "state"]]
+        sched = schedules[comp.unit]
+        frames.append(find_issues(
+            comp, states.reset_index(drop=True), sched.intervals, sched.days_off,
+            start=demo.start, end=demo.end, tz=site.timezone,
+            running_kw=comp.power_kw * comp.speed ** site.energy.exponent,
+            price=site.energy.price, co2_per_kwh=site.energy.co2_per_kwh,
+            currency=site.energy.currency, settings=site.findings))
+    found = pd.concat(frames, ignore_index=True)
+    return demo, demo_files.faults_document(demo), found, site
+
+
+def _utc(text: str) -> pd.Timestamp:
+    return pd.Timestamp(text).tz_convert("UTC")
+
+
+def test_every_planted_fault_is_found_with_its_kind_and_dates(demo_findings):
+    demo, doc, found, _ = demo_findings
+    dst = [d for d, _ in changes(demo.first, demo.last, doc["timezone"])]
+    assert doc["faults"], "the demo plants faults"
+    for fault in doc["faults"]:
+        mine = found[(found["component"] == fault["component"]) & (found["kind"] == fault["kind"])]
+        what = f"{fault['component']} {fault['kind']} {fault['dates']}"
+        if fault["kind"] == "clock_offset":
+            # one finding from the daylight-saving change; the truth records the first shifted
+            # working day, which must fall inside the finding
+            assert len(mine) == 1, what
+            row = mine.iloc[0]
+            assert dt.date.fromisoformat(row["date"]) in dst, what
+            assert row["date"] <= fault["dates"][0], what
+            assert row["start"] <= _utc(fault["episodes"][0][0]) < row["end"], what
+            continue
+        # one finding per planted date, on that date
+        assert sorted(mine["date"]) == sorted(fault["dates"]), what
+        if fault["kind"] in ("holiday", "night", "missed"):
+            # each planted episode's length, to within a few minutes of follower delay
+            planted = sorted((_utc(a), (_utc(b) - _utc(a)).total_seconds() / 3600)
+                             for a, b in fault["episodes"])
+            got = mine.sort_values("start")["hours"].tolist()
+            assert got == pytest.approx([h for _, h in planted], abs=0.1), what
+        if fault["kind"] == "continuous":
+            assert abs(mine.iloc[0]["start"] - _utc(fault["start"])) < pd.Timedelta("5min"), what
+
+
+def test_no_finding_without_a_planted_fault(demo_findings):
+    _, doc, found, _ = demo_findings
+    planted = {(f["component"], f["kind"]) for f in doc["faults"]}
+    extra = found[[(c, k) not in planted for c, k in zip(found["component"], found["kind"],
+                                                            strict=True)]]
+    assert len(extra) == 0, extra[["component", "kind", "date", "detail"]].to_string()
+    assert doc["clean_components"]
+    assert not set(found["component"]) & set(doc["clean_components"])
+
+
+def test_demo_findings_are_priced_from_their_hours(demo_findings):
+    _, _, found, site = demo_findings
+    priced = found[~found["kind"].isin(["missed", "short_cycling"])]
+    assert (priced["kwh"] > 0).all()
+    assert (found.loc[found["kind"] == "missed", "kwh"] == 0).all()
+    assert priced["cost"].to_numpy() == pytest.approx(site.energy.price * priced["kwh"].to_numpy())
