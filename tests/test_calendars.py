@@ -268,3 +268,48 @@ def test_window_ending_before_start_is_refused():
     with pytest.raises(InputError, match="before it starts"):
         expand_calendar(cal("DTSTART:20260302T070000\nDTEND:20260302T080000"), OSLO,
                         D(2026, 3, 2), D(2026, 3, 1))
+
+
+# -- calendar files (schedcheck.inputs.calendar_files) ---------------------------------------
+def test_read_calendar_errors_name_the_file(tmp_path):
+    from schedcheck.inputs.calendar_files import read_calendar
+
+    with pytest.raises(InputError, match="not found"):
+        read_calendar(tmp_path / "none.ics")
+    (tmp_path / "notes.ics").write_text("just some notes\n", encoding="utf-8")
+    with pytest.raises(InputError, match=r"notes\.ics: is not an iCalendar file"):
+        read_calendar(tmp_path / "notes.ics")
+    (tmp_path / "latin1.ics").write_bytes(b"BEGIN:VCALENDAR\nSUMMARY:Caf\xe9\nEND:VCALENDAR\n")
+    with pytest.raises(InputError, match=r"latin1\.ics:2: is not UTF-8"):
+        read_calendar(tmp_path / "latin1.ics")
+
+
+def test_read_calendar_merges_several_vcalendars(tmp_path):
+    from schedcheck.inputs.calendar_files import read_calendar
+
+    one = ("BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//t//EN\r\nBEGIN:VEVENT\r\nUID:{u}\r\n"
+           "SUMMARY:{u}\r\nDTSTART:20260302T070000\r\nDTEND:20260302T080000\r\nEND:VEVENT\r\n"
+           "END:VCALENDAR\r\n")
+    (tmp_path / "two.ics").write_text(one.format(u="a") + one.format(u="b"), encoding="utf-8")
+    c = read_calendar(tmp_path / "two.ics")
+    assert sorted(str(e["UID"]) for e in c.walk("VEVENT")) == ["a", "b"]
+
+
+def test_check_calendar_file_reports_every_problem_with_lines(tmp_path):
+    from schedcheck.inputs.calendar_files import check_calendar_file
+
+    text = ("BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//t//EN\r\n"
+            "BEGIN:VEVENT\r\nUID:a@x\r\nSUMMARY:A\r\nDTSTART:20260302T070000\r\n"
+            "DTEND:20260302T080000\r\nRRULE:FREQ=MINUTELY\r\nEND:VEVENT\r\n"
+            "BEGIN:VEVENT\r\nUID:b@x\r\nSUMMARY:B\r\nDTEND:20260302T080000\r\nEND:VEVENT\r\n"
+            "END:VCALENDAR\r\n")
+    path = tmp_path / "occ.ics"
+    path.write_text(text, encoding="utf-8")
+    problems = [str(p) for p in check_calendar_file(path, OSLO)]
+    assert problems[0].startswith(f"{path}:4: event 'A' (a@x): RRULE FREQ=MINUTELY")
+    assert problems[1].startswith(f"{path}:11: event 'B' (b@x): has no DTSTART")
+    good = tmp_path / "good.ics"
+    good.write_text(text.replace("FREQ=MINUTELY", "FREQ=DAILY").replace(
+        "DTEND:20260302T080000\r\nEND:VEVENT\r\nEND", "DTSTART:20260302T070000\r\n"
+        "DTEND:20260302T080000\r\nEND:VEVENT\r\nEND"), encoding="utf-8")
+    assert check_calendar_file(good, OSLO) == []
