@@ -314,3 +314,17 @@ def test_every_problem_is_reported_in_one_run(tmp_path):
     assert len(out) == len(keys)
     for k in keys:
         assert any(f": {k}: " in o for o in out), k
+
+
+def test_the_site_file_reference_names_every_key():
+    import dataclasses
+
+    from schedcheck import site as s
+
+    doc = (Path(__file__).resolve().parents[1] / "docs" / "site-file.md").read_text()
+    keys = [*s._SITE, *s._READINGS, *s._HOLIDAYS, *s._SCHEDULE, *s._ENERGY, *s._UNIT,
+            *s._COMPONENT, *s.READING_COLUMNS]
+    keys += [f.name for cls in (s.RunStateSettings, s.FindingSettings)
+             for f in dataclasses.fields(cls)]
+    missing = [k for k in keys if f"`{k}`" not in doc]
+    assert not missing, f"docs/site-file.md does not describe: {missing}"
