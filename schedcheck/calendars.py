@@ -7,9 +7,11 @@ overrides including ``RANGE=THISANDFUTURE``), using the recurring-ical-events li
 
 Time rules
 ----------
-- A DATE-TIME with ``TZID`` is read in that zone (an IANA name, or any name defined by a
-  VTIMEZONE in the same file); one ending in ``Z`` is UTC; a *floating* one (no zone) is read
-  in the site's zone.
+- A DATE-TIME with ``TZID`` is read in that zone (an IANA name, a Windows zone name, or any
+  name defined by a VTIMEZONE in the same file); one ending in ``Z`` is UTC; a *floating* one
+  (no zone) is read in the site's zone. A calendar with ``X-WR-TIMEZONE`` (written by some
+  calendar programs) is first converted to that zone, as those programs mean it: floating
+  and UTC times, and the rules built on them, then follow that zone's wall clock.
 - All-day events (DATE values) run from local midnight of the first date to local midnight of
   the DTEND date, which is exclusive (RFC 5545 section 3.6.1); without DTEND, one day.
 - Event ends follow the wall clock: an event from 07:00 to 17:00 ends at 17:00 local time on
@@ -286,6 +288,13 @@ def check_calendar(cal: icalendar.Calendar, *, path: str | Path | None = None) -
     scale = str(cal.get("CALSCALE", "GREGORIAN")).upper()
     if scale != "GREGORIAN":
         out.append(InputError(f"CALSCALE {scale} is not supported; only GREGORIAN", path=path))
+    xwr = cal.get("X-WR-TIMEZONE")
+    if xwr is not None:
+        try:
+            zoneinfo.ZoneInfo(str(xwr).strip())
+        except (zoneinfo.ZoneInfoNotFoundError, ValueError):
+            out.append(InputError(f"X-WR-TIMEZONE {str(xwr)!r} is not an IANA time zone",
+                                  path=path))
     for event in cal.walk("VEVENT"):
         for why in check_event(event):
             out.append(InputError(why, path=path, key=event_label(event)))

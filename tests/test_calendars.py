@@ -313,3 +313,23 @@ def test_check_calendar_file_reports_every_problem_with_lines(tmp_path):
         "DTEND:20260302T080000\r\nEND:VEVENT\r\nEND", "DTSTART:20260302T070000\r\n"
         "DTEND:20260302T080000\r\nEND:VEVENT\r\nEND"), encoding="utf-8")
     assert check_calendar_file(good, OSLO) == []
+
+
+def test_x_wr_timezone_rules_follow_that_zone_wall_clock():
+    # calendar programs that write X-WR-TIMEZONE mean UTC and floating times in that zone:
+    # 06:00Z on a winter Monday is 07:00 in Oslo, and stays 07:00 after the spring change
+    c = cal("DTSTART:20260302T060000Z\nDTEND:20260302T160000Z\nRRULE:FREQ=WEEKLY",
+            head="X-WR-TIMEZONE:Europe/Oslo\r\n")
+    res = expand_calendar(c, OSLO, D(2026, 3, 23), D(2026, 4, 5))
+    assert [s for s, _ in local_spans(res, OSLO)] == ["2026-03-23T07:00:00+01:00",
+                                                      "2026-03-30T07:00:00+02:00"]
+    bad = cal("DTSTART:20260302T060000Z\nDTEND:20260302T160000Z",
+              head="X-WR-TIMEZONE:Mars/Base\r\n")
+    assert "X-WR-TIMEZONE 'Mars/Base'" in str(check_calendar(bad, path="g.ics")[0])
+
+
+def test_windows_zone_name_is_understood():
+    c = cal("DTSTART;TZID=W. Europe Standard Time:20260302T070000\n"
+            "DTEND;TZID=W. Europe Standard Time:20260302T170000")
+    res = expand_calendar(c, OSLO, D(2026, 3, 2), D(2026, 3, 2))
+    assert local_spans(res, OSLO) == [("2026-03-02T07:00:00+01:00", "2026-03-02T17:00:00+01:00")]
