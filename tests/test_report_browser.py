@@ -1,0 +1,115 @@
+"""The report in a real browser: headless Chromium (Debian's ``chromium`` package).
+
+Opens report.html without any network, checks for console errors, uncaught exceptions and
+network requests, takes a screenshot that must not be blank, and prints to PDF on A4 and on
+Letter with a sensible page count. Skipped when Chromium is absent, unless ``CI`` is set (CI
+installs it, so there a missing browser is a failure).
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import os
+
+import numpy as np
+import pytest
+from chromium_cdp import Browser, chromium_path, pdf_pages, run_cli
+from report_fixture import write_fixture
+
+from schedcheck.outputs.report import write_report
+
+pytestmark = pytest.mark.browser
+
+A4_IN = (210 / 25.4, 297 / 25.4)   # ISO 216 A4, 210 x 297 mm
+LETTER_IN = (8.5, 11.0)            # ANSI Letter, 8.5 x 11 in
+
+
+@pytest.fixture(scope="module")
+def chromium():
+    path = chromium_path()
+    if path is None:
+        if os.environ.get("CI"):
+            pytest.fail("CI is set but /usr/bin/chromium is missing (.ci/run installs it)")
+        pytest.skip("headless Chromium is not installed (apt-get install chromium)")
+    return path
+
+
+@pytest.fixture(scope="module")
+def report(tmp_path_factory):
+    out = write_fixture(tmp_path_factory.mktemp("audit"))
+    return write_report(out)
+
+
+def _screenshot_pixels(path) -> np.ndarray:
+    from PIL import Image  # Pillow comes with scikit-image (test extra)
+
+    with Image.open(path) as im:
+        return np.asarray(im.convert("RGB"), dtype=float)
+
+
+def test_opens_without_errors_or_network(chromium, report, tmp_path):
+    with Browser(tmp_path / "profile") as browser:
+        load_ms = browser.open(report.as_uri())
+        assert browser.problems() == []
+        title = browser.call("Runtime.evaluate", {"expression": "document.title",
+                                                  "returnByValue": True})
+        n_svg = browser.call("Runtime.evaluate", {
+            "expression": "document.querySelectorAll('svg.chart').length",
+            "returnByValue": True})
+    assert "Harbour Street Offices" in title["result"]["value"]
+    assert n_svg["result"]["value"] == 8    # carpet + bars for each of 4 components
+    assert load_ms > 0
+
+
+def test_screenshot_is_not_blank(chromium, report, tmp_path):
+    png = tmp_path / "shot.png"
+    res = run_cli(["--window-size=1100,1600", f"--screenshot={png}", report.as_uri()],
+                  tmp_path / "profile")
+    assert png.is_file(), res.stderr[-500:]
+    px = _screenshot_pixels(png)
+    grey = px.mean(axis=2)
+    assert grey.std() > 20                       # not one flat colour
+    assert (grey < 80).mean() > 0.005            # dark ink: headline, rules, running blocks
+    # the amber of the occupied outlines or day-off marks is drawn (R high, B low)
+    assert ((px[..., 0] > 200) & (px[..., 2] < 80)).sum() > 50
+
+
+def test_prints_on_a4_and_letter(chromium, report, tmp_path):
+    with Browser(tmp_path / "profile") as browser:
+        browser.open(report.as_uri())
+        pages = {name: pdf_pages(browser.print_pdf(size))
+                 for name, size in (("A4", A4_IN), ("Letter", LETTER_IN))}
+    # 14 days, 4 components: cover + tables, charts (about two per page), findings, method
+    for n in pages.values():
+        assert 3 <= n <= 12, pages
+
+
+def test_print_to_pdf_flag_writes_a_document(chromium, report, tmp_path):
+    pdf = tmp_path / "report.pdf"
+    res = run_cli(["--no-pdf-header-footer", f"--print-to-pdf={pdf}", report.as_uri()],
+                  tmp_path / "profile")
+    assert pdf.is_file(), res.stderr[-500:]
+    data = pdf.read_bytes()
+    assert data.startswith(b"%PDF") and 3 <= pdf_pages(data) <= 12
+
+
+@pytest.mark.slow
+def test_demo_audit_report_in_the_browser(chromium, tmp_path):
+    """The real pipeline: a one-month demo site, audited, its report opened and printed."""
+    from schedcheck.jobs.audit import audit_site
+    from schedcheck.jobs.demo import make_demo
+
+    made = make_demo(tmp_path / "site", months=1)
+    result = audit_site(made.site_file, out=tmp_path / "audit")
+    report = result.files["report.html"]
+    assert report.stat().st_size < 2_000_000
+    with Browser(tmp_path / "profile") as browser:
+        browser.open(report.as_uri())
+        assert browser.problems() == []
+        n = browser.call("Runtime.evaluate", {
+            "expression": "document.querySelectorAll('section.comp').length",
+            "returnByValue": True})["result"]["value"]
+        pages = pdf_pages(browser.print_pdf(A4_IN))
+    assert n == len(result.components) > 0
+    assert 4 <= pages <= 5 * n
+    assert result.first_date <= result.last_date < result.first_date + dt.timedelta(days=40)
