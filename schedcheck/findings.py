@@ -186,7 +186,8 @@ def _days_off(days_off: pd.DataFrame | None) -> dict[dt.date, tuple[str, str]]:
             day = value if type(value) is dt.date else pd.Timestamp(value).date()
         except (ValueError, TypeError):
             raise InputError(f"{value!r} is not a date", key="days_off.date") from None
-        label = str(nm).strip() or ("Closure" if kd == "closure" else "Public holiday")
+        label = ("" if pd.isna(nm) else str(nm).strip()) or (
+            "an unnamed closure day" if kd == "closure" else "an unnamed holiday")
         if day in out and out[day][0] != label:  # two names on one date: keep both
             label = f"{out[day][0]} / {label}"
         out[day] = (label, str(kd))

@@ -86,7 +86,7 @@ def _working_days(ctx: Context) -> list[_Day]:
         if d in ctx.days_off:
             continue
         lo, hi = os_ - look, oe + look
-        if len(ctx.no_data.clip(lo, hi)) or lo < ctx.start or hi > ctx.end:
+        if lo < ctx.start or hi > ctx.end:
             continue
         i0 = int(np.searchsorted(run.ends, lo, side="right"))
         i1 = int(np.searchsorted(run.starts, hi, side="left")) - 1
@@ -94,6 +94,11 @@ def _working_days(ctx: Context) -> list[_Day]:
             continue
         first, last = int(run.starts[i0]), int(run.ends[i1])
         if first < lo or last > hi:
+            continue
+        # a data gap before the first start or after the last stop hides the real edge; gaps
+        # between them do not matter
+        seen = ctx.no_data.cumulative_ns(np.array([lo, first + NS_PER_MIN, last - NS_PER_MIN, hi]))
+        if seen[1] > seen[0] or seen[3] > seen[2]:
             continue
         out.append(_Day(d, os_, oe, first, last))
     return out

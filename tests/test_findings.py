@@ -587,3 +587,27 @@ def test_demo_findings_are_priced_from_their_hours(demo_findings):
     assert (priced["kwh"] > 0).all()
     assert (found.loc[found["kind"] == "missed", "kwh"] == 0).all()
     assert priced["cost"].to_numpy() == pytest.approx(site.energy.price * priced["kwh"].to_numpy())
+
+
+def test_clock_offset_is_found_through_short_data_gaps_in_the_day():
+    # packet loss in the middle of every working day does not hide the start and stop
+    runs = _clock_runs("2026-03-02", "2026-04-24", stuck_from=dt.date(2026, 3, 29))
+    cut = []
+    for a, b in runs:
+        mid = pd.Timestamp(a) + pd.Timedelta("5h")
+        cut += [(a, str(mid)), (str(mid + pd.Timedelta("10min")), b)]
+    gaps = [(b1, a2) for (_, b1), (a2, _) in zip(cut[::2], cut[1::2], strict=True)]
+    found = run(states_frame(cut, "2026-03-02", "2026-04-26", no_data=gaps),
+                office_schedule("2026-03-02", "2026-04-26"), "2026-03-02", "2026-04-26")
+    assert_one(found, "clock_offset", "2026-03-29", hours=20 * 35 / 60)
+
+
+def test_unnamed_day_off_gets_a_plain_name():
+    off = pd.DataFrame({"date": ["2026-03-04"], "name": [float("nan")], "kind": ["holiday"]})
+    runs = daily_runs("2026-03-02", "2026-03-06")
+    found = run(states_frame(runs, "2026-03-02", "2026-03-08"),
+                office_schedule("2026-03-02", "2026-03-08", off={dt.date(2026, 3, 4)}),
+                "2026-03-02", "2026-03-08", days_off=off)
+    row = assert_one(found, "holiday", "2026-03-04", hours=11 + 10 / 60)
+    assert row["detail"].startswith(
+        "Ran 11.2 h on an unnamed holiday (4 Mar 2026, a public holiday)")
