@@ -13,6 +13,8 @@ from zoneinfo import ZoneInfo
 import holidays
 import pandas as pd
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as hs
 
 from schedcheck.errors import InputError
 from schedcheck.findings import (
@@ -21,6 +23,7 @@ from schedcheck.findings import (
     find_issues,
 )
 from schedcheck.findings_clock import changes
+from schedcheck.intervals import Intervals
 from schedcheck.site import Component, FindingSettings
 
 TZ = "Europe/Oslo"
@@ -611,3 +614,29 @@ def test_unnamed_day_off_gets_a_plain_name():
     row = assert_one(found, "holiday", "2026-03-04", hours=11 + 10 / 60)
     assert row["detail"].startswith(
         "Ran 11.2 h on an unnamed holiday (4 Mar 2026, a public holiday)")
+
+
+# -- nothing counted twice ----------------------------------------------------------------------
+@settings(max_examples=40, deadline=None)
+@given(hs.lists(hs.tuples(hs.integers(0, 20), hs.integers(0, 24 * 60 - 1),
+                          hs.integers(1, 40 * 60)), max_size=25))
+def test_priced_hours_never_exceed_the_off_schedule_running(spans):
+    # random runs over three weeks around the spring change: whatever the rules make of them,
+    # the priced hours of all findings together never exceed the off-schedule running, and
+    # every finding lies inside the window
+    base = loc("2026-03-16")
+    runs = Intervals.from_arrays(
+        [(base + pd.Timedelta(days=d, minutes=m)).value for d, m, _ in spans],
+        [(base + pd.Timedelta(days=d, minutes=m + n)).value for d, m, n in spans],
+    ).clip(loc("2026-03-16"), loc("2026-04-06"))
+    frame = runs.to_frame().assign(state="run")
+    offs = runs.complement(loc("2026-03-16"), loc("2026-04-06")).to_frame().assign(state="off")
+    states = pd.concat([frame, offs]).sort_values("start").reset_index(drop=True)
+    sched = office_schedule("2026-03-16", "2026-04-05")
+    found = run(states, sched, "2026-03-16", "2026-04-05")
+    off_sched = runs - Intervals.from_frame(sched)
+    priced = found[~found["kind"].isin(["missed", "short_cycling"])]
+    assert priced["hours"].sum() <= off_sched.hours() + 1e-9
+    assert found["kwh"].sum() == pytest.approx(KW * priced["hours"].sum())
+    assert (found["start"] >= loc("2026-03-16")).all() and (found["end"] <= loc("2026-04-06")).all()
+    assert (found["start"] < found["end"]).all()
