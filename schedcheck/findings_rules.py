@@ -274,9 +274,14 @@ def _day_finding(ctx: Context, label: tuple, part: Intervals) -> Found:
         return Found("weekend", s, e, d0, hours, hours, detail)
     where = f"on {day_text(d0)}" if d0 == d1 else (
         f"on the night of {day_text(d0, year=False)} to {day_text(d1)}")
-    detail = (f"Ran {hours:.1f} h{runs} outside the schedule {where} {when}{{energy}}; check the "
-              "start and stop times in the controller's time programme and look for an override, "
-              "a hand switch or a demand signal keeping it on.")
+    edge = ""
+    if s > ctx.start and bool(ctx.run.contains(np.array([s - 1]))[0]):
+        edge = f", running on after {_LATE_EDGE[_edge_kind(ctx, s - 1)]}"
+    elif e < ctx.end and bool(ctx.run.contains(np.array([e]))[0]):
+        edge = f", starting early before {_EARLY_EDGE[_edge_kind(ctx, e)]}"
+    detail = (f"Ran {hours:.1f} h{runs} outside the schedule {where} {when}{edge}{{energy}}; "
+              "check the start and stop times in the controller's time programme and look for "
+              "an override, a hand switch or a demand signal keeping it on.")
     return Found("night", s, e, d0, hours, hours, detail)
 
 

@@ -640,3 +640,14 @@ def test_priced_hours_never_exceed_the_off_schedule_running(spans):
     assert found["kwh"].sum() == pytest.approx(KW * priced["hours"].sum())
     assert (found["start"] >= loc("2026-03-16")).all() and (found["end"] <= loc("2026-04-06")).all()
     assert (found["start"] < found["end"]).all()
+
+
+def test_long_early_start_is_a_night_finding_that_says_so():
+    # started at 03:00 on Wednesday, 2 h before the early-start allowance: longer than the
+    # persistence, so a night finding of its own whose sentence names the early start
+    runs = sorted(daily_runs("2026-03-02", "2026-03-06", skip={dt.date(2026, 3, 4)})
+                  + [("2026-03-04 03:00", "2026-03-04 17:10")])
+    found = run(states_frame(runs, "2026-03-02", "2026-03-08"),
+                office_schedule("2026-03-02", "2026-03-08"), "2026-03-02", "2026-03-08")
+    row = assert_one(found, "night", "2026-03-04", hours=2.0)
+    assert "from 03:00 to 05:00, starting early before the early-start allowance" in row["detail"]
