@@ -26,7 +26,8 @@ from markupsafe import escape
 INK_RUN = "#1d3557"        # running: dark navy
 TINT_OFF = "#e6ebf1"       # off: pale blue-grey
 HATCH_NODATA = "#8d939c"   # no data: grey hatch on white
-LINE_OCCUPIED = "#e59400"  # occupied period outline: amber
+LINE_OCCUPIED = "#e59400"  # occupied period outline: amber ...
+LINE_UNDER = "#4a2f00"     # ... over a dark brown underlay
 BAR_IN = "#4f7cac"         # in schedule
 BAR_ALLOW = "#b9cbe0"      # allowance / allowed window
 BAR_OFFSCHED = "#b4441a"   # off-schedule running: rust with white stripes
@@ -138,6 +139,10 @@ def _date_axis(first: dt.date, ndays: int, cw: float, y: float) -> str:
                 parts.append(f'<text x="{x:.1f}" y="{y:.1f}" text-anchor="middle">{label}</text>')
     else:
         for i, d in enumerate(dates):
+            if ndays <= 130 and d.weekday() == 0:  # small tick on Mondays
+                x = LEFT + i * cw
+                parts.append(f'<line x1="{x:.1f}" y1="{y - 10:.1f}" x2="{x:.1f}" '
+                             f'y2="{y - 8:.1f}" stroke="{GRID}"/>')
             if d.day == 1 or i == 0:
                 x = LEFT + i * cw
                 parts.append(f'<line x1="{x:.1f}" y1="{y - 10:.1f}" x2="{x:.1f}" y2="{y - 6:.1f}" '
@@ -227,8 +232,11 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
                 d = rect_path(x + 0.6, TOP + y0 * k, cw - 1.2, (y1 - y0) * k)
             else:
                 d = _hlines(x, TOP + y0 * k, cw) + _hlines(x, TOP + y1 * k, cw)
-            out.append(f'<path class="occupied" d="{d}" fill="none" stroke="{LINE_OCCUPIED}" '
-                       f'stroke-width="1.3"/>')
+            # two-tone line: the dark underlay shows on pale "off", the amber on dark "run",
+            # so the outline survives grey-scale print on both
+            out.append(f'<path d="{d}" fill="none" stroke="{LINE_UNDER}" stroke-width="2.4"/>'
+                       f'<path class="occupied" d="{d}" fill="none" stroke="{LINE_OCCUPIED}" '
+                       f'stroke-width="1.2"/>')
     out.append(f'<rect x="{LEFT}" y="{TOP}" width="{ndays * cw:.2f}" height="{ph}" fill="none" '
                f'stroke="{TEXT}" stroke-width=".6"/>')
     out.append(_days_off_marks(days_off, first, ndays, cw, TOP + ph + 3))
@@ -313,7 +321,7 @@ def legend_svg(pid: str) -> str:
     """A small legend of every mark the two charts use, for the top of the charts section."""
     items = [
         (INK_RUN, "running", None), (TINT_OFF, "off", None), (f"url(#{pid}-nd)", "no data", None),
-        ("none", "occupied period (outline)", LINE_OCCUPIED), (BAR_IN, "in schedule", None),
+        (TINT_OFF, "occupied period (outline)", LINE_OCCUPIED), (BAR_IN, "in schedule", None),
         (BAR_ALLOW, "allowance or allowed window", None),
         (f"url(#{pid}-os)", "off-schedule running", None),
         (f"url(#{pid}-ms)", "missed (below the axis)", None),
@@ -325,8 +333,12 @@ def legend_svg(pid: str) -> str:
     for i, (fill, label, stroke) in enumerate(items):
         x = 4 + (i % 3) * 240
         y = 4 + (i // 3) * 20
-        line = f' stroke="{stroke}" stroke-width="2"' if stroke else f' stroke="{GRID}"'
-        out.append(f'<rect x="{x}" y="{y}" width="14" height="12" fill="{fill}"{line}/>'
-                   f'<text x="{x + 19}" y="{y + 10}">{label}</text>')
+        box = f'<rect x="{x}" y="{y}" width="14" height="12" fill="{fill}"'
+        if stroke:
+            out.append(f'{box} stroke="{LINE_UNDER}" stroke-width="2.6"/><rect x="{x}" y="{y}" '
+                       f'width="14" height="12" fill="none" stroke="{stroke}" stroke-width="1.2"/>')
+        else:
+            out.append(f'{box} stroke="{GRID}"/>')
+        out.append(f'<text x="{x + 19}" y="{y + 10}">{label}</text>')
     out.append("</g></svg>")
     return "".join(out)
