@@ -181,3 +181,17 @@ def test_bad_readings_row_named_then_skipped(site, tmp_path, capsys):
     assert code == 0, err
     s = json.loads((tmp_path / "o2" / "summary.json").read_text())
     assert s["bad_rows"]["count"] == 1
+
+
+def test_default_window_reads_once_and_matches_the_explicit_window(site, tmp_path, capsys):
+    # The default window reads every file once and cuts it to whole days; the data health and
+    # every figure must equal those of the same window given explicitly.
+    folder, _ = site
+    a, b = tmp_path / "a", tmp_path / "b"
+    assert run(["audit", str(folder / "site.toml"), "--out", str(a)], capsys)[0] == 0
+    assert run(["audit", str(folder / "site.toml"), "--from", str(FIRST), "--to", str(LAST),
+                "--out", str(b)], capsys)[0] == 0
+    sa, sb = (json.loads((x / "summary.json").read_text()) for x in (a, b))
+    assert sa["sensors"] == sb["sensors"]
+    assert [c["seconds"] for c in sa["components"]] == [c["seconds"] for c in sb["components"]]
+    assert (a / "runs.csv").read_text() == (b / "runs.csv").read_text()

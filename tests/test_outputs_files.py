@@ -97,8 +97,10 @@ def test_summary_identities_and_fields(result, tmp_path):
     assert sup["energy"]["running_kw"] == pytest.approx(2.56)
     assert sup["energy"]["off_schedule_kwh"] == pytest.approx(74.24)
     assert sup["energy"]["off_schedule_cost"] == pytest.approx(148.48)
-    assert s["units"] == [{"id": "AHU-9", "name": "Pier <b>House</b> & annex",
-                           "state_component": "AHU-9/supply"}]
+    unit = s["units"][0]
+    assert (unit["id"], unit["name"], unit["state_component"]) == (
+        "AHU-9", "Pier <b>House</b> & annex", "AHU-9/supply")
+    assert unit["hours"] == h  # the unit's state is its supply fan's
     f = s["findings"][0]
     assert f["start"] == "2026-10-24T08:00:00+02:00" and f["end"] == "2026-10-25T12:00:00+01:00"
     assert f["hours"] == 29 and f["kwh"] == pytest.approx(74.24)

@@ -9,13 +9,18 @@ the report. Prints nothing: progress goes to the optional ``progress`` callback.
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 import re
 from collections.abc import Callable
 from pathlib import Path
 
+import numpy as np
+import pandas as pd
+
 from schedcheck.audit import AuditResult, run_audit
 from schedcheck.errors import InputError
+from schedcheck.intervals import to_ns
 from schedcheck.site import Site
 from schedcheck.window import day_window
 
@@ -26,13 +31,20 @@ def default_outdir(site: Site) -> Path:
     return Path.cwd() / f"audit-{slug}"
 
 
-def audit_window(site: Site, first: dt.date | None, last: dt.date | None
+def audit_window(site: Site, first: dt.date | None, last: dt.date | None, readings=None
                  ) -> tuple[dt.date, dt.date]:
-    """The local dates to audit: the options, else the whole days covered by the data."""
-    if first is None or last is None:
-        from schedcheck.jobs.common import data_time_range
+    """The local dates to audit: the options, else the whole days covered by the data.
 
-        d0, d1 = _as_dates(data_time_range(site), site.timezone)
+    ``readings`` (all readings of the site, unwindowed) saves reading the files again.
+    """
+    if first is None or last is None:
+        from schedcheck.jobs.common import data_span, data_time_range
+        from schedcheck.window import whole_days_covered
+
+        if readings is not None:
+            d0, d1 = whole_days_covered(*data_span(readings), site.timezone)
+        else:
+            d0, d1 = data_time_range(site)
         first = first or d0
         last = last or d1
     if last < first:
@@ -40,16 +52,29 @@ def audit_window(site: Site, first: dt.date | None, last: dt.date | None
     return first, last
 
 
-def _as_dates(span, tz: str) -> tuple[dt.date, dt.date]:
-    """Accept (date, date) or (instant, instant) from ``data_time_range``."""
-    a, b = span
-    if isinstance(a, dt.date) and not isinstance(a, dt.datetime):
-        return a, b
-    import pandas as pd
+def clip_readings(readings, start: pd.Timestamp, end: pd.Timestamp, max_gap: pd.Timedelta):
+    """Readings loaded without a window, cut to ``[start, end)`` with health for that window.
 
-    from schedcheck.window import whole_days_covered
+    Counts of duplicates and out-of-order rows stay those of the whole load; first, last,
+    count, median interval and gaps are recomputed for the window.
+    """
+    from schedcheck import readings as rd
 
-    return whole_days_covered(pd.Timestamp(a), pd.Timestamp(b), tz)
+    by_sensor, health = {}, {}
+    for sensor, frame in readings.by_sensor.items():
+        keep = ((frame["timestamp"] >= start) & (frame["timestamp"] < end)).to_numpy()
+        clipped = frame[keep].reset_index(drop=True)
+        by_sensor[sensor] = clipped
+        h = dataclasses.replace(readings.health[sensor], first=None, last=None,
+                                median_interval=None, count=len(clipped))
+        rd._gaps(h, np.asarray(to_ns(clipped["timestamp"]), dtype=np.int64), start, end,
+                 max_gap)
+        health[sensor] = h
+    for sensor, h in readings.health.items():
+        if sensor not in health:
+            health[sensor] = dataclasses.replace(h, first=None, last=None, count=0)
+            rd._gaps(health[sensor], np.empty(0, np.int64), start, end, max_gap)
+    return dataclasses.replace(readings, by_sensor=by_sensor, health=health, start=start, end=end)
 
 
 def _load_schedules(site: Site, first: dt.date, last: dt.date) -> dict[str, object]:
@@ -93,10 +118,17 @@ def audit_result(
     from schedcheck.runstate import classify_unit
 
     say = progress or (lambda _msg: None)
-    first, last = audit_window(site, first, last)
-    start, end = day_window(first, last, site.timezone)
-    say(f"reading readings for {first} .. {last}")
-    readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows)
+    if first is None or last is None:
+        say("reading all readings to find the whole days they cover")
+        everything = load_readings(site, skip_bad_rows=skip_bad_rows)
+        first, last = audit_window(site, first, last, everything)
+        start, end = day_window(first, last, site.timezone)
+        readings = clip_readings(everything, start, end, site.readings.max_gap)
+    else:
+        first, last = audit_window(site, first, last)
+        start, end = day_window(first, last, site.timezone)
+        say(f"reading readings for {first} .. {last}")
+        readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows)
     states: dict[str, object] = {}
     for unit in site.units:
         say(f"classifying run states of {unit.id}")

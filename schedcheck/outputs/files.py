@@ -189,6 +189,16 @@ def finding_records(result: AuditResult) -> list[dict]:
     return out
 
 
+def _unit_summary(unit, result: AuditResult) -> dict:
+    """A unit's entry: its state is its state component's (its supply fan where it has one)."""
+    sc = unit.state_component
+    out = {"id": unit.id, "name": unit.name, "state_component": sc.key if sc else None}
+    if sc is not None:
+        acc = result.component(sc.key).account
+        out["hours"] = {k: _r(acc.ns[k] / NS_PER_H, HOURS_DECIMALS) for k in FIGURES}
+    return out
+
+
 def summary_dict(result: AuditResult) -> dict:
     """Everything ``summary.json`` holds, as a plain dict."""
     site, tz = result.site, result.site.timezone
@@ -214,9 +224,7 @@ def summary_dict(result: AuditResult) -> dict:
                    "last_date": result.last_date.isoformat(),
                    "hours": _r((result.end - result.start) / pd.Timedelta("1h"),
                                HOURS_DECIMALS)},
-        "units": [{"id": u.id, "name": u.name,
-                   "state_component": u.state_component.key if u.state_component else None}
-                  for u in site.units],
+        "units": [_unit_summary(u, result) for u in site.units],
         "components": comps,
         "totals": total,
         "findings": finding_records(result),
