@@ -143,10 +143,11 @@ def continuous(ctx: Context) -> list[Found]:
                                    np.concatenate([e, gap_end[join]]))
     out = []
     spans = []
+    off_schedule = ctx.off_schedule()
     for gs, ge in groups:
         if ge - gs < ctx.params.continuous.value:
             continue
-        off_sched = (ctx.off_schedule()).clip(int(gs), int(ge))
+        off_sched = off_schedule.clip(int(gs), int(ge))
         hours = off_sched.hours()
         if hours * NS_PER_H < ctx.params.min_off_schedule.value:
             continue

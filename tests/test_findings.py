@@ -651,3 +651,20 @@ def test_long_early_start_is_a_night_finding_that_says_so():
                 office_schedule("2026-03-02", "2026-03-08"), "2026-03-02", "2026-03-08")
     row = assert_one(found, "night", "2026-03-04", hours=2.0)
     assert "from 03:00 to 05:00, starting early before the early-start allowance" in row["detail"]
+
+
+def test_cycling_from_a_working_evening_through_an_unoccupied_day():
+    # occupied periods on Monday and Wednesday only; the unit cycles 50 min on, 10 min off
+    # from Monday 20:00 to Wednesday 00:50 (no stop long enough to end the episode): Monday
+    # evening is a night finding, Tuesday a day with no occupied period, and the last 50 min
+    # after midnight, below the persistence, join Tuesday
+    cyc = [(str(pd.Timestamp("2026-03-02 20:00") + i * pd.Timedelta("1h")),
+            str(pd.Timestamp("2026-03-02 20:50") + i * pd.Timedelta("1h"))) for i in range(29)]
+    found = run(states_frame(cyc, "2026-03-02", "2026-03-04"),
+                office_schedule("2026-03-02", "2026-03-04", weekdays=(0, 2), early=None,
+                                late=None), "2026-03-02", "2026-03-04",
+                settings=FindingSettings(max_starts_per_day=50, min_missed=pd.Timedelta("24h")))
+    assert list(found["kind"]) == ["night", "weekend"]
+    assert list(found["date"]) == ["2026-03-02", "2026-03-03"]
+    assert found["hours"].tolist() == pytest.approx([4 * 50 / 60, 25 * 50 / 60])
+    assert "with no occupied period in the schedule" in found["detail"].iloc[1]
