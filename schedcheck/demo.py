@@ -332,14 +332,13 @@ def build_demo(seed: int = DEFAULT_SEED, months: int = DEFAULT_MONTHS) -> DemoSi
                 runs = sup
                 faults += [PlantedFault(m.key, k, d, _pairs(e), n) for k, d, e, n in sup_faults]
             elif m.role == "heat_wheel":
-                wheel = _follow(sup, rng, 60, 120, 0, 0) & cold
+                wheel = (_follow(sup, rng, 60, 120, 0, 0) & cold).clip(s0, e0)
                 runs = Intervals.from_arrays(wheel.starts[wheel.lengths >= 15 * _NS_MIN],
                                              wheel.ends[wheel.lengths >= 15 * _NS_MIN])
                 faults += _dependent_faults(m.key, m.role, runs, sup_faults, s0, e0)
             else:
-                runs = _follow(sup, rng, 20, 60, 5, 40)
+                runs = _follow(sup, rng, 20, 60, 5, 40).clip(s0, e0)
                 faults += _dependent_faults(m.key, m.role, runs, sup_faults, s0, e0)
-            runs = runs.clip(s0, e0)
             truth[m.key] = _labelled(runs, s0, e0)
             if m.variable_speed:
                 hour = from_ns(grid[::3]).tz_convert(TZ).hour.to_numpy()

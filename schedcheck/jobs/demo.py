@@ -45,11 +45,12 @@ def make_demo(folder: str | Path = "schedcheck-demo", seed: int = DEFAULT_SEED,
     -------
     DemoResult
     """
-    from schedcheck.outputs.demo_files import write_demo
+    from schedcheck.outputs.demo_files import check_demo_folder, write_demo
 
+    folder = Path(folder)
+    check_demo_folder(folder)
     demo = build_demo(seed=seed, months=months)
     readings = demo_readings(demo)
-    folder = Path(folder)
     files = write_demo(demo, readings, folder)
     return DemoResult(folder=folder, files=files, site_file=folder / "site.toml", demo=demo,
                       readings_rows=sum(len(f) for f in readings.values()))

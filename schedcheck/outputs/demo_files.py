@@ -131,8 +131,8 @@ def _readme(demo: DemoSite) -> str:
     ])
 
 
-def write_demo(demo: DemoSite, readings: dict[str, pd.DataFrame], folder: Path) -> list[Path]:
-    """Write the demo site into ``folder`` (created if needed); returns the files written.
+def check_demo_folder(folder: Path) -> None:
+    """Refuse a place the demo may not be written to.
 
     Raises
     ------
@@ -149,6 +149,18 @@ def write_demo(demo: DemoSite, readings: dict[str, pd.DataFrame], folder: Path) 
         if first != README_FIRST_LINE:
             raise InputError("the folder is not empty and holds no earlier demo; choose an "
                              "empty or new folder", path=folder)
+
+
+def write_demo(demo: DemoSite, readings: dict[str, pd.DataFrame], folder: Path) -> list[Path]:
+    """Write the demo site into ``folder`` (created if needed); returns the files written.
+
+    Raises
+    ------
+    InputError
+        When ``folder`` is a file, or a folder that holds anything but an earlier demo.
+    """
+    folder = Path(folder)
+    check_demo_folder(folder)
     files: dict[str, bytes] = {"site.toml": demo.site_toml.encode()}
     for name, text in demo.calendars.items():
         files[f"calendars/{name}"] = text.encode()

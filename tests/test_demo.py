@@ -1,0 +1,267 @@
+"""The demo site: its truth is whole and consistent, its files are complete, readable and
+reproducible, and its planted faults are where the generator says they are."""
+
+from __future__ import annotations
+
+import datetime as dt
+import json
+
+import icalendar
+import numpy as np
+import pandas as pd
+import pytest
+import recurring_ical_events
+from dateutil.easter import easter
+from helpers import assert_tiles_window
+
+from schedcheck import demo as demo_mod
+from schedcheck.cli import main
+from schedcheck.demo_plan import CALENDARS, MACHINES, UNITS
+from schedcheck.durations import parse_duration
+from schedcheck.errors import InputError
+from schedcheck.intervals import Intervals, to_ns
+from schedcheck.jobs.demo import make_demo
+from schedcheck.outputs.demo_files import read_demo_truth, write_demo
+from schedcheck.window import day_window
+
+TZ = "Europe/Oslo"
+KINDS = {"holiday", "night", "clock_offset", "missed", "continuous"}
+
+
+@pytest.fixture(scope="module")
+def site():
+    return demo_mod.build_demo()
+
+
+@pytest.fixture(scope="module")
+def written(tmp_path_factory):
+    """A one-month demo written to disk (small and quick; the truth logic is the same)."""
+    return make_demo(tmp_path_factory.mktemp("demo") / "d", months=1)
+
+
+def _runs(site, key) -> Intervals:
+    t = site.truth[key]
+    return Intervals.from_frame(t[t["state"] == "run"])
+
+
+def _expand(text: str, first: dt.date, last: dt.date) -> Intervals:
+    """Expand calendar text with the reference library recurring-ical-events (PyPI), not ours."""
+    cal = icalendar.Calendar.from_ical(text)
+    events = recurring_ical_events.of(cal).between(first, last + dt.timedelta(days=1))
+    s = [to_ns(pd.Timestamp(e["DTSTART"].dt)) for e in events]
+    e = [to_ns(pd.Timestamp(e["DTEND"].dt)) for e in events]
+    return Intervals.from_arrays(np.array(s, np.int64), np.array(e, np.int64))
+
+
+# -- the truth held in memory ---------------------------------------------------------------------
+def test_window_spans_dst_change_and_easter(site):
+    assert (site.first, site.last) == (dt.date(2026, 2, 16), dt.date(2026, 5, 17))
+    # EU summer time 2026 starts on the last Sunday of March at 01:00 UTC (Directive 2000/84/EC)
+    assert site.start == pd.Timestamp("2026-02-15T23:00Z")
+    assert site.end == pd.Timestamp("2026-05-17T22:00Z")
+    assert site.first < easter(2026) < site.last   # dateutil's Easter: 2026-04-05
+
+
+def test_every_component_truth_tiles_the_window(site):
+    assert set(site.truth) == {m.key for m in MACHINES}
+    for key, t in site.truth.items():
+        assert_tiles_window(t, site.start, site.end)
+        assert set(t["state"]) == {"run", "off"}, key
+        assert (t["state"].to_numpy()[1:] != t["state"].to_numpy()[:-1]).all(), key
+
+
+def test_observed_truth_has_no_data_exactly_over_the_gaps(site):
+    obs = demo_mod.observed_truth(site)
+    for m in MACHINES:
+        t = obs[obs["component"] == m.key]
+        assert_tiles_window(t, site.start, site.end)
+        gaps = site.gaps[site.gaps["sensor"] == m.sensor]
+        nd = t[t["state"] == "no_data"]
+        assert Intervals.from_frame(nd) == Intervals.from_frame(gaps), m.key
+    # gateway GW-N down 09:07:30-14:41:10 for its five sensors; one flat battery for 50.7 h
+    hours = (site.gaps["end"] - site.gaps["start"]).dt.total_seconds() / 3600
+    assert sorted(hours.round(4).tolist()) == [5.5611] * 5 + [50.7217]
+
+
+def test_planted_faults_cover_every_kind_and_a_clean_unit(site):
+    assert {f.kind for f in site.faults} == KINDS
+    assert site.clean_components == ["AHU-5/supply", "AHU-5/exhaust"]
+    for f in site.faults:
+        eps = Intervals.from_arrays([to_ns(a) for a, _ in f.episodes],
+                                    [to_ns(b) for _, b in f.episodes])
+        assert len(eps) == len(f.episodes), f"{f.component} {f.kind}: episodes overlap"
+        assert site.start <= f.start < f.end <= site.end
+        run = _runs(site, f.component)
+        if f.kind == "missed":
+            assert len(eps & run) == 0, f"{f.component} runs during its trip"
+        else:
+            assert eps - run == Intervals.empty(), f"{f.component} {f.kind}: not running"
+
+
+def test_holiday_fault_is_on_norwegian_public_holidays_and_the_closure(site):
+    # Norwegian public holidays 2026 inside the window, from Easter (dateutil) and the fixed
+    # days of the public holidays act: Maundy Thursday (E-3), Good Friday (E-2), Easter Monday
+    # (E+1), 1 May, Ascension Day (E+39); 17 May 2026 is a Sunday. 2026-05-15 is the demo's
+    # own closure day.
+    e = easter(2026)
+    expected = sorted([e - dt.timedelta(days=3), e - dt.timedelta(days=2), e + dt.timedelta(days=1),
+                       dt.date(2026, 5, 1), e + dt.timedelta(days=39), dt.date(2026, 5, 15)])
+    f = next(f for f in site.faults if f.component == "AHU-1/supply" and f.kind == "holiday")
+    assert list(f.dates) == [str(d) for d in expected]
+    assert [a.tz_convert(TZ).date() for a, _ in f.episodes] == expected
+    # the other units' controllers know the holidays: AHU-5 (clean) runs on none of them
+    for d in expected:
+        day = Intervals.window(*day_window(d, d, TZ))
+        assert len(_runs(site, "AHU-5/supply") & day) == 0, d
+
+
+def test_clock_offset_moves_starts_one_hour_after_the_dst_change(site):
+    run = _runs(site, "AHU-3/supply")
+    starts = pd.DatetimeIndex(pd.to_datetime(run.starts, utc=True)).tz_convert(TZ)
+    minutes = starts.hour * 60 + starts.minute
+    before = minutes[starts.date < dt.date(2026, 3, 29)]
+    after = minutes[starts.date > dt.date(2026, 3, 29)]
+    # occupied from 06:30 with a 1h30 early-start allowance: a right clock starts 05:00-06:30
+    assert before.min() >= 5 * 60 and before.max() <= 6 * 60 + 30
+    assert after.min() >= 6 * 60 and after.max() <= 7 * 60 + 30
+    f = next(f for f in site.faults if f.component == "AHU-3/supply")
+    assert (f.kind, f.dates) == ("clock_offset", ("2026-03-29",))
+
+
+def test_continuous_running_from_the_controls_change_to_the_end(site):
+    f = next(f for f in site.faults if f.component == "AHU-4/supply" and f.kind == "continuous")
+    assert f.dates == ("2026-04-20",)
+    assert f.end == site.end and f.start.tz_convert(TZ).date() == dt.date(2026, 4, 20)
+    assert f.hours > 24 * 27
+
+
+def test_clean_and_faulty_running_against_calendars_expanded_by_a_reference_library(site):
+    """Independent check: expand the written calendars with recurring-ical-events; running off
+    the occupied periods +- allowances and the allowed windows is exactly the planted faults."""
+    off_days = Intervals.empty()
+    for d in site.days_off:
+        off_days = off_days | Intervals.window(*day_window(d, d, TZ))
+    allowed = _expand(site.calendars["night-purge.ics"], site.first, site.last)
+    for plan in UNITS:
+        occ = _expand(site.calendars[plan.calendar], site.first, site.last) - off_days
+        early = parse_duration(plan.early_start or "2h").value
+        late = parse_duration("30min").value
+        ok = occ.shift_ends(early, late) | allowed
+        for m in (m for m in MACHINES if m.unit == plan.id):
+            run = _runs(site, m.key)
+            faults = [f for f in site.faults if f.component == m.key]
+            planted = Intervals.from_arrays(
+                [to_ns(a) for f in faults if f.kind != "missed" for a, _ in f.episodes],
+                [to_ns(b) for f in faults if f.kind != "missed" for _, b in f.episodes])
+            off_schedule = run - ok
+            # interlocked followers start/stop up to a minute after the supply fan
+            assert (off_schedule - planted.shift_ends(0, 2 * 60 * 10**9)).hours() < 0.2, m.key
+            if not faults:
+                assert off_schedule.hours() == 0.0, m.key
+                if m.role != "heat_wheel":
+                    assert (occ - run).hours() == 0.0, f"{m.key} misses occupied time"
+
+
+def test_months_changes_the_window_and_bad_months_are_refused():
+    assert demo_mod.window_dates(1) == (dt.date(2026, 2, 16), dt.date(2026, 3, 15))
+    assert demo_mod.window_dates(6)[1] == dt.date(2026, 8, 16)
+    with pytest.raises(InputError, match="--months"):
+        demo_mod.window_dates(0)
+
+
+# -- the written files ---------------------------------------------------------------------------
+def test_demo_writes_every_file(written):
+    names = {p.relative_to(written.folder).as_posix() for p in written.files}
+    assert names == {"site.toml", "README.txt", "truth/runs.csv", "truth/machine_runs.csv",
+                     "truth/faults.json", "readings/gw-north.csv.gz", "readings/gw-south.csv.gz",
+                     "readings/gw-library.parquet"} | {f"calendars/{n}" for n in CALENDARS}
+    assert (written.folder / "README.txt").read_text().startswith("INVENTED DEMO DATA")
+    assert written.size_bytes < 5_000_000   # one month; three months are about 10 MB
+
+
+def test_site_file_loads_and_calendars_are_valid(written):
+    from schedcheck.site import load_site
+
+    s = load_site(written.site_file)
+    assert s.timezone == TZ and len(s.units) == 5 and len(s.components) == len(MACHINES)
+    assert {c.sensor for c in s.components} == {m.sensor for m in MACHINES}
+    roles = [r.role for r in s.unit("AHU-2").components]
+    assert roles == ["supply_fan", "exhaust_fan", "heat_wheel"]
+    for u in s.units:
+        for p in u.schedule.occupied + u.schedule.allowed:
+            assert p.is_file(), p
+            icalendar.Calendar.from_ical(p.read_bytes())   # parses with the reference library
+
+
+def test_readings_parse_with_the_expected_sensors_and_faults_of_transport(written):
+    north = pd.read_csv(written.folder / "readings/gw-north.csv.gz")
+    lib = pd.read_parquet(written.folder / "readings/gw-library.parquet")
+    assert list(north.columns) == ["timestamp", "sensor", "x_rms", "y_rms", "z_rms", "z_peak"]
+    assert list(lib.columns) == ["timestamp", "sensor", "z_rms", "z_peak"]
+    assert set(north["sensor"]) == {"VB-1011", "VB-1012", "VB-1021", "VB-1022", "VB-1023"}
+    assert set(lib["sensor"]) == {"VB-1051", "VB-1052"}
+    assert north["timestamp"].str.fullmatch(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\dZ").all()
+    ts = pd.to_datetime(north["timestamp"], utc=True)
+    one = north[north["sensor"] == "VB-1011"].assign(t=ts)
+    assert one.duplicated().sum() > 10                      # duplicates
+    assert (one["t"].diff().dt.total_seconds() < 0).sum() > 10   # rows out of order
+    minutes = (written.demo.end - written.demo.start).total_seconds() / 60
+    assert 0.97 * minutes < one["t"].nunique() < minutes    # about 1 % lost packets
+    assert (north[["x_rms", "y_rms", "z_rms", "z_peak"]] >= 0).all().all()
+
+
+def test_start_transients_show_in_peaks(written):
+    site = written.demo
+    north = pd.read_csv(written.folder / "readings/gw-north.csv.gz")
+    r = north[north["sensor"] == "VB-1011"].drop_duplicates()
+    t = to_ns(pd.to_datetime(r["timestamp"], utc=True))
+    run = _runs(site, "AHU-1/supply")
+    starts = run.starts[run.starts > to_ns(site.start)]
+    k = np.searchsorted(starts, t, side="right") - 1
+    since = t - starts[np.clip(k, 0, None)]
+    early = (k >= 0) & (since >= 0) & (since < 90 * 10**9) & run.contains(t)
+    later = run.contains(t) & ~((k >= 0) & (since < 5 * 60 * 10**9))
+    crest = (r["z_peak"] / r["z_rms"]).to_numpy()
+    assert early.sum() > 10
+    assert np.median(crest[early]) > 1.8 * np.median(crest[later])
+
+
+def test_truth_files_read_back(written):
+    truth = read_demo_truth(written.folder)
+    obs = demo_mod.observed_truth(written.demo)
+    pd.testing.assert_frame_equal(truth.runs, obs, check_dtype=False)
+    assert truth.window == (written.demo.start, written.demo.end)
+    assert truth.clean == written.demo.clean_components
+    f = truth.faults_of("AHU-2/supply", "night")[0]
+    assert f["dates"] == ["2026-03-09", "2026-03-10", "2026-03-11", "2026-03-12"]
+    assert f["episodes"][0][0] == pd.Timestamp("2026-03-09T20:58:20Z")
+    doc = json.loads((written.folder / "truth/faults.json").read_text())
+    assert doc["window"]["first"] == "2026-02-16" and doc["seed"] == written.demo.seed
+    t = truth.component_runs("AHU-1/supply")
+    assert_tiles_window(t, written.demo.start, written.demo.end)
+
+
+def test_same_seed_gives_identical_files_and_another_seed_differs(written, tmp_path):
+    again = make_demo(tmp_path / "again", months=1)
+    for p in written.files:
+        q = again.folder / p.relative_to(written.folder)
+        assert p.read_bytes() == q.read_bytes(), p.name
+    other = demo_mod.build_demo(seed=7, months=1)
+    assert not other.truth["AHU-1/supply"].equals(written.demo.truth["AHU-1/supply"])
+
+
+def test_refuses_a_folder_with_other_files(tmp_path):
+    (tmp_path / "notes.txt").write_text("mine")
+    with pytest.raises(InputError, match="not empty"):
+        write_demo(demo_mod.build_demo(months=1), {}, tmp_path)
+    assert main(["demo", str(tmp_path), "--months", "1", "--no-audit"]) == 2
+
+
+def test_cli_writes_the_demo_and_rejects_bad_months(tmp_path, capsys):
+    assert main(["demo", str(tmp_path / "d"), "--months", "1", "--no-audit", "--seed", "3"]) == 0
+    out = capsys.readouterr().out
+    assert "invented demo site" in out and "night" in out
+    assert json.loads((tmp_path / "d/truth/faults.json").read_text())["seed"] == 3
+    assert main(["demo", str(tmp_path / "e"), "--months", "13"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error:") and "--months" in err[0]
