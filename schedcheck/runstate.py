@@ -68,6 +68,8 @@ MIN_STOP = pd.Timedelta("3min")
 HYSTERESIS = 0.1          # [decades]
 TRANSIENT_CREST = 2.5     # [-]
 CARRIED_SHARE = 0.95      # [-]
+NO_DATA_WARN = 0.01       # warn above this share of the window without readings (common
+#                           practice, no source)
 GAP_EDGE = 0.005          # group edges for the middle of the gap [-] (common practice, no source)
 RMS = ("x_rms", "y_rms", "z_rms")
 PEAK = ("x_peak", "y_peak", "z_peak")
@@ -119,7 +121,7 @@ class ComponentStates:
 
 # -- levels ----------------------------------------------------------------------------------
 def reading_levels(frame: pd.DataFrame, *, name: str = "readings") -> tuple[np.ndarray, ...]:
-    """Times, levels and peak levels of one sensor's readings, sorted, one row per instant.
+    """Times, levels and crest factors of one sensor's readings, sorted, one row per instant.
 
     Parameters
     ----------
@@ -135,8 +137,9 @@ def reading_levels(frame: pd.DataFrame, *, name: str = "readings") -> tuple[np.n
         Reading instants [ns since epoch, UTC].
     level : ndarray
         Vector magnitude of the RMS axes [reading unit]; NaN where no axis has a value.
-    peak : ndarray
-        Vector magnitude of the peak axes [reading unit]; NaN without peaks.
+    crest : ndarray
+        Crest factor: magnitude of the peak axes over the magnitude of the RMS of the same
+        axes [-]; NaN without peaks.
     """
     if "timestamp" not in frame.columns:
         raise InputError("no 'timestamp' column", key=name)
@@ -155,7 +158,11 @@ def reading_levels(frame: pd.DataFrame, *, name: str = "readings") -> tuple[np.n
         return np.where(np.isnan(a).all(axis=1), np.nan, out)
 
     level = magnitude(rms)
-    peak = magnitude([c for c in PEAK if c in frame.columns])
+    peaks = [c for c in PEAK if c in frame.columns]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        # crest factor on the axes that have a peak: peak / RMS of the same axes
+        peak = magnitude(peaks) / magnitude([p.replace("_peak", "_rms") for p in peaks
+                                             if p.replace("_peak", "_rms") in frame.columns])
     if t.size > 1 and not (np.diff(t) > 0).all():
         order = np.argsort(t, kind="stable")
         t, level, peak = t[order], level[order], peak[order]
@@ -302,7 +309,9 @@ def choose_threshold(
             warn.append(reason + "; set `threshold` if this machine does run")
         elif med[0] >= F:
             share, n = _moving_share(L <= g.boundaries[0], sibling_moving)
-            if n and share >= CARRIED_SHARE:
+            overall, _ = _moving_share(np.ones(L.size, bool), sibling_moving)
+            # carried only if the siblings do stop at times (else nothing tells the two apart)
+            if n and share >= CARRIED_SHARE and overall <= 1 - th.MIN_SHARE:
                 reason += ("; the lower group, above the floor, appears only while another "
                            "component of the unit runs: carried vibration, counted as off")
             else:
@@ -433,7 +442,8 @@ def _state_table(
             a[0] = min(a[0], s0)
         if e0 - t[-1] <= max_gap:
             b[-1] = max(b[-1], e0)
-        transient = (pk / np.where(lv > 0, lv, np.nan)) >= TRANSIENT_CREST
+        with np.errstate(invalid="ignore"):
+            transient = pk >= TRANSIENT_CREST
         run = hysteresis_states(L, np.log10(thr.on_level), np.log10(thr.off_level), seg,
                                 np.nan_to_num(transient, nan=False).astype(bool))
         first = np.concatenate([[True], (run[1:] != run[:-1]) | newseg[1:]])
@@ -566,8 +576,10 @@ def _finish(component, t, lv, pk, L, thr, start, end, max_gap, settings, warning
     total_h = (e0 - s0) / 3.6e12
     if not sel.any():
         warn.append(f"no readings from sensor {component.sensor} in the window")
-    elif nd_h > 0.05 * total_h:
-        warn.append(f"{nd_h:.1f} h without readings ({nd_h / total_h:.0%} of the window)")
+    elif nd_h > NO_DATA_WARN * total_h:
+        longest = float((nd["end"] - nd["start"]).max().total_seconds() / 3600)
+        warn.append(f"{nd_h:.1f} h without readings ({nd_h / total_h:.1%} of the window; "
+                    f"longest silence {longest:.1f} h)")
     return ComponentStates(component, tab, thr, starts, share, tuple(warn))
 
 
