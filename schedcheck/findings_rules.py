@@ -128,6 +128,12 @@ def _list_dates(days: list[dt.date]) -> str:
     return f"{text} {days[-1]:%b %Y}"
 
 
+def _long(ns: int) -> str:
+    """A long duration: hours up to three days, then days."""
+    h = ns / NS_PER_H
+    return f"{h:.1f} h" if h < 72 else f"{h / 24:.1f} days"
+
+
 # -- continuous ---------------------------------------------------------------------------
 def continuous(ctx: Context) -> list[Found]:
     """Running without a stop for the continuous length or more: one finding per run."""
@@ -162,7 +168,7 @@ def continuous(ctx: Context) -> list[Found]:
         seen = f" (with {gap:.1f} h of no data in between)" if gap >= 0.05 else ""
         out.append(Found(
             "continuous", int(gs), int(ge), a.date(), hours, hours,
-            f"Ran without a stop seen for {(ge - gs) / NS_PER_H:.1f} h {since} {until}{seen}, "
+            f"Ran without a stop seen for {_long(ge - gs)} {since} {until}{seen}, "
             f"{hours:.1f} h of it outside the schedule{{energy}}; look for a manual override, "
             "a hand switch or a unit stuck in occupied mode, and ask the owner whether any "
             "of this running is needed.",

@@ -223,7 +223,8 @@ def test_override_left_on_over_a_weekend_is_one_continuous_finding():
     # off schedule: Fri 17:30 to Mon 05:00 = 59.5 h; the run began on Friday 6 March
     row = assert_one(found, "continuous", "2026-03-06", hours=59.5)
     assert row["start"] == loc("2026-03-06 06:00") and row["end"] == loc("2026-03-09 17:10")
-    assert "without a stop seen for 83.2 h" in row["detail"]
+    assert "without a stop seen for 3.5 days from Fri 6 Mar 2026 06:00 to Mon 9 Mar 2026 17:10" in (
+        row["detail"])
 
 
 def test_short_no_data_gap_does_not_break_a_continuous_run():
