@@ -28,7 +28,11 @@ finding, not ten symptoms):
    ``holiday`` (one finding per date, named after the day), any other date without an
    occupied period (Saturdays and Sundays in most schedules) is ``weekend``, and a date with
    an occupied period is ``night`` (so a night that runs past midnight stays one finding).
-   A cut piece with less running than the persistence joins its longer neighbour.
+   A cut piece with less running than the persistence joins its longer neighbour. An episode
+   that crosses one midnight, begins after noon and ends before noon, next to a working day,
+   is not cut at all: it is one ``night`` (the night before or after a working day), even
+   when the other date is a weekend day or a holiday. A night finding that runs straight on
+   from the late-stop allowance, or into the early-start allowance, says so.
 4. **early_start / late_stop**. Episodes below the persistence that end where scheduled time
    begins (running on into it) are early starts; those that begin where scheduled time ends
    (running on from it) are late stops. Overruns shorter than ``DEFAULT_MIN_OVERRUN`` are
