@@ -43,8 +43,13 @@ def _segments(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 def write_fixture(outdir: Path, *, first: dt.date = dt.date(2026, 3, 23), days: int = 14,
                   tz: str = "Europe/Oslo", units=None, site_name: str = "Harbour Street Offices",
-                  holiday: tuple[int, str] | None = (3, "Founders' Day"), seed: int = 7) -> Path:
-    """Write summary.json, daily.csv, runs.csv, findings.csv and schedule.csv into ``outdir``."""
+                  holiday: tuple[int, str] | None = (3, "Founders' Day"), seed: int = 7,
+                  gaps_per_day: int = 0) -> Path:
+    """Write summary.json, daily.csv, runs.csv, findings.csv and schedule.csv into ``outdir``.
+
+    ``gaps_per_day`` adds that many random 2-10 minute no-data gaps per component and day
+    (lost radio packets), which fragments runs.csv the way real data does.
+    """
     units = DEFAULT_UNITS if units is None else units
     rng = np.random.default_rng(seed)
     outdir.mkdir(parents=True, exist_ok=True)
@@ -87,6 +92,10 @@ def write_fixture(outdir: Path, *, first: dt.date = dt.date(2026, 3, 23), days: 
             state = np.where(on, 1, 0)
             if ui == 0 and ci == 0:
                 state[(day_idx == 1) & (mod >= 600) & (mod < 780)] = 2
+            if gaps_per_day:
+                at = rng.integers(0, len(state), gaps_per_day * days)
+                for a, n in zip(at, rng.integers(2, 11, len(at)), strict=True):
+                    state[a:a + n] = 2
             speed = 0.85
             kw = power * speed**3.0
             s_idx, e_idx = _segments(state)

@@ -96,8 +96,12 @@ def day_pieces(start: pd.Series, end: pd.Series, tz: str, first: dt.date,
 
 
 def _num(values: np.ndarray) -> list[str]:
-    """Numbers to short text (at most 2 decimals, no trailing zeros)."""
-    return [f"{v:.2f}".rstrip("0").rstrip(".") for v in np.round(values, 2)]
+    """Numbers to short text with one decimal at most (0.1 px is under a minute on the plots)."""
+    n = np.rint(np.asarray(values, dtype=float) * 10).astype(np.int64)
+    sign = np.where(n < 0, "-", "").tolist()
+    n = np.abs(n)
+    whole, tenth = (n // 10).tolist(), (n % 10).tolist()
+    return [f"{s}{w}.{t}" if t else f"{s}{w}" for s, w, t in zip(sign, whole, tenth, strict=True)]
 
 
 def rect_path(x: np.ndarray, y: np.ndarray, w: float | np.ndarray, h: np.ndarray) -> str:
