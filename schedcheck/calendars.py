@@ -27,18 +27,19 @@ Time rules
 Guard rails
 -----------
 The library silently drops or reinterprets some faults, and some rules would hang or exhaust
-the machine; :func:`check_calendar` refuses them all up front, naming file and event: a missing
-DTSTART, a property that does not parse, a TZID that matches no VTIMEZONE and no IANA zone,
-DTEND before DTSTART, DTEND together with DURATION, DTSTART and DTEND of different value types,
-a negative DURATION, an RRULE without FREQ or with ``FREQ=SECONDLY``/``MINUTELY``, ``INTERVAL``
-or ``COUNT`` below 1, more than :data:`MAX_STARTS_PER_DAY` starts a day from BYHOUR x BYMINUTE
-x BYSECOND, and a rule whose dates can never occur (e.g. 30 February). :func:`expand_calendar`
-adds the window caps :data:`MAX_WINDOW_DAYS`, :data:`MAX_RULE_STEPS` and
-:data:`MAX_OCCURRENCES`.
+the machine; :func:`schedcheck.calendar_checks.check_calendar` refuses them all up front,
+naming file and event: a missing DTSTART, a property that does not parse, a TZID that matches
+no VTIMEZONE and no IANA zone, DTEND before DTSTART, DTEND together with DURATION, DTSTART and
+DTEND of different value types, a negative DURATION, an RRULE without FREQ or with
+``FREQ=SECONDLY``/``MINUTELY``, ``INTERVAL`` or ``COUNT`` below 1, more than
+``MAX_STARTS_PER_DAY`` starts a day from BYHOUR x BYMINUTE x BYSECOND, and a rule whose dates
+can never occur (e.g. 30 February). :func:`expand_calendar` adds the window caps
+:data:`MAX_WINDOW_DAYS`, :data:`MAX_RULE_STEPS` and :data:`MAX_OCCURRENCES`.
 """
 
 from __future__ import annotations
 
+import copy
 import datetime as dt
 import zoneinfo
 from dataclasses import dataclass, field
@@ -48,8 +49,13 @@ import icalendar
 import numpy as np
 import pandas as pd
 import recurring_ical_events
-from dateutil.rrule import rrulestr
 
+from schedcheck.calendar_checks import (
+    as_naive,
+    check_calendar,
+    event_label,
+    rule_dicts,
+)
 from schedcheck.errors import InputError, InputProblems
 from schedcheck.intervals import from_ns
 from schedcheck.window import day_window, local_midnight
@@ -66,12 +72,6 @@ MAX_OCCURRENCES = 100_000
 few periods a day, about 3,000 over three years; 100,000 leaves room for per-room calendars
 while stopping a runaway rule before it exhausts memory (common practice, no source)."""
 
-MAX_STARTS_PER_DAY = 48
-"""Most starts a day one RRULE may define through BYHOUR x BYMINUTE x BYSECOND (or an HOURLY
-frequency) [-]. Occupancy changes at most every half hour in any building we know of, so 48
-(every 30 minutes) is already far denser than an occupancy calendar needs (common practice,
-no source)."""
-
 MAX_RULE_STEPS = 200_000
 """Most periods (days for DAILY, hours for HOURLY, ...) a rule may have to step through from
 its DTSTART to the end of the window [-]. The rule library walks them one by one, 5 to 11
@@ -79,7 +79,6 @@ microseconds each (measured on the development machine with dateutil 2.9), so th
 rule to about two seconds; a daily rule may start in 1900, an hourly one about 22 years back
 (our own choice, no source)."""
 
-_ALLOWED_FREQ = ("HOURLY", "DAILY", "WEEKLY", "MONTHLY", "YEARLY")
 _FREQ_STEP = {  # length of one step of the rule library [s] (nominal)
     "HOURLY": 3600, "DAILY": 86400, "WEEKLY": 7 * 86400, "MONTHLY": 28 * 86400,
     "YEARLY": 365 * 86400,
@@ -107,20 +106,6 @@ class CalendarExpansion:
     warnings: list[str] = field(default_factory=list)
 
 
-def event_label(event: icalendar.cal.Component, *, override: bool = True) -> str:
-    """``event 'SUMMARY' (UID)`` for messages; works on incomplete events.
-
-    With ``override``, an event with a RECURRENCE-ID is named as the override of that date.
-    """
-    summary = str(event.get("SUMMARY", "")).strip() or "(no summary)"
-    uid = str(event.get("UID", "")).strip() or "no UID"
-    rid = event.get("RECURRENCE-ID")
-    extra = ""
-    if override and rid is not None and hasattr(rid, "dt"):
-        extra = f", override of {rid.dt.isoformat()}"
-    return f"event {summary!r} ({uid}{extra})"
-
-
 def is_open_on_holidays(event: icalendar.cal.Component) -> bool:
     """True when the event's CATEGORIES contain :data:`HOLIDAY_MARKER` (case-insensitive)."""
     cats = event.get("CATEGORIES")
@@ -133,172 +118,6 @@ def is_open_on_holidays(event: icalendar.cal.Component) -> bool:
         else:
             values.extend(str(c).split(","))
     return any(v.strip().upper() == HOLIDAY_MARKER for v in values)
-
-
-# -- static checks ---------------------------------------------------------------------------
-def _values(prop) -> list:
-    """The date/datetime values of a property that may be a list, a vDDDLists or a single value."""
-    out = []
-    for p in prop if isinstance(prop, list) else [prop]:
-        if hasattr(p, "dts"):
-            out.extend((d.dt, d.params) for d in p.dts)
-        elif hasattr(p, "dt"):
-            out.append((p.dt, getattr(p, "params", {})))
-    return out
-
-
-def _unresolved_tzid(event) -> str | None:
-    for name in ("DTSTART", "DTEND", "RECURRENCE-ID", "EXDATE", "RDATE"):
-        prop = event.get(name)
-        if prop is None:
-            continue
-        props = prop if isinstance(prop, list) else [prop]
-        for p in props:
-            tzid = getattr(p, "params", {}).get("TZID")
-            for value, _ in _values(p):
-                first = value[0] if isinstance(value, tuple) else value
-                if tzid and isinstance(first, dt.datetime) and first.tzinfo is None:
-                    return (f"{name} has TZID={tzid!r}, which matches no VTIMEZONE in the "
-                            "file and no IANA time zone")
-    return None
-
-
-def _rule_dicts(event) -> list:
-    prop = event.get("RRULE")
-    if prop is None:
-        return []
-    return prop if isinstance(prop, list) else [prop]
-
-
-def _as_naive(value) -> dt.datetime:
-    if isinstance(value, dt.datetime):
-        return value.replace(tzinfo=None)
-    return dt.datetime(value.year, value.month, value.day)
-
-
-def _check_rule(rule, start) -> str | None:
-    """Why an RRULE (icalendar vRecur) is refused, or None."""
-    freq = [str(f).upper() for f in rule.get("FREQ", [])]
-    if not freq:
-        return "RRULE has no FREQ"
-    freq = freq[0]
-    if freq in ("SECONDLY", "MINUTELY"):
-        return (f"RRULE FREQ={freq} is far denser than an occupancy calendar needs; "
-                "write each period as an event with a DTEND")
-    if freq not in _ALLOWED_FREQ:
-        return f"RRULE FREQ={freq} is not an RFC 5545 frequency"
-    interval = rule.get("INTERVAL", [1])
-    interval = interval[0] if isinstance(interval, list) else interval
-    if int(interval) < 1:
-        return f"RRULE INTERVAL={interval} must be 1 or more (0 would repeat for ever)"
-    count = rule.get("COUNT")
-    if count is not None and int(count[0] if isinstance(count, list) else count) < 1:
-        return "RRULE COUNT must be 1 or more"
-    hourly = max(1, 24 // int(interval)) if freq == "HOURLY" else 1
-    n_hours = len(rule.get("BYHOUR", [])) or hourly
-    per_day = n_hours * (len(rule.get("BYMINUTE", [])) or 1) * (len(rule.get("BYSECOND", [])) or 1)
-    if per_day > MAX_STARTS_PER_DAY:
-        return (f"RRULE defines {per_day} starts a day (BYHOUR x BYMINUTE x BYSECOND), more than "
-                f"the {MAX_STARTS_PER_DAY} an occupancy calendar can need")
-    text = rule.to_ical().decode()
-    try:
-        parsed = rrulestr(text, dtstart=_as_naive(start), ignoretz=True)
-    except (ValueError, TypeError, OverflowError) as exc:
-        return f"RRULE {text!r} does not parse: {exc}"
-    return _never_occurs(rule, freq, parsed, text)
-
-
-def _never_occurs(rule, freq: str, parsed, text: str) -> str | None:
-    """Detect rules whose dates can never occur (e.g. BYMONTH=2;BYMONTHDAY=30).
-
-    The rule library would step through every period up to the year 9999 looking for one
-    (seconds to minutes for a daily rule), so such rules are refused. The date filters are
-    probed with a YEARLY rule, which steps one year at a time (about 0.2 s in the worst case).
-    """
-    parts = {"BYMONTH", "BYMONTHDAY", "BYYEARDAY", "BYWEEKNO", "BYDAY"}
-    if not parts & set(rule.keys()):
-        return None
-    probe = icalendar.vRecur({k: v for k, v in rule.items() if k in parts})
-    probe["FREQ"] = "YEARLY"
-    if freq == "MONTHLY" and "BYMONTH" not in rule:
-        probe["BYMONTH"] = list(range(1, 13))   # nth weekday counts within the month
-    try:
-        first = rrulestr(probe.to_ical().decode(), dtstart=dt.datetime(1970, 1, 1),
-                         ignoretz=True).after(dt.datetime(1970, 1, 1), inc=True)
-    except (ValueError, TypeError, OverflowError):
-        return None   # leave the verdict to the full parse
-    if first is None:
-        return f"RRULE {text!r} can never occur (no date matches all its BY parts)"
-    return None
-
-
-def _comparable(a, b):
-    if isinstance(a, dt.datetime) and isinstance(b, dt.datetime):
-        if (a.tzinfo is None) != (b.tzinfo is None):
-            return a.replace(tzinfo=None), b.replace(tzinfo=None)
-    return a, b
-
-
-def check_event(event: icalendar.cal.Component) -> list[str]:
-    """Every reason to refuse one VEVENT, as plain sentences (empty when it is fine)."""
-    problems: list[str] = []
-    for name, msg in getattr(event, "errors", []) or []:
-        problems.append(f"{name} does not parse: {msg}")
-    if problems:
-        return problems
-    start_prop = event.get("DTSTART")
-    if start_prop is None or not hasattr(start_prop, "dt"):
-        return ["has no DTSTART (RFC 5545 requires one when the calendar has no METHOD)"]
-    start = start_prop.dt
-    tz_problem = _unresolved_tzid(event)
-    if tz_problem:
-        problems.append(tz_problem)
-    end_prop, dur_prop = event.get("DTEND"), event.get("DURATION")
-    if end_prop is not None and dur_prop is not None:
-        problems.append("has both DTEND and DURATION (RFC 5545 allows one or the other)")
-    if end_prop is not None:
-        end = end_prop.dt
-        if isinstance(start, dt.datetime) != isinstance(end, dt.datetime):
-            problems.append("DTSTART and DTEND differ in value type (one DATE, one DATE-TIME)")
-        else:
-            a, b = _comparable(start, end)
-            if b < a:
-                problems.append(f"DTEND {end.isoformat()} is before DTSTART {start.isoformat()}")
-    if dur_prop is not None and hasattr(dur_prop, "dt") and isinstance(dur_prop.dt, dt.timedelta):
-        if dur_prop.dt < dt.timedelta(0):
-            problems.append(f"DURATION {dur_prop.to_ical().decode()} is negative")
-    for rule in _rule_dicts(event):
-        why = _check_rule(rule, start)
-        if why:
-            problems.append(why)
-    return problems
-
-
-def check_calendar(cal: icalendar.Calendar, *, path: str | Path | None = None) -> list[InputError]:
-    """Run every guard rail that needs no window; one :class:`InputError` per problem.
-
-    Parameters
-    ----------
-    cal : icalendar.Calendar
-        The parsed calendar.
-    path : str or Path, optional
-        The file it came from, for the messages.
-    """
-    out: list[InputError] = []
-    scale = str(cal.get("CALSCALE", "GREGORIAN")).upper()
-    if scale != "GREGORIAN":
-        out.append(InputError(f"CALSCALE {scale} is not supported; only GREGORIAN", path=path))
-    xwr = cal.get("X-WR-TIMEZONE")
-    if xwr is not None:
-        try:
-            zoneinfo.ZoneInfo(str(xwr).strip())
-        except (zoneinfo.ZoneInfoNotFoundError, ValueError):
-            out.append(InputError(f"X-WR-TIMEZONE {str(xwr)!r} is not an IANA time zone",
-                                  path=path))
-    for event in cal.walk("VEVENT"):
-        for why in check_event(event):
-            out.append(InputError(why, path=path, key=event_label(event)))
-    return out
 
 
 # -- expansion -------------------------------------------------------------------------------
@@ -325,13 +144,46 @@ def _to_utc_ns(value, zone: zoneinfo.ZoneInfo, tz: str) -> int:
 def _rule_steps(event, window_end: dt.datetime) -> int:
     start = event.get("DTSTART").dt
     most = 0
-    for rule in _rule_dicts(event):
+    for rule in rule_dicts(event):
         freq = str(rule.get("FREQ", ["DAILY"])[0]).upper()
         interval = rule.get("INTERVAL", [1])
         interval = int(interval[0] if isinstance(interval, list) else interval)
-        span = (window_end - _as_naive(start)).total_seconds()
+        span = (window_end - as_naive(start)).total_seconds()
         most = max(most, int(span // (_FREQ_STEP.get(freq, 86400) * max(interval, 1))))
     return most
+
+
+def _date_until_inclusive(cal: icalendar.Calendar) -> tuple[icalendar.Calendar, list[str]]:
+    """Read a DATE ``UNTIL`` on a DATE-TIME event as the end of that date (a common slip).
+
+    RFC 5545 requires UNTIL to have DTSTART's type; the rule library reads a bare date as
+    00:00 UTC and silently drops the last day. We keep the whole day, on a copy of the
+    calendar, and say so in a note.
+    """
+    todo = []
+    for i, event in enumerate(cal.walk("VEVENT")):
+        start = event.get("DTSTART")
+        if start is None or not isinstance(start.dt, dt.datetime):
+            continue
+        for j, rule in enumerate(rule_dicts(event)):
+            until = rule.get("UNTIL", [None])[0]
+            if isinstance(until, dt.date) and not isinstance(until, dt.datetime):
+                todo.append((i, j, until))
+    if not todo:
+        return cal, []
+    cal = copy.deepcopy(cal)
+    events = cal.walk("VEVENT")
+    notes = []
+    for i, j, until in todo:
+        event = events[i]
+        tzinfo = event["DTSTART"].dt.tzinfo
+        end = dt.datetime.combine(until, dt.time(23, 59, 59), tzinfo=tzinfo)
+        if tzinfo is not None:
+            end = end.astimezone(dt.UTC)
+        rule_dicts(event)[j]["UNTIL"] = [end]
+        notes.append(f"{event_label(event)}: RRULE UNTIL={until:%Y%m%d} is a date but DTSTART "
+                     "has a time; read as the end of that date (RFC 5545 wants a date-time)")
+    return cal, notes
 
 
 def expand_calendar(
@@ -372,6 +224,7 @@ def expand_calendar(
     problems = check_calendar(cal, path=path)
     if problems:
         raise problems[0] if len(problems) == 1 else InputProblems(problems)
+    cal, notes = _date_until_inclusive(cal)
     zone = zoneinfo.ZoneInfo(tz)
     w0, w1 = day_window(first, last, tz)
     w0_ns, w1_ns = int(w0.value), int(w1.value)
@@ -434,7 +287,9 @@ def expand_calendar(
             core = getattr(series.components[0], "_component", icalendar.Event())
             raise InputError(f"cannot be expanded: {exc}", path=path,
                              key=event_label(core)) from None
-    warnings = []
+    warnings = [f"{where}{note}" for note in notes]
+    if not cal.walk("VEVENT"):
+        warnings.append(f"{where}the calendar holds no events (VEVENT)")
     for (label, why), when in dropped.items():
         n = len(when)
         at = when[0].isoformat() + (f" and {n - 1} more" if n > 1 else "")

@@ -333,3 +333,22 @@ def test_windows_zone_name_is_understood():
             "DTEND;TZID=W. Europe Standard Time:20260302T170000")
     res = expand_calendar(c, OSLO, D(2026, 3, 2), D(2026, 3, 2))
     assert local_spans(res, OSLO) == [("2026-03-02T07:00:00+01:00", "2026-03-02T17:00:00+01:00")]
+
+
+def test_date_until_on_timed_event_keeps_the_last_day_with_a_note():
+    # RFC 5545 section 3.3.10: UNTIL must have DTSTART's value type; a bare date is a common
+    # slip, which the rule library would read as 00:00 UTC and so drop the last day
+    c = cal("SUMMARY:Course\nDTSTART;TZID=Europe/Oslo:20260302T070000\n"
+            "DTEND;TZID=Europe/Oslo:20260302T170000\nRRULE:FREQ=DAILY;UNTIL=20260305")
+    res = expand_calendar(c, OSLO, D(2026, 3, 1), D(2026, 3, 31), path="c.ics")
+    assert [s[:10] for s, _ in local_spans(res, OSLO)] == [
+        "2026-03-02", "2026-03-03", "2026-03-04", "2026-03-05"]
+    assert len(res.warnings) == 1 and "UNTIL=20260305" in res.warnings[0]
+    # the caller's calendar is not changed
+    assert str(c.walk("VEVENT")[0]["RRULE"]["UNTIL"][0]) == "2026-03-05"
+
+
+def test_calendar_without_events_is_a_warning():
+    res = expand_calendar(cal(), OSLO, D(2026, 3, 1), D(2026, 3, 31), path="empty.ics")
+    assert len(res.events) == 0 and res.warnings == ["empty.ics: the calendar holds no events "
+                                                     "(VEVENT)"]
