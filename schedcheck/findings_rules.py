@@ -271,11 +271,14 @@ def _day_finding(ctx: Context, label: tuple, part: Intervals) -> Found:
         if all(d.weekday() >= 5 for d in days):
             where = ("on " + day_text(d0)) if d0 == d1 else (
                 f"over the weekend of {day_text(d0, year=False)} to {day_text(d1)}")
+            where += f" {when}"
+        elif d0 == d1:
+            where = f"on {day_text(d0)} {when}, a day with no occupied period in the schedule"
         else:
-            where = ("on " + day_text(d0)) if d0 == d1 else (
-                f"from {day_text(d0, year=False)} to {day_text(d1)}")
-            where += ", with no occupied period in the schedule"
-        detail = (f"Ran {hours:.1f} h{runs} {where} {when}{{energy}}; check the "
+            a, b = local(s, ctx.tz), local(e, ctx.tz)
+            where = (f"between {day_text(d0, year=False)} {a:%H:%M} and {day_text(b.date())} "
+                     f"{b:%H:%M}, days with no occupied period in the schedule")
+        detail = (f"Ran {hours:.1f} h{runs} {where}{{energy}}; check the "
                   "unoccupied days in the controller's time programme and look for an override "
                   "left on.")
         return Found("weekend", s, e, d0, hours, hours, detail)

@@ -668,4 +668,16 @@ def test_cycling_from_a_working_evening_through_an_unoccupied_day():
     assert list(found["kind"]) == ["night", "weekend"]
     assert list(found["date"]) == ["2026-03-02", "2026-03-03"]
     assert found["hours"].tolist() == pytest.approx([4 * 50 / 60, 25 * 50 / 60])
-    assert "with no occupied period in the schedule" in found["detail"].iloc[1]
+    assert found["detail"].iloc[1].startswith(
+        "Ran 20.8 h in 25 runs between Tue 3 Mar 00:00 and Wed 4 Mar 2026 00:50, days with no "
+        "occupied period in the schedule (")
+
+
+def test_unit_without_an_occupied_calendar_reads_plainly():
+    runs = daily_runs("2026-03-02", "2026-03-03")
+    empty = office_schedule("2026-03-02", "2026-03-03").iloc[0:0]
+    found = run(states_frame(runs, "2026-03-02", "2026-03-03"), empty, "2026-03-02", "2026-03-03")
+    assert list(found["kind"]) == ["weekend", "weekend"]
+    assert found["detail"].iloc[0].startswith(
+        "Ran 11.2 h on Mon 2 Mar 2026 from 06:00 to 17:10, a day with no occupied period in the "
+        "schedule (")
