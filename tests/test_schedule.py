@@ -169,3 +169,83 @@ def test_kinds_never_overlap_on_a_messy_month():
     assert (a & w).duration_ns() == 0
     total = Intervals.from_frame(s.intervals).duration_ns()
     assert total == o.duration_ns() + a.duration_ns() + w.duration_ns()
+
+
+# -- property test: whatever the events, the kinds partition cleanly --------------------------
+from hypothesis import HealthCheck, given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+_EVENT = st.tuples(st.integers(0, 20), st.integers(0, 47), st.integers(1, 40), st.booleans())
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(events=st.lists(_EVENT, min_size=0, max_size=8),
+       allowed=st.lists(_EVENT, min_size=0, max_size=4),
+       off=st.sets(st.integers(0, 20), max_size=4),
+       early=st.integers(0, 6), late=st.integers(0, 6),
+       tz=st.sampled_from([OSLO, "America/New_York"]))
+def test_schedule_properties_across_dst(events, allowed, off, early, late, tz):
+    # windows of 2026-03-20..04-09 span the spring change in both zones
+    base = dt.datetime(2026, 3, 20)
+
+    def calendar(items):
+        bodies = []
+        for day, half_hour, length, marked in items:
+            s = base + dt.timedelta(days=day, minutes=30 * half_hour)
+            e = s + dt.timedelta(minutes=30 * length)
+            bodies.append(f"SUMMARY:E{day}-{half_hour}\nDTSTART;TZID={tz}:{s:%Y%m%dT%H%M%S}\n"
+                          f"DTEND;TZID={tz}:{e:%Y%m%dT%H%M%S}"
+                          + ("\nCATEGORIES:OPEN-ON-HOLIDAYS" if marked else ""))
+        return cal(*bodies)
+
+    first, last = D(2026, 3, 20), D(2026, 4, 9)
+    closed = tuple((first + dt.timedelta(days=d),) * 2 for d in sorted(off))
+    s = expand_unit_schedule([("occ.ics", calendar(events))], [("a.ics", calendar(allowed))],
+                             tz, first, last, early_start=pd.Timedelta(hours=early),
+                             late_stop=pd.Timedelta(hours=late),
+                             holidays=HolidaySettings(closed=closed))
+    f = s.intervals
+    if len(f):
+        assert (f["end"] > f["start"]).all()
+        assert (f["start"].iloc[1:].to_numpy() >= f["end"].iloc[:-1].to_numpy()).all()
+    o, a, w = (s.of_kind(k) for k in ("occupied", "allowance", "allowed"))
+    w0, w1 = pd.Timestamp(f"{first}", tz=tz), pd.Timestamp(f"{last + dt.timedelta(days=1)}", tz=tz)
+    window = Intervals.window(w0, w1)
+    for part in (o, a, w):   # nothing outside the window
+        assert (part - window).duration_ns() == 0
+    # allowance lies within the widened occupied time, and allowed within the allowed events
+    widened = o.shift_ends(pd.Timedelta(hours=early).value, pd.Timedelta(hours=late).value)
+    assert (a - widened).duration_ns() == 0
+    assert (o & a).duration_ns() == (o & w).duration_ns() == (a & w).duration_ns() == 0
+    # occupied time equals a plain re-statement of the documented day-off rule
+    assert o == _reference_occupied(events, base, tz, {first + dt.timedelta(days=d) for d in off},
+                                    window)
+    assert len(s.days_off) == len(off)
+
+
+def _reference_occupied(events, base, tz, off_dates, window) -> Intervals:
+    """The rule of docs/calendars.md written the slow, obvious way (times per RFC 5545 3.3.5)."""
+    from zoneinfo import ZoneInfo
+
+    zone, pieces = ZoneInfo(tz), []
+    for day, half_hour, length, marked in events:
+        s_local = base + dt.timedelta(days=day, minutes=30 * half_hour)
+        e_local = s_local + dt.timedelta(minutes=30 * length)
+        s = pd.Timestamp(s_local.replace(tzinfo=zone, fold=0).astimezone(dt.UTC))
+        e = pd.Timestamp(e_local.replace(tzinfo=zone, fold=0).astimezone(dt.UTC))
+        if e <= s:
+            continue                                    # dropped with a warning
+        piece = Intervals.window(s, e)
+        if not marked:
+            if s_local.date() in off_dates:
+                continue                                # starts on a day off: removed whole
+            if e - s >= pd.Timedelta(days=1):           # long: loses whole days off
+                for d in off_dates:
+                    d0 = pd.Timestamp(f"{d}", tz=tz)
+                    d1 = pd.Timestamp(f"{d + dt.timedelta(days=1)}", tz=tz)
+                    piece = piece - Intervals.window(d0, d1)
+        pieces.append(piece)
+    out = Intervals.empty()
+    for p in pieces:
+        out = out | p
+    return out & window
