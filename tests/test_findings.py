@@ -681,3 +681,16 @@ def test_unit_without_an_occupied_calendar_reads_plainly():
     assert found["detail"].iloc[0].startswith(
         "Ran 11.2 h on Mon 2 Mar 2026 from 06:00 to 17:10, a day with no occupied period in the "
         "schedule (")
+
+
+def test_new_opening_hours_from_the_change_date_are_not_a_clock_offset():
+    # the calendar itself moves to 08:00-18:00 from 30 March and the unit follows it: starts
+    # and stops are measured from the occupied period, so this is no clock fault
+    before = office_schedule("2026-03-02", "2026-03-29")
+    after = office_schedule("2026-03-30", "2026-04-26", occ=("08:00", "18:00"))
+    sched = pd.concat([before, after], ignore_index=True)
+    runs = (daily_runs("2026-03-02", "2026-03-27")
+            + daily_runs("2026-03-30", "2026-04-24", start="07:00", stop="18:05"))
+    found = run(states_frame(runs, "2026-03-02", "2026-04-26"), sched, "2026-03-02",
+                "2026-04-26")
+    assert len(found) == 0
