@@ -18,12 +18,8 @@ import pandas as pd
 from markupsafe import Markup
 
 from schedcheck.outputs import svg
+from schedcheck.outputs.histogram import histogram_svg
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
-
-try:  # written in another module; the report shows a plain table until it exists
-    from schedcheck.outputs.histogram import histogram_svg
-except ImportError:  # pragma: no cover - depends on which modules have landed
-    histogram_svg = None
 
 FINDINGS_SHOWN = 300  # rows of the findings table on the page (common practice, no source)
 
@@ -145,11 +141,12 @@ def _charts(data: SavedAudit, comp: dict, days_off: pd.DataFrame) -> None:
     th = comp["threshold"]
     hist = th.get("histogram") or {}
     comp["histogram"] = None
-    if histogram_svg is not None and hist.get("counts") and hist.get("edges"):
+    if hist.get("counts") and hist.get("edges"):
         comp["histogram"] = Markup(histogram_svg(
             np.asarray(hist["counts"], dtype=float), np.asarray(hist["edges"], dtype=float),
             th.get("level"), th.get("on_level"), th.get("off_level"),
-            f"{comp['id']}: levels seen"))
+            f"{comp['id']}: vibration levels seen", source=th.get("source"),
+            unit=data.summary["site"].get("reading_unit") or ""))
 
 
 def _findings(data: SavedAudit, comps: dict[str, dict]) -> list[dict]:
@@ -234,16 +231,31 @@ def report_context(data: SavedAudit) -> dict:
         "totals": totals, "findings": findings[:FINDINGS_SHOWN],
         "findings_hidden": findings[FINDINGS_SHOWN:], "n_findings": len(findings),
         "asks": _asks(findings, by_id),
-        "sensors": [{k: None for k in SENSOR_KEYS} | r for r in s.get("sensors") or []],
+        "sensors": _sensors(s.get("sensors") or [], data.timezone),
         "days_off": [{"unit": r.unit, "date": r.date.strftime("%a %d %b %Y"), "name": r.name,
                       "kind": r.kind} for r in days_off.drop_duplicates(
                           ["date", "name", "kind"]).itertuples(index=False)]
         if len(days_off) else [],
         "bad_rows": s.get("bad_rows") or {}, "warnings": s.get("warnings") or [],
         "generated": s.get("generated", ""), "tool_version": s.get("tool_version", ""),
-        "legend": Markup(svg.legend_svg("lg")), "has_histogram": histogram_svg is not None,
+        "legend": Markup(svg.legend_svg("lg")),
         "dst_days": _dst_days(data.timezone, first, last),
     }
+
+
+def _sensors(rows: list[dict], tz: str) -> list[dict]:
+    """Sensor health rows with every field present and first/last reading in local time."""
+    out = []
+    for r in rows:
+        r = {k: None for k in SENSOR_KEYS} | r
+        for key in ("first", "last"):
+            try:
+                ts = pd.Timestamp(r[key])
+                r[f"{key}_local"] = _local(ts, tz) if ts.tzinfo is not None else str(r[key])
+            except (TypeError, ValueError):
+                r[f"{key}_local"] = "–" if r[key] in (None, "") else str(r[key])
+        out.append(r)
+    return out
 
 
 def _dst_days(tz: str, first: dt.date, last: dt.date) -> list[str]:

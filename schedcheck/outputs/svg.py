@@ -28,6 +28,7 @@ TINT_OFF = "#e6ebf1"       # off: pale blue-grey
 HATCH_NODATA = "#8d939c"   # no data: grey hatch on white
 LINE_OCCUPIED = "#e59400"  # occupied period outline: amber ...
 LINE_UNDER = "#4a2f00"     # ... over a dark brown underlay
+LINE_ALLOW = "#7d8794"     # allowance / allowed window: dotted grey outline
 BAR_IN = "#4f7cac"         # in schedule
 BAR_ALLOW = "#b9cbe0"      # allowance / allowed window
 BAR_OFFSCHED = "#b4441a"   # off-schedule running: rust with white stripes
@@ -228,6 +229,16 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
         out.append(f'<path d="M{LEFT} {y}h{ndays * cw:.1f}" stroke="#fff" stroke-opacity=".55" '
                    f'stroke-width=".6"/>')
     if schedule is not None and len(schedule):
+        spare = schedule[schedule["kind"] != "occupied"]
+        _, day, y0, y1 = day_pieces(spare["start"], spare["end"], tz, first, ndays)
+        if len(day):
+            x = LEFT + day * cw
+            if cw >= 5:
+                d = rect_path(x + 0.8, TOP + y0 * k, cw - 1.6, (y1 - y0) * k)
+            else:
+                d = _hlines(x, TOP + y0 * k, cw) + _hlines(x, TOP + y1 * k, cw)
+            out.append(f'<path class="allowance" d="{d}" fill="none" stroke="{LINE_ALLOW}" '
+                       f'stroke-width=".9" stroke-dasharray="2 1.5"/>')
         occ = schedule[schedule["kind"] == "occupied"]
         _, day, y0, y1 = day_pieces(occ["start"], occ["end"], tz, first, ndays)
         if len(day):
@@ -238,9 +249,9 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
                 d = _hlines(x, TOP + y0 * k, cw) + _hlines(x, TOP + y1 * k, cw)
             # two-tone line: the dark underlay shows on pale "off", the amber on dark "run",
             # so the outline survives grey-scale print on both
-            out.append(f'<path d="{d}" fill="none" stroke="{LINE_UNDER}" stroke-width="2.4"/>'
+            out.append(f'<path d="{d}" fill="none" stroke="{LINE_UNDER}" stroke-width="2"/>'
                        f'<path class="occupied" d="{d}" fill="none" stroke="{LINE_OCCUPIED}" '
-                       f'stroke-width="1.2"/>')
+                       f'stroke-width="1.1"/>')
     out.append(f'<rect x="{LEFT}" y="{TOP}" width="{ndays * cw:.2f}" height="{ph}" fill="none" '
                f'stroke="{TEXT}" stroke-width=".6"/>')
     out.append(_days_off_marks(days_off, first, ndays, cw, TOP + ph + 3))
@@ -326,7 +337,7 @@ def legend_svg(pid: str) -> str:
     items = [
         (INK_RUN, "running", None), (TINT_OFF, "off", None), (f"url(#{pid}-nd)", "no data", None),
         (TINT_OFF, "occupied period (outline)", LINE_OCCUPIED), (BAR_IN, "in schedule", None),
-        (BAR_ALLOW, "allowance or allowed window", None),
+        (BAR_ALLOW, "allowance or allowed window (bar; dotted outline)", None),
         (f"url(#{pid}-os)", "off-schedule running", None),
         (f"url(#{pid}-ms)", "missed (below the axis)", None),
         (MARK_DAYOFF, "holiday or closure (under the dates)", None),
@@ -341,6 +352,8 @@ def legend_svg(pid: str) -> str:
         if stroke:
             out.append(f'{box} stroke="{LINE_UNDER}" stroke-width="2.6"/><rect x="{x}" y="{y}" '
                        f'width="14" height="12" fill="none" stroke="{stroke}" stroke-width="1.2"/>')
+        elif fill == BAR_ALLOW:
+            out.append(f'{box} stroke="{LINE_ALLOW}" stroke-dasharray="2 1.5"/>')
         else:
             out.append(f'{box} stroke="{GRID}"/>')
         out.append(f'<text x="{x + 19}" y="{y + 10}">{label}</text>')
