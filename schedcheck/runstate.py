@@ -98,6 +98,7 @@ class Threshold:
     groups: tuple[float, ...] = ()
     reason: str = ""
     warnings: tuple[str, ...] = ()
+    floor: float = float("nan")       # the floor level in force [reading unit]
 
 
 @dataclass(frozen=True)
@@ -278,7 +279,8 @@ def choose_threshold(
         on, off = _band(b)
         c, e = _display_histogram(L, [b])
         return Threshold(lv, src, np.nan, np.nan, 10**on, 10**off, c, e, (),
-                         "no readings to learn from", ("no readings to learn a level from",))
+                         "no readings to learn from", ("no readings to learn a level from",),
+                         floor)
     g = groups if groups is not None else th.level_groups(L)
     med = [float(m) for m in g.medians]
     lo_med = hi_med = np.nan
@@ -351,10 +353,10 @@ def choose_threshold(
     below, above = L[L <= b], L[L > b]
     sep = th.ashman_d(below, above)
     eff = th.otsu_effectiveness(L, b) if below.size and above.size else np.nan
-    c, e = _display_histogram(L, [on, off])
+    c, e = _display_histogram(L, [on, off, F])
     level = float(configured) if configured is not None else float(10**b)
     return Threshold(level, src, sep, eff, float(10**on), float(10**off), c, e,
-                     tuple(float(10**m) for m in med), reason, tuple(warn))
+                     tuple(float(10**m) for m in med), reason, tuple(warn), floor)
 
 
 # -- states ----------------------------------------------------------------------------------

@@ -52,7 +52,8 @@ def component_record(cs: ComponentStates) -> dict:
 
     Fields: ``component`` (UNIT/COMPONENT), ``unit``, ``role``, ``sensor``, ``level``,
     ``on_level``, ``off_level`` [reading unit], ``source``, ``separation`` (Ashman's D, capped
-    at 1000), ``effectiveness`` (Otsu's eta), ``groups`` (level group medians), ``running_share``
+    at 1000), ``effectiveness`` (Otsu's eta), ``groups`` (level group medians), ``floor`` (the floor
+    level in force) [reading unit], ``running_share``
     (running / known time), ``starts``, ``starts_per_day`` (per 24 h of known time),
     ``known_hours``, ``no_data_hours`` [h], ``reason`` and ``warnings``.
     """
@@ -68,7 +69,7 @@ def component_record(cs: ComponentStates) -> dict:
         "off_level": _num(th.off_level, 6), "source": th.source,
         "separation": SEPARATION_CAP if sep > SEPARATION_CAP else _num(sep, 2),
         "effectiveness": _num(th.effectiveness, 3),
-        "groups": [_num(g, 6) for g in th.groups],
+        "groups": [_num(g, 6) for g in th.groups], "floor": _num(th.floor, 6),
         "running_share": _num(cs.run_share, 4),
         "starts": int(cs.starts),
         "starts_per_day": _num(cs.starts / (known / 24.0), 2) if known > 0 else None,
@@ -127,7 +128,7 @@ def site_states(
             th = states[c.key].threshold
             svg = histogram_svg(th.counts, th.edges_log10, th.level, th.on_level, th.off_level,
                                 f"{c.key} ({c.role.replace('_', ' ')}, sensor {c.sensor})",
-                                source=th.source, unit=site.readings.unit)
+                                source=th.source, unit=site.readings.unit, floor=th.floor)
             pictures.append(write_histogram(Path(plot_dir) / picture_name(c.key), svg))
     warnings = [str(w) for w in getattr(readings, "warnings", []) or []]
     return StatesResult(site, first, last, start, end, states, records, warnings, pictures)

@@ -46,6 +46,7 @@ def histogram_svg(
     *,
     source: str | None = None,
     unit: str = "",
+    floor: float | None = None,
 ) -> str:
     """An SVG picture of a level histogram with the on/off level and hysteresis band.
 
@@ -63,6 +64,8 @@ def histogram_svg(
         ``learned``, ``configured`` or ``floor``; written beside the level line.
     unit : str
         Reading unit label for the axis, e.g. ``mm/s``.
+    floor : float, optional
+        The absolute floor level, drawn as a dashed line [reading unit].
 
     Returns
     -------
@@ -125,6 +128,11 @@ def histogram_svg(
                f'{label}</text>')
     out.append(f'<text x="14" y="{TOP + ph / 2:.1f}" text-anchor="middle" '
                f'transform="rotate(-90 14 {TOP + ph / 2:.1f})">readings (square-root scale)</text>')
+    if floor is not None and ok(floor) and x0 <= math.log10(floor) <= x1:
+        x = X(math.log10(floor))
+        out.append(f'<line x1="{x:.1f}" y1="{TOP}" x2="{x:.1f}" y2="{TOP + ph}" stroke="#666" '
+                   'stroke-dasharray="4 3"/>')
+        out.append(f'<text x="{x + 3:.1f}" y="{TOP + 12}" fill="#666">floor {_fmt(floor)}</text>')
     if ok(level):
         lv = math.log10(level)
         if x0 <= lv <= x1:
