@@ -195,3 +195,12 @@ def test_default_window_reads_once_and_matches_the_explicit_window(site, tmp_pat
     assert sa["sensors"] == sb["sensors"]
     assert [c["seconds"] for c in sa["components"]] == [c["seconds"] for c in sb["components"]]
     assert (a / "runs.csv").read_text() == (b / "runs.csv").read_text()
+
+
+def test_out_that_is_a_file_is_a_clear_error(site, tmp_path, capsys):
+    folder, _ = site
+    target = tmp_path / "taken"
+    target.write_text("x")
+    code, _, err = run(["audit", str(folder / "site.toml"), "--from", "2026-10-28", "--to",
+                        "2026-10-28", "--out", str(target)], capsys)
+    assert code == 2 and "taken" in err and "not a folder" in err

@@ -18,18 +18,21 @@ def _progress(message: str) -> None:
 
 def summary_table(result) -> object:
     """The per-component table (a rich Table) with a total row."""
+    from rich import box
     from rich.table import Table
 
     from schedcheck.intervals import NS_PER_H
 
     cur = result.site.energy.currency
     table = Table(title=f"{result.site.name}: {result.first_date} to {result.last_date}",
-                  title_justify="left")
-    table.add_column("Component")
-    heads = ("Scheduled h", "Running h", "Off-schedule h", "Missed h", "No data h",
-             "Off-schedule kWh", f"Cost {cur}".strip(), "Findings")
+                  title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False,
+                  collapse_padding=True)
+    keys = [c.key for c in result.components] + ["Total"]
+    table.add_column("Component", no_wrap=True, min_width=max(len(k) for k in keys))
+    heads = ("Sched.\nh", "Running\nh", "Off-\nsched.\nh", "Missed\nh", "No data\nh",
+             "Off-\nsched.\nkWh", f"Cost\n{cur}".strip(), "Find-\nings")
     for h in heads:
-        table.add_column(h, justify="right")
+        table.add_column(h, justify="right", overflow="fold")
     counts = result.findings["component"].value_counts().to_dict()
     tot = [0.0] * len(heads)
     for comp in result.components:

@@ -184,8 +184,14 @@ def audit_site(
     result = audit_result(site, first, last, skip_bad_rows=skip_bad_rows, progress=say)
     outdir = Path(out) if out is not None else default_outdir(site)
     say(f"writing files to {outdir}")
-    result.files = write_audit_files(result, outdir)
-    result.files["report.html"] = write_report_file(outdir)
+    if outdir.exists() and not outdir.is_dir():
+        raise InputError("exists and is not a folder; give another --out", path=outdir)
+    try:
+        result.files = write_audit_files(result, outdir)
+        result.files["report.html"] = write_report_file(outdir)
+    except OSError as e:
+        raise InputError(f"cannot write the audit files here ({e.strerror or e})",
+                         path=outdir) from None
     result.outdir = outdir
     return result
 
