@@ -10,8 +10,8 @@ pattern shifted, whatever anybody says the change date was).
 * :func:`mean_shift_penalty` is the default penalty: ``(G + 2) * log(n) * sigma^2``, the
   MBIC penalty value (Zhang and Siegmund 2007) with a robust noise estimate from
   :func:`robust_sigma`.
-* :func:`before_after` compares the two periods day type by day type and gives a Welch
-  (Satterthwaite) 95% interval for the difference.
+* :func:`before_after` (in :mod:`schedcheck.before_after`, re-exported here) compares the two
+  periods day type by day type and gives a Welch (Satterthwaite) 95% interval.
 
 Series here are plain arrays or pandas Series of one value per local date (for instance
 off-schedule hours per day [h]); days without a usable value are NaN and are left out, and the
@@ -25,32 +25,35 @@ References
 .. [2] Zhang N.R., Siegmund D.O. (2007). A modified Bayes information criterion with
    applications to the analysis of comparative genomic hybridization data. Biometrics 63(1),
    22-32.
-.. [3] Welch B.L. (1947). The generalization of "Student's" problem when several different
-   population variances are involved. Biometrika 34, 28-35.
-.. [4] Satterthwaite F.E. (1946). An approximate distribution of estimates of variance
-   components. Biometrics Bulletin 2(6), 110-114.
-.. [5] Fearnhead P., Rigaill G. (2019). Changepoint detection in the presence of outliers.
+.. [3] Fearnhead P., Rigaill G. (2019). Changepoint detection in the presence of outliers.
    Journal of the American Statistical Association 114(525), 169-183.
 """
 
 from __future__ import annotations
 
-import datetime as dt
 from collections.abc import Sequence
-from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
-from scipy import stats
 
+from schedcheck.before_after import BeforeAfter, before_after, default_day_types
 from schedcheck.errors import InputError
+
+__all__ = [
+    "BeforeAfter",
+    "before_after",
+    "biweight_cost",
+    "change_point_ranges",
+    "default_day_types",
+    "mean_shift_penalty",
+    "pelt_mean_shift",
+    "robust_sigma",
+    "segment_means",
+]
 
 #: Scale factor turning a median absolute deviation into a standard deviation for Gaussian
 #: noise, 1 / Phi^-1(3/4) = 1.4826 (Hampel 1974; the usual consistency constant).
 MAD_TO_SIGMA = 1.482602218505602
-
-#: Confidence level of the before/after interval [-]; 95% is common practice, no source.
-CONFIDENCE = 0.95
 
 
 def _as_float_array(values, name: str = "values") -> np.ndarray:
@@ -167,7 +170,7 @@ def biweight_cost(values, cap: float) -> float:
 
     Notes
     -----
-    The biweight loss of Fearnhead and Rigaill [5]_. The cost is piecewise quadratic in ``m``
+    The biweight loss of Fearnhead and Rigaill [3]_. The cost is piecewise quadratic in ``m``
     with breakpoints at ``y_i +- cap``; on each piece the values within ``cap`` of ``m`` are a
     fixed run of the sorted values, and the best ``m`` there is their mean, clipped to the
     piece. Every piece is checked, so the result is exact, in O(k log k) for k values.
@@ -279,7 +282,8 @@ def pelt_mean_shift(
             admissible.append(tau_new)
         cand = np.asarray(admissible, dtype=np.int64)
         total = best[cand] + cost(cand, t) + penalty
-        j = int(np.argmin(total))
+        # ties (within rounding) go to the earliest last change: the first day that differs
+        j = int(np.flatnonzero(total <= total.min() + 1e-9 * max(1.0, abs(total.min())))[0])
         best[t] = total[j]
         last[t] = cand[j]
         admissible = cand[total <= best[t] + penalty].tolist()
@@ -290,166 +294,6 @@ def pelt_mean_shift(
         if t > 0:
             points.append(t)
     return sorted(points)
-
-
-@dataclass(frozen=True)
-class BeforeAfter:
-    """Before/after comparison of a daily figure.
-
-    Means are standardised to one mix of day types (see :func:`before_after`), so
-    ``after_mean - before_mean == difference``.
-    """
-
-    before_mean: float  # [unit of the series per day]
-    after_mean: float
-    difference: float  # after - before
-    ci95: tuple[float, float]  # Welch-Satterthwaite interval of the difference
-    n_before: int  # days used
-    n_after: int
-    dof: float  # Satterthwaite degrees of freedom (inf when exact)
-    day_types: dict[str, dict[str, float]] = field(
-        default_factory=dict
-    )  # per type: n, means, weight
-    notes: tuple[str, ...] = ()
-
-
-def _dates(index) -> list[dt.date]:
-    return [pd.Timestamp(d).date() for d in index]
-
-
-def default_day_types(dates: Sequence[dt.date]) -> list[str]:
-    """``"weekday"`` for Monday..Friday and ``"weekend"`` for Saturday and Sunday."""
-    return ["weekend" if d.weekday() >= 5 else "weekday" for d in dates]
-
-
-def before_after(
-    daily: pd.Series,
-    change_date: dt.date,
-    before_days: int,
-    after_days: int,
-    *,
-    day_types: pd.Series | None = None,
-) -> BeforeAfter:
-    """Compare a daily figure over the days before a change date with the days after it.
-
-    Parameters
-    ----------
-    daily : pandas.Series
-        One value per local date [e.g. h/day or kWh/day]; the index holds dates. NaN marks a
-        day without a usable value; such days are left out (count them before calling).
-    change_date : datetime.date
-        First local date of the "after" period.
-    before_days, after_days : int
-        Lengths of the periods ``[change - before_days, change)`` and
-        ``[change, change + after_days)`` [days].
-    day_types : pandas.Series, optional
-        A label per date (same index as ``daily``), for instance ``"occupied"`` for days with
-        occupied hours and ``"unoccupied"`` for the rest. Default: weekday / weekend.
-
-    Returns
-    -------
-    BeforeAfter
-
-    Notes
-    -----
-    Like is compared with like: per day type ``k`` the two periods give means ``b_k``, ``a_k``
-    and variances; the figures are weighted by ``w_k``, the share of type ``k`` among all days
-    used in both periods, so a period with an extra weekend or a holiday is not penalised:
-    ``before = sum w_k b_k``, ``after = sum w_k a_k``. The variance of the difference is
-    ``sum w_k^2 (s_ak^2 / n_ak + s_bk^2 / n_bk)`` and its degrees of freedom are
-    Satterthwaite's [4]_ (Welch's t interval [3]_ generalised to strata). A day type missing
-    from one period is left out (with a note); a type with a single day in a period makes the
-    comparison fall back to one stratum. Days are treated as independent; a run of similar
-    days (the same override left on for a week) makes the interval narrower than it should be.
-    A seeded bootstrap of days would not fix that either; Welch's interval was chosen because
-    it is exact in closed form, deterministic and well understood with 20-30 days a period.
-    """
-    if before_days < 2 or after_days < 2:
-        raise InputError("before and after periods need at least 2 days each", key="before/after")
-    dates = _dates(daily.index)
-    values = pd.Series(np.asarray(daily, dtype=float), index=pd.Index(dates))
-    if day_types is None:
-        types = pd.Series(default_day_types(dates), index=pd.Index(dates))
-    else:
-        types = pd.Series(list(day_types), index=pd.Index(_dates(day_types.index)))
-        types = types.reindex(pd.Index(dates))
-    b0 = change_date - dt.timedelta(days=int(before_days))
-    a1 = change_date + dt.timedelta(days=int(after_days))
-    period = pd.Series(
-        [
-            ("before" if b0 <= d < change_date else "after" if change_date <= d < a1 else None)
-            for d in dates
-        ],
-        index=pd.Index(dates),
-    )
-    ok = values.notna() & period.notna() & types.notna()
-    frame = pd.DataFrame({"v": values[ok], "p": period[ok], "t": types[ok].astype(str)})
-    n_b = int((frame.p == "before").sum())
-    n_a = int((frame.p == "after").sum())
-    if n_b < 2 or n_a < 2:
-        raise InputError(
-            f"too few days with data to compare: {n_b} before and {n_a} after {change_date} "
-            "(need 2 each)",
-            key="change",
-        )
-    notes: list[str] = []
-    counts = (
-        frame.groupby(["t", "p"])
-        .size()
-        .unstack(fill_value=0)
-        .reindex(columns=["before", "after"], fill_value=0)
-    )
-    keep = [t for t in counts.index if counts.loc[t, "before"] > 0 and counts.loc[t, "after"] > 0]
-    for t in counts.index:
-        if t not in keep:
-            notes.append(f"{t} days appear on one side only and are left out of the comparison")
-    if not keep:
-        raise InputError(f"no day type appears both before and after {change_date}", key="change")
-    if any(counts.loc[t, "before"] < 2 or counts.loc[t, "after"] < 2 for t in keep):
-        notes.append(
-            "too few days of some type to compare type by type; all days compared as one group"
-        )
-        frame = frame.assign(t="all day types")
-        keep = ["all day types"]
-    frame = frame[frame.t.isin(keep)]
-    total = len(frame)
-    parts = {}
-    terms = []  # (variance contribution, n - 1)
-    for t in keep:
-        sub = frame[frame.t == t]
-        b = sub.v[sub.p == "before"].to_numpy()
-        a = sub.v[sub.p == "after"].to_numpy()
-        w = len(sub) / total
-        parts[t] = {
-            "weight": w,
-            "n_before": len(b),
-            "n_after": len(a),
-            "before_mean": float(b.mean()),
-            "after_mean": float(a.mean()),
-        }
-        terms.append((w**2 * b.var(ddof=1) / len(b), len(b) - 1))
-        terms.append((w**2 * a.var(ddof=1) / len(a), len(a) - 1))
-    before = sum(p["weight"] * p["before_mean"] for p in parts.values())
-    after = sum(p["weight"] * p["after_mean"] for p in parts.values())
-    diff = after - before
-    var = sum(v for v, _ in terms)
-    if var > 0:
-        dof = var**2 / sum(v**2 / df for v, df in terms if v > 0)
-        half = float(stats.t.ppf(0.5 + CONFIDENCE / 2, dof) * np.sqrt(var))
-    else:
-        dof, half = float("inf"), 0.0
-        notes.append("every day of each type had the same value; the interval has no width")
-    return BeforeAfter(
-        before_mean=float(before),
-        after_mean=float(after),
-        difference=float(diff),
-        ci95=(float(diff - half), float(diff + half)),
-        n_before=int((frame.p == "before").sum()),
-        n_after=int((frame.p == "after").sum()),
-        dof=float(dof),
-        day_types=parts,
-        notes=tuple(notes),
-    )
 
 
 def segment_means(values, points: Sequence[int], groups=None) -> list[float]:
@@ -484,4 +328,52 @@ def segment_means(values, points: Sequence[int], groups=None) -> list[float]:
                 num += weights[g] * sel.mean()
                 den += weights[g]
         out.append(float(num / den))
+    return out
+
+
+def change_point_ranges(
+    values, points: Sequence[int], *, groups=None, min_size: int = 1, cap: float | None = None
+) -> list[tuple[int, int]]:
+    """For each change point, every position it could take at the same cost.
+
+    Parameters
+    ----------
+    values, groups, min_size, cap
+        As given to :func:`pelt_mean_shift`.
+    points : sequence of int
+        Change points returned by :func:`pelt_mean_shift`.
+
+    Returns
+    -------
+    list of (int, int)
+        Per change point, the first and last index ``i`` (inclusive) such that a new segment
+        starting at ``i`` instead, the other change points held, costs no more (within
+        rounding). A change between two days of a type whose level did not move (a weekend
+        between a last old working day and a first new one) can sit on any of them; the data
+        cannot tell, and the range says so.
+    """
+    y = _as_float_array(values)
+    n = len(y)
+    codes, k = _group_codes(groups, n)
+    y = y - y.mean() if n else y
+
+    def cost(s: int, e: int) -> float:
+        total = 0.0
+        for g in range(k):
+            v = y[s:e][codes[s:e] == g]
+            if v.size:
+                total += (
+                    biweight_cost(v, cap) if cap is not None else float(((v - v.mean()) ** 2).sum())
+                )
+        return total
+
+    edges = [0, *points, n]
+    out = []
+    for i in range(1, len(edges) - 1):
+        a, b = edges[i - 1], edges[i + 1]
+        options = range(max(a + min_size, 1), b - min_size + 1)
+        costs = np.array([cost(a, t) + cost(t, b) for t in options])
+        tol = 1e-9 * max(1.0, float(np.abs(costs).max()))
+        ok = [t for t, c in zip(options, costs, strict=True) if c <= costs.min() + tol]
+        out.append((min(ok), max(ok)))
     return out
