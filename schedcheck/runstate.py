@@ -34,8 +34,9 @@ Defaults (each with its source):
   take about 3x the upper noise figure) gives 0.2 mm/s, which is also well below the
   vibration of a healthy running fan (ISO 10816-3 zone A reaches 1.4-2.3 mm/s, from memory).
   The other units are the same level converted at a typical 30 Hz fan frequency (from memory).
-* ``MIN_RUN``, ``MIN_STOP`` = 3 min: three one-minute readings; one or two odd readings never
-  start or stop a fan (common practice, no source).
+* ``MIN_RUN``, ``MIN_STOP`` = 3 min, or ``DWELL_PERIODS`` = 2.5 reading periods when readings
+  are rarer than one a minute: one or two odd readings never start or stop a fan (common
+  practice, no source). Settings given in the site file are used as they are.
 * ``HYSTERESIS`` = 0.1 decade either side (about +-26 %), narrowed to a quarter of the distance
   to each group's median when the groups are known (common practice, no source).
 * ``TRANSIENT_CREST`` = 2.5: steady running fans show crest factors of about 1.4-2 (sine
@@ -65,6 +66,8 @@ FLOOR_BY_UNIT = {"mm/s": 0.2, "in/s": 0.008, "ips": 0.008, "m/s": 0.0002,
                  "g": 0.004, "mg": 4.0, "m/s2": 0.04, "m/s^2": 0.04, "m/s²": 0.04}
 MIN_RUN = pd.Timedelta("3min")
 MIN_STOP = pd.Timedelta("3min")
+DWELL_PERIODS = 2.5       # default dwell in reading periods, when longer than 3 min [-]
+SEPARATION_CAP = 1000.0   # Ashman's D reported at most this (noise-free levels give infinity)
 HYSTERESIS = 0.1          # [decades]
 TRANSIENT_CREST = 2.5     # [-]
 CARRIED_SHARE = 0.95      # [-]
@@ -81,10 +84,11 @@ class Threshold:
     """The on/off level of one component and why it was chosen.
 
     ``level``, ``on_level``, ``off_level`` are in the reading unit; ``separation`` is Ashman's D
-    between the readings below and above ``level`` (log10 levels) and ``effectiveness`` Otsu's
-    eta of that split (both NaN when one side is empty); ``counts`` / ``edges_log10`` a
-    histogram of log10 levels for pictures; ``groups`` the medians of the level groups found
-    [reading unit]; ``reason`` one plain sentence.
+    between the readings below and above ``level`` (log10 levels; at most 1000) and
+    ``effectiveness`` Otsu's eta of that split (both NaN when one side is empty); ``counts`` /
+    ``edges_log10`` a histogram of log10 levels for pictures; ``groups`` the medians of the
+    level groups found [reading unit]; ``reason`` one plain sentence; ``floor`` the floor level
+    in force [reading unit].
     """
 
     level: float
@@ -172,18 +176,23 @@ def reading_levels(frame: pd.DataFrame, *, name: str = "readings") -> tuple[np.n
     return t, level, peak
 
 
-def log_levels(level: np.ndarray) -> np.ndarray:
-    """log10 of the levels; zeros are raised to half the smallest positive level first."""
+def log_levels(level: np.ndarray, floor: float) -> np.ndarray:
+    """log10 of the levels [log10 reading unit].
+
+    A level of exactly 0 (a sensor reporting nothing below its resolution) is raised to a tenth
+    of the smaller of the floor level and the smallest positive level, so that zeros form their
+    own group well below anything running.
+    """
     lv = np.asarray(level, dtype=float)
     pos = lv[lv > 0]
-    tiny = pos.min() / 2 if pos.size else 1e-9
+    tiny = min(pos.min() if pos.size else floor, floor) / 10
     return np.log10(np.maximum(lv, tiny))
 
 
 def default_floor(settings: RunStateSettings, level_unit: str) -> tuple[float, list[str]]:
     """The floor level [reading unit] from the settings or the table of defaults, + warnings."""
-    if settings.floor is not None:
-        return float(settings.floor), []
+    if settings.floor is not None:   # 0 is allowed: anything above zero is running
+        return max(float(settings.floor), 1e-12), []
     key = level_unit.strip().lower().replace(" ", "")
     if key in FLOOR_BY_UNIT:
         return FLOOR_BY_UNIT[key], []
@@ -351,7 +360,7 @@ def choose_threshold(
         b = gap_middle(L, b)
     on, off = _band(b, lo_med, hi_med)
     below, above = L[L <= b], L[L > b]
-    sep = th.ashman_d(below, above)
+    sep = min(th.ashman_d(below, above), SEPARATION_CAP)
     eff = th.otsu_effectiveness(L, b) if below.size and above.size else np.nan
     c, e = _display_histogram(L, [on, off, F])
     level = float(configured) if configured is not None else float(10**b)
@@ -424,7 +433,7 @@ _CODES = np.array(["off", "run", "no_data"], dtype=object)
 
 def _state_table(
     t: np.ndarray, L: np.ndarray, lv: np.ndarray, pk: np.ndarray, thr: Threshold,
-    s0: int, e0: int, max_gap: int, min_run: int, min_stop: int,
+    s0: int, e0: int, max_gap: int, min_run: int | None, min_stop: int | None,
 ) -> pd.DataFrame:
     """Readings (time-ordered, inside the window +- max_gap) -> the contiguous state table."""
     n = t.size
@@ -435,7 +444,11 @@ def _state_table(
         newseg = np.concatenate([[True], dt > max_gap])
         seg = np.cumsum(newseg) - 1
         inside = dt[dt <= max_gap]
-        half = min(int(np.median(inside)) if inside.size else max_gap, max_gap) // 2
+        period = min(int(np.median(inside)) if inside.size else max_gap, max_gap)
+        half = period // 2
+        dwell = max(int(MIN_RUN.value), int(DWELL_PERIODS * period))
+        min_run = dwell if min_run is None else min_run
+        min_stop = dwell if min_stop is None else min_stop
         mid = t[:-1] + dt // 2
         a = np.concatenate([[t[0] - half], np.where(newseg[1:], t[1:] - half, mid)])
         b = np.concatenate([np.where(newseg[1:], t[:-1] + half, mid), [t[-1] + half]])
@@ -493,14 +506,14 @@ def _summary(tab: pd.DataFrame) -> tuple[int, float]:
     return starts, (float(length[st == "run"].sum() / known) if known > 0 else float("nan"))
 
 
-def _prepared(frame: pd.DataFrame | None, name: str):
+def _prepared(frame: pd.DataFrame | None, name: str, floor: float):
     if frame is None or len(frame) == 0:
         z = np.zeros(0)
         return np.zeros(0, np.int64), z, z, z
     t, lv, pk = reading_levels(frame, name=name)
     ok = np.isfinite(lv)
     t, lv, pk = t[ok], lv[ok], pk[ok]
-    return t, lv, pk, log_levels(lv)
+    return t, lv, pk, log_levels(lv, floor)
 
 
 def _moving(t: np.ndarray, L: np.ndarray, g: th.LevelGroups, floor: float) -> np.ndarray:
@@ -555,8 +568,8 @@ def classify_component(
         See :func:`choose_threshold`; one entry per finite reading, in time order.
     """
     settings = settings if settings is not None else RunStateSettings()
-    t, lv, pk, L = _prepared(frame, component.sensor)
     floor, fw = default_floor(settings, level_unit)
+    t, lv, pk, L = _prepared(frame, component.sensor, floor)
     thr = choose_threshold(L, configured=component.threshold, floor=floor,
                            sibling_moving=sibling_moving)
     return _finish(component, t, lv, pk, L, thr, start, end, max_gap, settings, fw)
@@ -568,8 +581,8 @@ def _finish(component, t, lv, pk, L, thr, start, end, max_gap, settings, warning
         raise InputError(f"the window ends ({end}) before it starts ({start})", key="window")
     mg = int(pd.Timedelta(max_gap).value)
     sel = (t >= s0 - mg) & (t < e0 + mg)
-    min_run = int((settings.min_run if settings.min_run is not None else MIN_RUN).value)
-    min_stop = int((settings.min_stop if settings.min_stop is not None else MIN_STOP).value)
+    min_run = None if settings.min_run is None else int(settings.min_run.value)
+    min_stop = None if settings.min_stop is None else int(settings.min_stop.value)
     tab = _state_table(t[sel], L[sel], lv[sel], pk[sel], thr, s0, e0, mg, min_run, min_stop)
     starts, share = _summary(tab)
     warn = list(warnings)
@@ -617,7 +630,7 @@ def classify_unit(
     floor, fw = default_floor(settings, level_unit)
     prep, groups, moving = {}, {}, {}
     for c in unit.components:
-        prep[c.key] = _prepared(readings.get(c.sensor), c.sensor)
+        prep[c.key] = _prepared(readings.get(c.sensor), c.sensor, floor)
         t, lv, pk, L = prep[c.key]
         groups[c.key] = th.level_groups(L) if L.size else None
         moving[c.key] = (t, _moving(t, L, groups[c.key], floor) if L.size else L.astype(bool))
