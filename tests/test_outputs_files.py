@@ -150,6 +150,7 @@ def test_findings_ics_reads_back_with_icalendar(result, tmp_path):
     assert ev.decoded("dtend") == t("2026-10-25 12:00").to_pydatetime()
     assert str(ev["uid"]) == finding_uid("AHU-9/supply", "weekend", t("2026-10-24 08:00"))
     assert "DTSTAMP" in ev
+    assert "schedule findings" in str(cal["name"])  # RFC 7986 NAME
     # RFC 5545 3.1: content lines are folded at 75 octets and end in CRLF
     raw = files["findings.ics"].read_bytes()
     assert all(len(line) <= 75 for line in raw.split(b"\r\n"))

@@ -344,7 +344,7 @@ def findings_calendar(result: AuditResult) -> bytes:
     cal.add("prodid", f"-//schedcheck//audit findings {_version}//EN")
     cal.add("version", "2.0")
     cal.add("calscale", "GREGORIAN")
-    cal.add("x-wr-calname", f"{result.site.name}: schedule findings")
+    cal.add("name", f"{result.site.name}: schedule findings")   # RFC 7986 section 5.1
     stamp = result.generated.tz_convert("UTC").to_pydatetime()
     for row in result.findings.itertuples(index=False):
         ev = icalendar.Event()
