@@ -339,7 +339,11 @@ def choose_threshold(
         p_low, n_low = _moving_share(low, sibling_moving)
         three = (f"three level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}, "
                  f"{10**med[2]:.3g})")
-        if n_mid and p_mid >= CARRIED_SHARE and (not n_low or p_low <= 1 - CARRIED_SHARE):
+        if med[1] <= F:
+            b, lo_med, hi_med = hi_b, med[1], med[2]
+            reason = (f"{three}; the middle group lies below the floor level {floor:g}: "
+                      "counted as off")
+        elif n_mid and p_mid >= CARRIED_SHARE and (not n_low or p_low <= 1 - CARRIED_SHARE):
             b, lo_med, hi_med = hi_b, med[1], med[2]
             reason = (f"{three}; the middle group appears only while another component of the "
                       f"unit runs ({p_mid:.0%} of its readings): carried vibration, counted as off")

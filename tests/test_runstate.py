@@ -306,3 +306,18 @@ def test_single_axis_sparse_readings_and_zero_levels():
     score = synth.score_states(truth, cs.intervals, T0, end, tolerance="5min")
     assert score["unmatched"] == [] and score["known_share_correct"] > 0.99
     assert cs.starts == 10 and "no_data" not in set(cs.intervals["state"])
+
+
+def test_middle_group_below_the_floor_is_off():
+    # a sensor that sometimes reports 0 and otherwise its noise: three groups (zeros, noise,
+    # running); the noise group lies below the floor, so it is off whatever the siblings do
+    end = T0 + pd.Timedelta("14D")
+    rng = np.random.default_rng(17)
+    truth = synth.weekday_truth(T0, end, TZ, rng)
+    r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=T0, end=end)
+    state = synth._state_at(truth, synth.to_ns(r["timestamp"]))
+    zero = (state == "off") & (rng.random(len(r)) < 0.4)
+    r.loc[zero, ["x_rms", "y_rms", "z_rms", "x_peak", "y_peak", "z_peak"]] = 0.0
+    cs = runstate.classify_component(comp(), r, T0, end, GAP)
+    assert len(cs.threshold.groups) == 3 and "below the floor" in cs.threshold.reason
+    assert synth.score_states(truth, cs.intervals, T0, end)["known_share_correct"] > 0.995
