@@ -237,10 +237,21 @@ def report_context(data: SavedAudit) -> dict:
                           ["date", "name", "kind"]).itertuples(index=False)]
         if len(days_off) else [],
         "bad_rows": s.get("bad_rows") or {}, "warnings": s.get("warnings") or [],
-        "generated": s.get("generated", ""), "tool_version": s.get("tool_version", ""),
+        "generated": _when(s.get("generated")), "tool_version": s.get("tool_version", ""),
         "legend": Markup(svg.legend_svg("lg")),
         "dst_days": _dst_days(data.timezone, first, last),
     }
+
+
+def _when(text: str | None) -> str:
+    """The audit's creation instant as ``01 Dec 2026 22:02 UTC`` (as written if unreadable)."""
+    try:
+        ts = pd.Timestamp(text)
+    except (TypeError, ValueError):
+        return str(text or "")
+    if ts is pd.NaT or ts.tzinfo is None:
+        return str(text or "")
+    return ts.tz_convert("UTC").strftime("%d %b %Y %H:%M UTC")
 
 
 def _sensors(rows: list[dict], tz: str) -> list[dict]:

@@ -337,7 +337,7 @@ def legend_svg(pid: str) -> str:
     items = [
         (INK_RUN, "running", None), (TINT_OFF, "off", None), (f"url(#{pid}-nd)", "no data", None),
         (TINT_OFF, "occupied period (outline)", LINE_OCCUPIED), (BAR_IN, "in schedule", None),
-        (BAR_ALLOW, "allowance or allowed window (bar; dotted outline)", None),
+        (BAR_ALLOW, "allowance, allowed window (dotted)", None),
         (f"url(#{pid}-os)", "off-schedule running", None),
         (f"url(#{pid}-ms)", "missed (below the axis)", None),
         (MARK_DAYOFF, "holiday or closure (under the dates)", None),
