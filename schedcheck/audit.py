@@ -23,6 +23,10 @@ from schedcheck.energy import affinity_power, price
 from schedcheck.intervals import NS_PER_H, Intervals, to_ns
 from schedcheck.site import Component, Site, Unit
 
+#: Share of the window without data above which a component's figures get a warning
+#: (common practice, no source: a tenth unknown makes hour totals noticeably low).
+NO_DATA_WARN_SHARE = 0.10
+
 FINDING_COLUMNS = ("component", "kind", "start", "end", "hours", "kwh", "cost", "co2_kg",
                    "detail")
 
@@ -168,6 +172,12 @@ def run_audit(
             sw += [str(w) for w in getattr(threshold, "warnings", []) or []]
             for w in acc.warnings:
                 all_warnings.append(f"{comp.key}: {w}")
+            share = acc.ns["no_data"] / acc.ns["period"]
+            if share > NO_DATA_WARN_SHARE:
+                all_warnings.append(
+                    f"{comp.key}: {share:.0%} of the window has no data "
+                    f"({acc.ns['no_data'] / NS_PER_H:.1f} h); its hours and kWh cover only the "
+                    "known time and may understate the running")
             results.append(ComponentResult(comp, unit, acc, frame, threshold, kw, energy, sw))
     result = AuditResult(
         site=site, start=start, end=end, first_date=first_date, last_date=last_date,

@@ -204,3 +204,18 @@ def test_out_that_is_a_file_is_a_clear_error(site, tmp_path, capsys):
     code, _, err = run(["audit", str(folder / "site.toml"), "--from", "2026-10-28", "--to",
                         "2026-10-28", "--out", str(target)], capsys)
     assert code == 2 and "taken" in err and "not a folder" in err
+
+
+def test_window_beyond_the_data_is_no_data_with_warnings(site, tmp_path, capsys):
+    folder, _ = site
+    out = tmp_path / "beyond"
+    code, stdout, err = run(["audit", str(folder / "site.toml"), "--from", "2026-11-03",
+                             "--to", "2026-11-06", "--out", str(out)], capsys)
+    assert code == 0, err
+    s = json.loads((out / "summary.json").read_text())
+    sup = next(c for c in s["components"] if c["id"] == "AHU-7/supply")
+    # the data ends with 4 Nov: 5 and 6 Nov are 48 h of no data, nothing lost
+    assert sup["hours"]["no_data"] >= 48 and sup["hours"]["period"] == 96
+    assert any("ends with 2026-11-06 but the last reading" in w for w in s["warnings"])
+    assert any("AHU-7/supply: 5" in w and "no data" in w for w in s["warnings"])
+    assert "warning: the window ends with 2026-11-06" in stdout

@@ -134,6 +134,7 @@ def audit_result(
         say(f"classifying run states of {unit.id}")
         states.update(classify_unit(unit, readings.by_sensor, start, end,
                                     site.readings.max_gap, site.run_state))
+    load_warnings = _window_warnings(readings, start, end, site.timezone)
     say("expanding the intended schedule")
     schedules = _load_schedules(site, first, last)
     say("comparing and pricing")
@@ -142,7 +143,7 @@ def audit_result(
     result = run_audit(
         site, states, schedules, start, end, first_date=first, last_date=last,
         health=getattr(readings, "health", {}), bad_rows=_bad_rows(bad),
-        warnings=[str(w) for w in getattr(readings, "warnings", []) or []]
+        warnings=load_warnings + [str(w) for w in getattr(readings, "warnings", []) or []]
         + [f"{u}: {w}" for u, s in schedules.items() for w in getattr(s, "warnings", []) or []],
     )
     return result
@@ -194,6 +195,24 @@ def audit_site(
                          path=outdir) from None
     result.outdir = outdir
     return result
+
+
+def _window_warnings(readings, start: pd.Timestamp, end: pd.Timestamp, tz: str) -> list[str]:
+    """Say so when the audit window reaches beyond the readings."""
+    firsts = [h.first for h in readings.health.values() if h.first is not None]
+    lasts = [h.last for h in readings.health.values() if h.last is not None]
+    out = []
+    slack = pd.Timedelta("1h")   # common practice, no source: ignore edges within an hour
+    if firsts and min(firsts) - start > slack:
+        out.append(f"the window starts with {start.tz_convert(tz):%Y-%m-%d} but the first "
+                   f"reading is at {min(firsts).tz_convert(tz):%Y-%m-%d %H:%M}; the time "
+                   "before it is counted as no data")
+    if lasts and end - max(lasts) > slack:
+        last_day = (end - pd.Timedelta(1, "ns")).tz_convert(tz)
+        out.append(f"the window ends with {last_day:%Y-%m-%d} but the last "
+                   f"reading is at {max(lasts).tz_convert(tz):%Y-%m-%d %H:%M}; the time "
+                   "after it is counted as no data")
+    return out
 
 
 def _bad_rows(bad) -> dict:
