@@ -59,7 +59,7 @@ def level_histogram(values: np.ndarray, nbins: int = NBINS) -> tuple[np.ndarray,
     return counts.astype(float), (edges[:-1] + edges[1:]) / 2
 
 
-def otsu_threshold(values: np.ndarray, nbins: int = NBINS) -> float:
+def otsu_threshold(values: np.ndarray, nbins: int = NBINS, *, hist=None) -> float:
     """Otsu's threshold: the bin centre that maximises the between-class variance [1].
 
     Values above the threshold form the upper class. With a single distinct value that value is
@@ -71,6 +71,8 @@ def otsu_threshold(values: np.ndarray, nbins: int = NBINS) -> float:
         Finite values, at least one [any unit].
     nbins : int
         Number of histogram bins.
+    hist : (counts, centres), optional
+        :func:`level_histogram` of ``values``, when already computed.
 
     Returns
     -------
@@ -82,7 +84,7 @@ def otsu_threshold(values: np.ndarray, nbins: int = NBINS) -> float:
         raise ValueError("no values")
     if np.all(v == v[0]):
         return float(v[0])
-    counts, centres = level_histogram(v, nbins)
+    counts, centres = hist if hist is not None else level_histogram(v, nbins)
     w1 = np.cumsum(counts)
     w2 = np.cumsum(counts[::-1])[::-1]
     m1 = np.cumsum(counts * centres) / w1
@@ -123,7 +125,8 @@ def otsu_effectiveness(values: np.ndarray, thresholds) -> float:
     return between / float(total)
 
 
-def multi_otsu_thresholds(values: np.ndarray, nbins: int = NBINS) -> tuple[float, float]:
+def multi_otsu_thresholds(values: np.ndarray, nbins: int = NBINS, *,
+                          hist=None) -> tuple[float, float]:
     """Two thresholds splitting ``values`` into three classes by Otsu's criterion [1, 3].
 
     Exhaustive search over all pairs of bin boundaries, vectorised (256 bins: 32,640 pairs).
@@ -134,13 +137,16 @@ def multi_otsu_thresholds(values: np.ndarray, nbins: int = NBINS) -> tuple[float
         Finite values with at least three distinct values [any unit].
     nbins : int
         Number of histogram bins.
+    hist : (counts, centres), optional
+        :func:`level_histogram` of ``values``, when already computed.
 
     Returns
     -------
     (float, float)
         Lower and upper threshold (bin centres) [same unit as ``values``].
     """
-    counts, centres = level_histogram(values, nbins)
+    counts, centres = hist if hist is not None else level_histogram(values, nbins)
+    nbins = counts.size
     p = counts / counts.sum()
     cp = np.cumsum(p)
     cs = np.cumsum(p * centres)
@@ -231,12 +237,13 @@ def valley_ratio(values: np.ndarray, boundary: float, left: float, right: float)
     sel = v[(v >= left - (boundary - left)) & (v <= right + (right - boundary))]
     if sel.size == 0 or not left < right:
         return 1.0
-    edges = np.linspace(sel.min(), sel.max(), 129)
-    if edges[-1] <= edges[0]:
+    rng = (float(sel.min()), float(sel.max()))
+    if rng[1] <= rng[0]:
         return 1.0
+    edges = np.linspace(rng[0], rng[1], 129)
     kernel = np.ones(SMOOTH_BINS) / SMOOTH_BINS
-    lo = np.convolve(np.histogram(sel[sel <= boundary], edges)[0], kernel, mode="same")
-    hi = np.convolve(np.histogram(sel[sel > boundary], edges)[0], kernel, mode="same")
+    lo = np.convolve(np.histogram(sel[sel <= boundary], 128, rng)[0], kernel, mode="same")
+    hi = np.convolve(np.histogram(sel[sel > boundary], 128, rng)[0], kernel, mode="same")
     peak = min(lo.max(), hi.max())
     if peak <= 0:
         return 1.0
@@ -291,14 +298,15 @@ def level_groups(
         m = float(np.median(v)) if v.size else float("nan")
         return LevelGroups((), (m,), (1.0,), (), float("nan"), (m, float("nan"), float("nan")),
                            "too few distinct levels to split")
-    t2 = otsu_threshold(v)
+    hist = level_histogram(v)
+    t2 = otsu_threshold(v, hist=hist)
     med2, share2, sep2 = _describe(v, (t2,))
     eta2 = otsu_effectiveness(v, t2)
     two_way = (t2, sep2[0], eta2)
     valley2 = valley_ratio(v, t2, med2[0], med2[1])
     two_ok = min(share2) >= min_share and sep2[0] >= min_d and valley2 <= MAX_VALLEY
-    if np.count_nonzero(level_histogram(v)[0]) >= 3:
-        lo, hi = multi_otsu_thresholds(v)
+    if np.count_nonzero(hist[0]) >= 3:
+        lo, hi = multi_otsu_thresholds(v, hist=hist)
         med3, share3, sep3 = _describe(v, (lo, hi))
         eta3 = otsu_effectiveness(v, (lo, hi))
         if (min(share3) >= min_share and min(sep3) >= min_d
