@@ -118,7 +118,9 @@ def _component_rows(data: SavedAudit) -> list[dict]:
             "unit_name": (units.get(unit) or {}).get("name", ""),
             "name": c.get("name") or c["id"].split("/")[-1],
             "role": ROLE_LABELS.get(c.get("role", ""), c.get("role", "")),
+            "counts_missed": bool(c.get("missed_counted", c.get("role") != "heat_wheel")),
             "is_wheel": c.get("role") == "heat_wheel", "sensor": c.get("sensor", ""),
+            "warnings": [str(w) for w in c.get("warnings") or []],
             "hours": hours, "energy": energy, "starts": c.get("starts"),
             "power_kw": c.get("power_kw"), "speed": c.get("speed"),
             "exponent": c.get("exponent"), "threshold": threshold,
@@ -169,23 +171,34 @@ def _findings(data: SavedAudit, comps: dict[str, dict]) -> list[dict]:
 
 
 def _asks(findings: list[dict], comps: dict[str, dict]) -> list[dict]:
-    """One question for the contractor per component and finding kind, costliest first."""
+    """One question for the contractor per unit and finding kind, costliest first.
+
+    A unit's time program is usually one setting for all its fans, so the supply and exhaust
+    fans of one unit with the same kind of finding make one question.
+    """
     groups: dict[tuple[str, str], dict] = {}
     for f in findings:
-        g = groups.setdefault((f["component"], f["kind_code"]), {
-            "component": f["component"], "kind": f["kind"], "count": 0, "hours": 0.0,
-            "cost": 0.0, "kwh": 0.0})
+        comp = comps.get(f["component"], {})
+        unit = comp.get("unit") or f["component"].split("/")[0]
+        g = groups.setdefault((unit, f["kind_code"]), {
+            "unit": unit, "unit_name": comp.get("unit_name", ""), "components": [],
+            "kind": f["kind"], "count": 0, "hours": 0.0, "cost": 0.0, "kwh": 0.0,
+            "priced": f["kind_code"] != "missed"})
+        if f["component"] not in g["components"]:
+            g["components"].append(f["component"])
         g["count"] += 1
         g["hours"] += f["hours"] or 0.0
         g["kwh"] += f["kwh"] or 0.0
         g["cost"] += f["cost"] if f["cost"] is not None and math.isfinite(f["cost"]) else 0.0
     out = []
-    for (cid, kind), g in groups.items():
-        comp = comps.get(cid, {})
-        what = cid + (f" ({comp['unit_name']})" if comp.get("unit_name") else "")
+    for (unit, kind), g in groups.items():
+        parts = [c.split("/", 1)[-1] for c in g["components"]]
+        g["who"] = f"{unit} " + (" and ".join(parts) if len(parts) < 3
+                                  else ", ".join(parts[:-1]) + " and " + parts[-1])
+        what = unit + (f" ({g['unit_name']})" if g["unit_name"] else "")
         g["ask"] = KIND_ASKS.get(kind, "Review the findings of {what}.").format(what=what)
         out.append(g)
-    return sorted(out, key=lambda g: (-g["cost"], -g["kwh"], g["component"]))
+    return sorted(out, key=lambda g: (not g["priced"], -g["cost"], -g["kwh"], g["unit"]))
 
 
 def report_context(data: SavedAudit) -> dict:
@@ -206,10 +219,13 @@ def report_context(data: SavedAudit) -> dict:
             c["unit"] for c in comps)]:
         members = [c for c in comps if c["unit"] == u.get("id")]
         units.append({"id": u.get("id"), "name": u.get("name", ""), "components": members,
-                      "state_component": u.get("state_component")})
+                      "state_component": u.get("state_component"),
+                      "kwh": _sum(members, ("energy", "off_schedule_kwh")),
+                      "cost": _sum(members, ("energy", "off_schedule_cost")),
+                      "co2_kg": _sum(members, ("energy", "off_schedule_co2_kg"))})
     first, last = data.first_date, data.last_date
     ndays = (last - first).days + 1
-    fans = [c for c in comps if not c["is_wheel"]]
+    fans = [c for c in comps if c["counts_missed"]]
     totals = {
         "off_schedule_h": _sum(comps, ("hours", "off_schedule")),
         "off_schedule_kwh": _sum(comps, ("energy", "off_schedule_kwh")),
