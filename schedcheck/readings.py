@@ -23,6 +23,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
+import pyarrow as pa
+import pyarrow.compute as pc
 
 NAT = np.iinfo(np.int64).min
 RMS_COLUMNS = ("x_rms", "y_rms", "z_rms")
@@ -88,32 +90,62 @@ def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str) -> T
     if pd.api.types.is_numeric_dtype(s.dtype) and not pd.api.types.is_bool_dtype(s.dtype):
         _epoch(s.astype("float64").to_numpy(), np.ones(n, bool), utc, status)
         return TimeParse(utc, status, early, late, wall)
-    text = s.astype("str").where(s.notna(), "")
-    empty = (text.str.strip() == "").to_numpy()
+    text = _arrow_text(s)
+    empty = _np(pc.or_(pc.is_null(text), pc.equal(text, "")), True)
     status[empty] = EMPTY
-    number = text.str.match(_NUMBER_RE).to_numpy() & ~empty
+    number = _np(pc.match_substring_regex(text, _NUMBER_RE), False) & ~empty
     if number.any():
-        _epoch(pd.to_numeric(text[number], errors="coerce").to_numpy(float), number, utc, status)
-    offset = text.str.match(_OFFSET_RE).to_numpy() & ~empty & ~number
+        x = pc.cast(pc.filter(text, pa.array(number)), pa.float64()).to_numpy(
+            zero_copy_only=False)
+        _epoch(x, number, utc, status)
+    offset = _np(pc.match_substring_regex(text, _OFFSET_RE), False) & ~empty & ~number
     if offset.any():
-        t = pd.to_datetime(text[offset].str.replace("UTC", "Z").str.replace(",", "."),
-                           format="ISO8601", utc=True, errors="coerce").dt.as_unit("ns")
-        v = t.array.asi8
+        sub = pc.filter(text, pa.array(offset))
+        sub = pc.replace_substring(pc.replace_substring(sub, "UTC", "Z"), ",", ".")
+        v = _to_ns(sub, utc=True)
         utc[offset] = v
         idx = np.flatnonzero(offset)
         status[idx[v == NAT]] = UNPARSEABLE
     rest = ~empty & ~number & ~offset
     if rest.any():
-        naive = pd.to_datetime(text[rest], format="ISO8601", errors="coerce").dt.as_unit("ns")
-        bad = naive.isna().to_numpy()
+        v = _to_ns(pc.filter(text, pa.array(rest)), utc=False)
+        bad = v == NAT
         idx = np.flatnonzero(rest)
         status[idx[bad]] = UNPARSEABLE
         good = rest.copy()
         good[idx[bad]] = False
-        full = pd.Series(pd.NaT, index=range(n), dtype="datetime64[ns]")
-        full.iloc[idx] = naive.to_numpy()
-        _naive(full, good, naive_time, tz, utc, status, early, late, wall)
+        full = np.full(n, NAT, dtype=np.int64)
+        full[idx] = v
+        _naive(pd.Series(full.view("datetime64[ns]")), good, naive_time, tz, utc, status,
+               early, late, wall)
     return TimeParse(utc, status, early, late, wall)
+
+
+def _arrow_text(s: pd.Series) -> pa.Array:
+    """Trimmed text of a column as an Arrow string array (nulls kept)."""
+    arr = getattr(s.array, "_pa_array", None)
+    if arr is None or not pa.types.is_string(arr.type) and not pa.types.is_large_string(arr.type):
+        arr = pa.array(s.astype("object").where(s.notna(), None).map(
+            lambda v: v if v is None else str(v)), type=pa.large_string())
+    elif isinstance(arr, pa.ChunkedArray):
+        arr = arr.combine_chunks()
+    return pc.utf8_trim_whitespace(arr)
+
+
+def _np(mask, null_as: bool) -> np.ndarray:
+    return np.asarray(pc.fill_null(mask, null_as).to_numpy(zero_copy_only=False), dtype=bool)
+
+
+def _to_ns(text: pa.Array, *, utc: bool) -> np.ndarray:
+    """ISO 8601 text -> int64 ns (UTC when ``utc``, else wall time); NAT where unreadable."""
+    try:  # fast path: Arrow's ISO 8601 parser, all or nothing
+        t = pc.cast(text, pa.timestamp("ns", tz="UTC" if utc else None))
+        return t.cast(pa.int64()).fill_null(NAT).to_numpy(zero_copy_only=False)
+    except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
+        pass
+    t = pd.to_datetime(pd.Series(text.to_pylist(), dtype=object), format="ISO8601", utc=utc,
+                       errors="coerce")
+    return t.dt.as_unit("ns").array.asi8.copy()
 
 
 def _epoch(x: np.ndarray, where: np.ndarray, utc, status) -> None:
@@ -159,8 +191,14 @@ def level_values(raw: pd.DataFrame, columns: tuple[str, ...]) -> tuple[pd.DataFr
     bad = np.zeros(len(raw), bool)
     for c in columns:
         col = raw[c]
-        v = (col.to_numpy(dtype=float, na_value=np.nan) if pd.api.types.is_numeric_dtype(col)
-             else pd.to_numeric(col, errors="coerce").to_numpy(dtype=float, na_value=np.nan))
+        if pd.api.types.is_numeric_dtype(col):
+            v = col.to_numpy(dtype=float, na_value=np.nan)
+        else:
+            try:  # fast path: Arrow's number parser, all or nothing
+                v = pc.cast(_arrow_text(col), pa.float64()).fill_null(np.nan).to_numpy(
+                    zero_copy_only=False)
+            except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
+                v = pd.to_numeric(col, errors="coerce").to_numpy(dtype=float, na_value=np.nan)
         bad |= ~np.isfinite(v) | (v < 0)
         out[c] = v
     return pd.DataFrame(out, index=raw.index), bad
@@ -309,7 +347,8 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
     ----------
     parts : pandas.DataFrame
         Columns ``order`` (read order), ``utc`` (int64 ns, ``NAT`` for autumn-fold rows),
-        ``early``, ``late``, ``wall`` (see :func:`resolve_folds`) and the level columns.
+        the level columns and, where there are autumn-fold rows, ``early``, ``late`` and
+        ``wall`` (see :func:`resolve_folds`).
     columns : tuple of str
         Level columns to keep.
     start, end : pandas.Timestamp or None
@@ -322,7 +361,7 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
     p = parts.sort_values("order", kind="stable").reset_index(drop=True)
     utc = p["utc"].to_numpy(np.int64).copy()
     amb = utc == NAT
-    if amb.any():
+    if amb.any() and "early" in p.columns:
         chosen = resolve_folds(p["early"].to_numpy()[amb], p["late"].to_numpy()[amb],
                                p["wall"].to_numpy()[amb], utc[~amb], np.flatnonzero(amb))
         utc[amb] = chosen
@@ -354,15 +393,21 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
         frame = frame.groupby("timestamp", sort=True, as_index=False).mean()
     ts = frame["timestamp"].to_numpy(np.int64)
     frame = frame.reset_index(drop=True)
-    frame["timestamp"] = pd.to_datetime(ts, utc=True).as_unit("ns")
+    frame["timestamp"] = pd.Series(ts.view("M8[ns]")).dt.tz_localize("UTC")
     for c in columns:
         frame[c] = frame[c].astype("float64")
     health.count = len(frame)
-    _gaps(health, ts, start, end, max_gap)
+    measure_gaps(health, ts, start, end, max_gap)
     return frame[["timestamp", *columns]], health, warnings
 
 
-def _gaps(health: SensorHealth, ts: np.ndarray, start, end, max_gap: pd.Timedelta) -> None:
+def measure_gaps(health: SensorHealth, ts: np.ndarray, start: pd.Timestamp | None,
+                 end: pd.Timestamp | None, max_gap: pd.Timedelta) -> None:
+    """Fill ``first``, ``last``, ``median_interval``, ``gaps`` and ``gap_hours`` of ``health``.
+
+    ``ts`` are the sorted unique instants [ns UTC]; silences longer than ``max_gap`` count,
+    including from ``start`` to the first reading and from the last to ``end`` where given.
+    """
     if len(ts):
         health.first = pd.Timestamp(int(ts[0]), tz="UTC")
         health.last = pd.Timestamp(int(ts[-1]), tz="UTC")

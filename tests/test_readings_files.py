@@ -192,29 +192,58 @@ def test_bad_rows_skipped_on_request_are_counted_and_named(tmp_path):
     assert load_readings(site2).bad_rows_count == 6
 
 
-def test_parquet_is_read_per_sensor_with_filters_and_only_needed_columns(tmp_path, monkeypatch):
+def parquet_fixture(tmp_path, by_sensor: bool):
     d = both()
     table = pd.DataFrame({"timestamp": pd.to_datetime(d["timestamp"], utc=True),
                           "sensor": d["sensor"], "x_rms": d["x_rms"], "y_rms": d["y_rms"],
                           "firmware": "1.2.3", "S3_unused": 0})
     extra = pd.DataFrame({"timestamp": table["timestamp"][:5], "sensor": "S9", "x_rms": 1.0,
                           "y_rms": 1.0, "firmware": "x", "S3_unused": 0})
-    pq.write_table(pa.Table.from_pandas(pd.concat([table, extra]), preserve_index=False),
-                   tmp_path / "readings" / "r.parquet")
+    table = pd.concat([table, extra], ignore_index=True)
+    table = table.sort_values(["sensor", "timestamp"] if by_sensor else ["timestamp"],
+                              kind="stable")
+    pq.write_table(pa.Table.from_pandas(table, preserve_index=False),
+                   tmp_path / "readings" / "r.parquet", row_group_size=30)
+
+
+def spy_reads(monkeypatch):
     calls = []
-    real = pq.read_table
+    real_read, real_iter = pq.read_table, pq.ParquetFile.iter_batches
 
-    def spy(path, columns=None, filters=None, **kw):
-        calls.append((columns, filters))
-        return real(path, columns=columns, filters=filters, **kw)
+    def read(path, columns=None, filters=None, **kw):
+        calls.append(("read_table", columns, filters))
+        return real_read(path, columns=columns, filters=filters, **kw)
 
-    monkeypatch.setattr(pq, "read_table", spy)
+    def batches(self, batch_size=65536, columns=None, **kw):
+        calls.append(("iter_batches", columns, None))
+        return real_iter(self, batch_size=batch_size, columns=columns, **kw)
+
+    monkeypatch.setattr(pq, "read_table", read)
+    monkeypatch.setattr(pq.ParquetFile, "iter_batches", batches)
+    return calls
+
+
+def test_parquet_sorted_by_sensor_is_read_per_sensor_with_filters(tmp_path, monkeypatch):
+    parquet_fixture(tmp_path, by_sensor=True)
+    calls = spy_reads(monkeypatch)
     r = load_readings(load_site(site_file(tmp_path)))
-    reads = [c for c in calls if c[1] is not None]
-    assert sorted(f[0][2] for _, f in reads) == ["S1", "S2"]
-    for cols, _ in reads:
+    reads = [c for c in calls if c[2] is not None]
+    assert sorted(f[0][2] for _, _, f in reads) == ["S1", "S2"]
+    for _, cols, _ in reads:   # only the needed columns
         assert sorted(cols) == ["sensor", "timestamp", "x_rms", "y_rms"]
-    assert [c for c in calls if c[1] is None] == [(["sensor"], None)]   # the sensor census
+    assert ("read_table", ["sensor"], None) in calls   # the census of sensors in the file
+    assert not [c for c in calls if c[0] == "iter_batches"]
+    assert r.by_sensor["S2"]["x_rms"].tolist() == minutes("S2", seed=1)["x_rms"].tolist()
+    assert r.unconfigured == {"S9": 5}
+
+
+def test_parquet_with_sensors_mixed_is_streamed_in_batches(tmp_path, monkeypatch):
+    parquet_fixture(tmp_path, by_sensor=False)
+    calls = spy_reads(monkeypatch)
+    r = load_readings(load_site(site_file(tmp_path)))
+    assert [c[0] for c in calls] == ["iter_batches"]
+    assert sorted(calls[0][1]) == ["sensor", "timestamp", "x_rms", "y_rms"]
+    assert r.by_sensor["S1"]["x_rms"].tolist() == minutes("S1")["x_rms"].tolist()
     assert r.by_sensor["S2"]["x_rms"].tolist() == minutes("S2", seed=1)["x_rms"].tolist()
     assert r.unconfigured == {"S9": 5}
 

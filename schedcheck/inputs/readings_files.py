@@ -59,21 +59,25 @@ class _Collector:
              ) -> None:
         if len(raw) == 0:
             return
-        sensor = raw["sensor"].astype("str").str.strip().where(raw["sensor"].notna(), "")
-        sensor = sensor.to_numpy(dtype=object)
-        if lines is not None:  # blank lines in a CSV are not data
-            blank = np.ones(len(raw), bool)
+        codes, uniques = pd.factorize(raw["sensor"].fillna("").astype("str").str.strip())
+        names = np.asarray(uniques, dtype=object)
+        sensor = names[codes]
+        no_sensor = sensor == ""
+        if lines is not None and no_sensor.any():  # blank lines in a CSV are not data
+            blank = no_sensor.copy()
             for c in raw.columns:
-                blank &= (raw[c].fillna("").astype("str").str.strip() == "").to_numpy()
+                blank[no_sensor] &= (raw[c][no_sensor].fillna("").astype("str").str.strip()
+                                     == "").to_numpy()
             if blank.any():
-                raw, sensor = raw[~blank], sensor[~blank]
+                raw, sensor, codes = raw[~blank], sensor[~blank], codes[~blank]
                 lines, positions = lines[~blank], positions[~blank]
-        configured = np.array([s in self.owner for s in sensor], bool)
-        for s, n in Counter(sensor[~configured & (sensor != "")]).items():
-            self.unconfigured[s] += n
-        keep = configured | (sensor == "")
+        counts = np.bincount(codes, minlength=len(names))
+        mine = np.array([n in self.owner or n == "" for n in names], bool)
+        for k in np.flatnonzero(~mine & (counts > 0)):
+            self.unconfigured[names[k]] += int(counts[k])
+        keep = mine[codes]
         if not keep.all():
-            raw, sensor = raw[keep], sensor[keep]
+            raw, sensor, codes = raw[keep], sensor[keep], codes[keep]
             lines, positions = (None if lines is None else lines[keep]), positions[keep]
         if len(raw) == 0:
             return
@@ -105,11 +109,14 @@ class _Collector:
             inside &= (utc == rd.NAT) | (utc < (self.end + _MARGIN).value)
         good &= inside
         order = (np.int64(file_idx) << _ORDER_SHIFT) + positions.astype(np.int64)
-        frame = pd.DataFrame({"sensor": sensor, "order": order, "utc": utc, "early": tp.early,
-                              "late": tp.late, "wall": tp.wall}).join(lv.reset_index(drop=True))
-        frame = frame[good]
-        for s, part in frame.groupby("sensor", sort=False):
-            self.parts[s].append(part.drop(columns="sensor"))
+        cols = {"order": order, "utc": utc}
+        if (tp.status == rd.AMBIGUOUS).any():   # kept only where needed: they cost memory
+            cols.update(early=tp.early, late=tp.late, wall=tp.wall)
+        frame = pd.DataFrame(cols).join(lv.reset_index(drop=True))
+        for k in np.unique(codes[good]):
+            name = names[k]
+            if name:
+                self.parts[name].append(frame[good & (codes == k)])
 
     def _where(self, path, lines, i, sensor, raw) -> InputError:
         if lines is not None:
@@ -251,27 +258,68 @@ def _read_parquet(col: _Collector, site: Site, path: Path, file_idx: int) -> tup
     scol = mapping["sensor"]
     stype = schema.field(scol).type
     numeric = pa.types.is_integer(stype)
+    wanted: dict = {}   # value in the file -> configured sensor id
+    for s in col.owner:
+        if not numeric:
+            wanted[s] = s
+        elif s.strip().lstrip("-").isdigit():
+            wanted[int(s)] = s
+    rename = {str(v): s for v, s in wanted.items()} if numeric else {}
+    pf = pq.ParquetFile(path)
+    names = list(mapping.values())
+    if not _clustered(pf, scol, list(wanted)):
+        # rows of all sensors mixed in every row group: one streaming pass, memory follows the
+        # batch size
+        pos = 0
+        for batch in pf.iter_batches(batch_size=CSV_CHUNK_ROWS, columns=names):
+            frame = _sensor_text(batch.to_pandas().rename(columns=inverse))
+            if rename:   # whole-number ids: "0417" in the site file is 417 in the file
+                frame["sensor"] = frame["sensor"].map(lambda v: rename.get(v, v))
+            col.take(frame, path, file_idx, levels, None,
+                     np.arange(pos, pos + len(frame), dtype=np.int64))
+            pos += len(frame)
+        return levels
+    # row groups hold few sensors each: read one sensor at a time with a row filter, so memory
+    # follows the largest sensor, not the whole file
     counts = pc.value_counts(pq.read_table(path, columns=[scol]).column(0).combine_chunks())
     for item in counts.to_pylist():
         s = str(item["values"]).strip() if item["values"] is not None else ""
-        if s and s not in col.owner:
+        if s and s not in col.owner and s not in rename:
             col.unconfigured[s] += item["counts"]
-    for s in col.owner:
-        if numeric:
-            if not s.strip().lstrip("-").isdigit():
-                continue
-            value = int(s)
-        else:
-            value = s
-        table = pq.read_table(path, columns=list(mapping.values()), filters=[(scol, "==", value)])
+    for value, name in wanted.items():
+        table = pq.read_table(path, columns=names, filters=[(scol, "==", value)])
         if table.num_rows == 0:
             continue
         frame = table.to_pandas().rename(columns=inverse)
-        frame["sensor"] = s
-        pos = np.arange(len(frame), dtype=np.int64)
-        col.take(frame, path, file_idx, levels, None, pos)
+        frame["sensor"] = name
+        col.take(frame, path, file_idx, levels, None, np.arange(len(frame), dtype=np.int64))
         del table, frame
     return levels
+
+
+def _sensor_text(frame: pd.DataFrame) -> pd.DataFrame:
+    """The sensor column as plain text ("" where missing), whatever its Parquet type."""
+    sens = frame["sensor"].astype(object)
+    frame["sensor"] = sens.where(sens.notna(), "").astype(str)
+    return frame
+
+
+def _clustered(pf, column: str, wanted: list) -> bool:
+    """True when row-group statistics show that per-sensor filtered reads skip most groups."""
+    md = pf.metadata
+    if md.num_row_groups < 2 or not wanted:
+        return False
+    idx = pf.schema_arrow.get_field_index(column)
+    hits = 0
+    for g in range(md.num_row_groups):
+        st = md.row_group(g).column(idx).statistics
+        if st is None or not st.has_min_max:
+            return False
+        try:
+            hits += sum(1 for v in wanted if st.min <= v <= st.max)
+        except TypeError:
+            return False
+    return hits <= md.num_row_groups + len(wanted)   # about one sensor per group
 
 
 def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timestamp | None = None,
@@ -324,7 +372,8 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
 def _assemble(col: _Collector, site: Site, files, start, end, skip: bool) -> rd.Readings:
     by_sensor, health, warns = {}, {}, []
     max_gap = site.readings.max_gap
-    for s, parts in col.parts.items():
+    for s in list(col.parts):
+        parts = col.parts.pop(s)   # freed sensor by sensor: memory stays near the result's
         if parts:
             sets = [set(c for c in p.columns if c in LEVEL_COLUMNS) for p in parts]
             cols = tuple(c for c in LEVEL_COLUMNS if all(c in x for x in sets))
@@ -333,12 +382,14 @@ def _assemble(col: _Collector, site: Site, files, start, end, skip: bool) -> rd.
                 lost = ", ".join(sorted(set(every) - set(cols)))
                 warns.append(f"sensor {s}: level columns {lost} are missing from some files "
                              "and are not used")
-            if not any(c in cols for c in rd.RMS_COLUMNS):
-                cols = every
+            if any("early" in p.columns for p in parts):
+                parts = [p if "early" in p.columns else
+                         p.assign(early=rd.NAT, late=rd.NAT, wall=rd.NAT) for p in parts]
             data = pd.concat(parts, ignore_index=True)
             if not any(c in cols for c in rd.RMS_COLUMNS):
-                raise InputError(f"sensor {s}: no RMS column common to all files",
-                                 path=site.path, key="readings.files")
+                raise InputProblems([InputError(
+                    f"sensor {s}: its files share no RMS column (have: {', '.join(every)})",
+                    path=site.path, key="readings.files")])
             frame, h, w = rd.clean_sensor(data, sensor=s, columns=cols, start=start, end=end,
                                           max_gap=max_gap)
             warns.extend(w)
@@ -346,7 +397,7 @@ def _assemble(col: _Collector, site: Site, files, start, end, skip: bool) -> rd.
             frame = pd.DataFrame({"timestamp": pd.Series([], dtype="datetime64[ns, UTC]"),
                                   "x_rms": pd.Series([], dtype="float64")})
             h = rd.SensorHealth(sensor=s)
-            rd._gaps(h, np.array([], np.int64), start, end, max_gap)
+            rd.measure_gaps(h, np.array([], np.int64), start, end, max_gap)
         h.component = col.owner[s]
         h.bad_rows = col.bad_by_sensor.get(s, 0)
         if h.count == 0:
