@@ -1,0 +1,228 @@
+"""`schedcheck compare` as a user runs it: a small site of our own, and the demo site.
+
+The small site is written from scratch with the seeded generator (schedcheck.synth): unit
+AHU-A is left running day and night from 13:00 on the change date (a controls change gone
+wrong); unit AHU-B keeps its office pattern, with one Saturday override after the change and a
+five-hour gateway outage before it. Expected figures come from that planted truth.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from schedcheck import synth
+from schedcheck.cli import main
+
+TZ = "Europe/Berlin"
+CHANGE = dt.date(2026, 2, 2)  # a Monday
+BEFORE = AFTER = 21
+FIRST = CHANGE - dt.timedelta(days=BEFORE)
+LAST = CHANGE + dt.timedelta(days=AFTER - 1)
+
+SITE = """
+[site]
+name = "Copperleaf Print Works (fictional)"
+timezone = "Europe/Berlin"
+
+[readings]
+files = ["readings/*.csv"]
+
+[schedule]
+occupied = "office.ics"
+early_start = "1h"
+late_stop = "30min"
+
+[energy]
+price = 0.30
+currency = "EUR"
+
+[[unit]]
+id = "AHU-A"
+name = "Press hall"
+
+[[unit.component]]
+id = "supply"
+role = "supply_fan"
+sensor = "CP-0101"
+power_kw = 10.0
+speed = 1.0
+
+[[unit]]
+id = "AHU-B"
+name = "Offices"
+
+[[unit.component]]
+id = "supply"
+role = "supply_fan"
+sensor = "CP-0201"
+power_kw = 4.0
+speed = 1.0
+"""
+
+CAL = """BEGIN:VCALENDAR\r
+VERSION:2.0\r
+PRODID:-//test//copperleaf//EN\r
+BEGIN:VEVENT\r
+UID:copperleaf-office@test.invalid\r
+DTSTAMP:20260101T000000Z\r
+DTSTART;TZID=Europe/Berlin:20260105T070000\r
+DTEND;TZID=Europe/Berlin:20260105T180000\r
+RRULE:FREQ=WEEKLY;BYDAY=MO,TU,WE,TH,FR\r
+SUMMARY:Office hours\r
+END:VEVENT\r
+END:VCALENDAR\r
+"""
+
+
+def local(text: str) -> pd.Timestamp:
+    return pd.Timestamp(text).tz_localize(TZ).tz_convert("UTC")
+
+
+@pytest.fixture(scope="module")
+def site(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("copperleaf")
+    (folder / "site.toml").write_text(SITE)
+    (folder / "office.ics").write_bytes(CAL.encode())
+    (folder / "readings").mkdir()
+    start, end = local(str(FIRST)), local(str(LAST + dt.timedelta(days=1)))
+    rng = np.random.default_rng(42)
+    # runs 06:15-18:15 local on weekdays, inside the allowances (06:00-18:30)
+    stuck = [(local(f"{CHANGE} 13:00"), end)]
+    truth_a = synth.weekday_truth(start, end, TZ, rng, on="06:15", off="18:15", scatter="5min",
+                                  extra_runs=stuck)
+    override = [(local("2026-02-14 10:00"), local("2026-02-14 16:00"))]
+    truth_b = synth.weekday_truth(start, end, TZ, rng, on="06:15", off="18:15", scatter="5min",
+                                  extra_runs=override)
+    outage = [(local("2026-01-20 08:00"), local("2026-01-20 13:00"))]
+    frames = [
+        synth.readings_for_component(truth_a, sensor="CP-0101", rng=rng, start=start, end=end,
+                                     running_level=2.0),
+        synth.readings_for_component(truth_b, sensor="CP-0201", rng=rng, start=start, end=end,
+                                     running_level=1.5, outages=outage),
+    ]
+    rows = pd.concat(frames, ignore_index=True)
+    rows["timestamp"] = rows["timestamp"].dt.strftime("%Y-%m-%dT%H:%M:%SZ")
+    rows.to_csv(folder / "readings" / "press.csv", index=False)
+    return folder / "site.toml"
+
+
+def run(args, capsys):
+    code = main(args)
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+@pytest.fixture(scope="module")
+def as_json(site):
+    import contextlib
+    import io
+
+    buf = io.StringIO()
+    with contextlib.redirect_stdout(buf):
+        code = main(["compare", str(site), "--change", str(CHANGE), "--before", str(BEFORE),
+                     "--after", str(AFTER), "--format", "json"])
+    assert code == 0
+    return json.loads(buf.getvalue())
+
+
+def test_json_has_the_interface_fields(as_json):
+    j = as_json
+    assert j["change"] == str(CHANGE)
+    # periods are local midnights (UTC+1 in winter)
+    assert j["before"] == {"start": f"{FIRST}T00:00:00+01:00", "end": f"{CHANGE}T00:00:00+01:00",
+                           "days": BEFORE}
+    assert j["after"]["start"] == f"{CHANGE}T00:00:00+01:00"
+    assert j["after"]["end"] == f"{LAST + dt.timedelta(days=1)}T00:00:00+01:00"
+    assert [c["id"] for c in j["components"]] == ["AHU-A/supply", "AHU-B/supply"]
+    for c in j["components"]:
+        for side in ("before", "after"):
+            assert {"off_schedule_h_per_day", "kwh_per_day"} <= set(c[side])
+        assert {"off_schedule_h_per_day", "ci95"} <= set(c["difference"])
+        assert isinstance(c["change_points"], list)
+
+
+def test_unit_left_running_is_found_with_its_date_and_size(as_json):
+    a = as_json["components"][0]
+    # Planted truth: before, every run sits inside the allowances -> 0 h off-schedule.
+    # After, on occupied days the unit runs 24 h of which 11 h occupied + 1 h early start +
+    # 0.5 h late stop are allowed -> 11.5 h; on the change day it ran on from 18:30 -> 5.5 h;
+    # on unoccupied days 24 h. Day types are weighted by their share of the 42 days.
+    occ_after = [5.5] + [11.5] * 14
+    w_occ = 30 / 42
+    expected_after = w_occ * np.mean(occ_after) + (1 - w_occ) * 24.0
+    assert a["before"]["off_schedule_h_per_day"] == pytest.approx(0.0, abs=0.05)
+    assert a["after"]["off_schedule_h_per_day"] == pytest.approx(expected_after, abs=0.1)
+    lo, hi = a["difference"]["ci95"]
+    assert lo < a["difference"]["off_schedule_h_per_day"] < hi and lo > 10
+    # kWh follow the affinity law at full speed: 10 kW x hours
+    assert a["after"]["kwh_per_day"] == pytest.approx(10.0 * a["after"]["off_schedule_h_per_day"],
+                                                      rel=1e-3)
+    [cp] = a["change_points"]
+    assert cp["date"] == str(CHANGE)
+    assert cp["latest"] in (str(CHANGE), str(CHANGE + dt.timedelta(days=1)))
+    assert cp["before_mean"] == pytest.approx(0.0, abs=0.05) and cp["after_mean"] > 10
+
+
+def test_clean_unit_has_no_change_point_and_counts_the_outage_day(as_json):
+    b = as_json["components"][1]
+    assert b["change_points"] == []  # one Saturday override is an odd day, not a new pattern
+    assert b["before"]["days_no_data"] == 1 and b["before"]["days_used"] == BEFORE - 1
+    assert b["after"]["days_no_data"] == 0
+    lo, hi = b["difference"]["ci95"]
+    assert lo <= 0 <= hi or hi - lo < 1.0
+    assert any("left out" in n for n in b["notes"])
+
+
+def test_table_output_reads_plainly(site, capsys):
+    code, out, err = run(["compare", str(site), "--change", str(CHANGE), "--before", "21",
+                          "--after", "21"], capsys)
+    assert code == 0, err
+    assert "AHU-A/supply" in out and "more off-schedule running" in out
+    assert str(CHANGE) in out
+    assert "ventilation minimums" in out and "smoke control" in out
+    assert err == ""
+
+
+@pytest.mark.parametrize(
+    ("args", "words"),
+    [
+        (["--change", "2026-02-31"], "--change"),
+        (["--change", "2026-02-02", "--before", "3"], "--before"),
+        (["--change", "2026-02-02", "--after", "0"], "--after"),
+        (["--change", "2026-02-02", "--format", "xml"], "--format"),
+        (["--change", "2025-06-01"], "no readings"),
+        (["--change", "2026-01-13"], "too few days"),
+    ],
+)
+def test_bad_options_give_one_error_line(site, capsys, args, words):
+    code, out, err = run(["compare", str(site), *args], capsys)
+    assert code == 2
+    assert err.startswith("error: ") and words in err and err.count("\n") == 1
+    assert "Traceback" not in err
+
+
+@pytest.mark.slow
+def test_demo_controls_change_is_found_and_the_clean_unit_has_none(tmp_path, capsys):
+    # The demo plants (truth/faults.json) a "continuous" fault on AHU-4 from a controls change
+    # on 2026-04-20; AHU-5 is the clean unit.
+    from schedcheck.jobs.demo import make_demo
+
+    demo = make_demo(tmp_path / "demo")
+    faults = json.loads((tmp_path / "demo" / "truth" / "faults.json").read_text())["faults"]
+    stuck = next(f for f in faults
+                 if f["kind"] == "continuous" and f["component"] == "AHU-4/supply")
+    change = stuck["dates"][0]
+    args = ["compare", str(demo.site_file), "--change", change, "--format", "json"]
+    code, out, err = run(args, capsys)
+    assert code == 0, err
+    comps = {c["id"]: c for c in json.loads(out)["components"]}
+    first = comps["AHU-4/supply"]["change_points"][0]
+    assert first["date"] <= change <= first["latest"]
+    assert comps["AHU-4/supply"]["difference"]["ci95"][0] > 10
+    assert comps["AHU-5/supply"]["change_points"] == []
+    assert comps["AHU-5/exhaust"]["change_points"] == []
