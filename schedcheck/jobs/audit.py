@@ -67,13 +67,13 @@ def clip_readings(readings, start: pd.Timestamp, end: pd.Timestamp, max_gap: pd.
         by_sensor[sensor] = clipped
         h = dataclasses.replace(readings.health[sensor], first=None, last=None,
                                 median_interval=None, count=len(clipped))
-        rd._gaps(h, np.asarray(to_ns(clipped["timestamp"]), dtype=np.int64), start, end,
+        rd.measure_gaps(h, np.asarray(to_ns(clipped["timestamp"]), dtype=np.int64), start, end,
                  max_gap)
         health[sensor] = h
     for sensor, h in readings.health.items():
         if sensor not in health:
             health[sensor] = dataclasses.replace(h, first=None, last=None, count=0)
-            rd._gaps(health[sensor], np.empty(0, np.int64), start, end, max_gap)
+            rd.measure_gaps(health[sensor], np.empty(0, np.int64), start, end, max_gap)
     return dataclasses.replace(readings, by_sensor=by_sensor, health=health, start=start, end=end)
 
 
