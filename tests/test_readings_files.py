@@ -324,3 +324,22 @@ def test_readings_files_pattern_matching_nothing_after_validation(tmp_path):
     (tmp_path / "readings" / "r.csv").unlink()
     with pytest.raises(InputError, match="matches no file"):
         rf.readings_files(site)
+
+
+def test_a_whole_read_is_reused_for_the_next_window_and_changes_are_seen(tmp_path, monkeypatch):
+    both(n=180).to_csv(tmp_path / "readings" / "r.csv", index=False)
+    site = load_site(site_file(tmp_path))
+    reads = []
+    real = rf._read_csv
+    monkeypatch.setattr(rf, "_read_csv", lambda *a: reads.append(1) or real(*a))
+    whole = load_readings(site)
+    start, end = pd.Timestamp("2026-03-02T01:00Z"), pd.Timestamp("2026-03-02T02:00Z")
+    part = load_readings(site, start, end)
+    assert len(reads) == 1     # the window came from the kept whole read
+    assert whole.health["S1"].count == 180 and part.health["S1"].count == 60
+    assert part.by_sensor["S1"]["timestamp"].min() == start
+    load_readings(site, start, end)
+    assert len(reads) == 2     # kept for one window only
+    both(n=120).to_csv(tmp_path / "readings" / "r.csv", index=False)
+    load_readings(site)
+    assert len(reads) == 3 and load_readings(site).health["S1"].count == 120   # file changed

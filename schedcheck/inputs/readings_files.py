@@ -343,37 +343,72 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
         skipped), and when no configured sensor has a reading in the window.
     """
     skip = site.readings.skip_bad_rows if skip_bad_rows is None else skip_bad_rows
-    col = _Collector(site, start, end)
     files = readings_files(site)
-    columns: dict[str, set] = {}
-    for i, path in enumerate(files):
-        try:
-            name = path.name.lower()
-            if name.endswith(PARQUET_SUFFIXES):
-                levels = _read_parquet(col, site, path, i)
-            elif name.endswith(CSV_SUFFIXES) or name.endswith(tuple(s + ".gz" for s in
-                                                                     CSV_SUFFIXES)):
-                levels = _read_csv(col, site, path, i)
-            else:
-                raise InputError("unknown readings format: name files .csv, .csv.gz or "
-                                 ".parquet", path=path)
-            columns[str(path)] = set(levels)
-        except InputError as e:
-            col.problems.append(e)
-        except (UnicodeDecodeError, EOFError, OSError, pd.errors.ParserError) as e:
-            col.problems.append(InputError(f"cannot read the file ({type(e).__name__}: "
-                                           f"{e})", path=path))
+    key = _cache_key(site, files)
+    global _LAST
+    if _LAST is not None and _LAST[0] == key:
+        col = _LAST[1]      # the files were read whole moments ago (the data range); reuse
+        if start is not None or end is not None:
+            _LAST = None    # the window is what the command wanted: let the memory go
+    else:
+        _LAST = None
+        col = _Collector(site, start, end)
+        for i, path in enumerate(files):
+            _read_file(col, site, path, i)
+        if start is None and end is None:
+            _LAST = (key, col)
     problems = col.file_errors() + ([] if skip else col.bad_row_errors())
     if problems:
         raise InputProblems(problems)
-    return _assemble(col, site, files, start, end, skip)
+    return _assemble(col, site, files, start, end, skip, keep_parts=_LAST is not None)
 
 
-def _assemble(col: _Collector, site: Site, files, start, end, skip: bool) -> rd.Readings:
+# The last whole read (no window) is kept for one more call: commands first find the data's
+# range, then read their window, and the files need not be parsed twice.
+_LAST: tuple[tuple, _Collector] | None = None
+
+
+def _cache_key(site: Site, files: list[Path]) -> tuple:
+    stats = []
+    for f in files:
+        st = f.stat()
+        stats.append((str(f), st.st_mtime_ns, st.st_size))
+    r = site.readings
+    return (tuple(stats), site.timezone, r.naive_time, tuple(sorted(r.columns.items())),
+            tuple(sorted((c.sensor, c.key) for c in site.components)))
+
+
+def forget_cached_read() -> None:
+    """Drop the kept whole read (frees its memory)."""
+    global _LAST
+    _LAST = None
+
+
+def _read_file(col: _Collector, site: Site, path: Path, i: int) -> None:
+    try:
+        name = path.name.lower()
+        if name.endswith(PARQUET_SUFFIXES):
+            _read_parquet(col, site, path, i)
+        elif name.endswith(CSV_SUFFIXES) or name.endswith(tuple(s + ".gz" for s in
+                                                                 CSV_SUFFIXES)):
+            _read_csv(col, site, path, i)
+        else:
+            raise InputError("unknown readings format: name files .csv, .csv.gz or .parquet",
+                             path=path)
+    except InputError as e:
+        col.problems.append(e)
+    except (UnicodeDecodeError, EOFError, OSError, pd.errors.ParserError) as e:
+        col.problems.append(InputError(f"cannot read the file ({type(e).__name__}: {e})",
+                                       path=path))
+
+
+def _assemble(col: _Collector, site: Site, files, start, end, skip: bool,
+              keep_parts: bool = False) -> rd.Readings:
     by_sensor, health, warns = {}, {}, []
     max_gap = site.readings.max_gap
     for s in list(col.parts):
-        parts = col.parts.pop(s)   # freed sensor by sensor: memory stays near the result's
+        # freed sensor by sensor (unless kept for the next call): memory stays near the result's
+        parts = col.parts[s] if keep_parts else col.parts.pop(s)
         if parts:
             sets = [set(c for c in p.columns if c in LEVEL_COLUMNS) for p in parts]
             cols = tuple(c for c in LEVEL_COLUMNS if all(c in x for x in sets))
