@@ -28,6 +28,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pyarrow as pa
+import pyarrow.csv as pacsv
 import pyarrow.parquet as pq
 
 from schedcheck.demo import DemoSite, machine_truth, observed_truth
@@ -50,9 +51,9 @@ def _runs_csv(frame: pd.DataFrame) -> bytes:
     return out.to_csv(index=False, lineterminator="\n").encode()
 
 
-def _iso_seconds(ts: pd.Series) -> np.ndarray:
-    """Whole-second UTC instants as ``YYYY-MM-DDTHH:MM:SSZ`` (vectorised: strftime runs once
-    per distinct minute, seconds are filled in as bytes)."""
+def _iso_seconds(ts: pd.Series) -> pa.Array:
+    """Whole-second UTC instants as ``YYYY-MM-DDTHH:MM:SSZ`` strings (vectorised: strftime
+    runs once per distinct minute, the seconds are filled in as bytes)."""
     sec = to_ns(ts) // NS_PER_S
     uniq, inv = np.unique(sec // 60, return_inverse=True)
     head = from_ns(uniq * 60 * NS_PER_S).strftime("%Y-%m-%dT%H:%M:").to_numpy().astype("S17")
@@ -61,17 +62,22 @@ def _iso_seconds(ts: pd.Series) -> np.ndarray:
     out[:, 17] = (48 + (sec % 60) // 10).astype(np.uint8).view("S1")
     out[:, 18] = (48 + sec % 10).astype(np.uint8).view("S1")
     out[:, 19] = b"Z"
-    return out.view("S20").ravel().astype(str)
+    return pa.array(out.view("S20").ravel(), type=pa.binary()).cast(pa.string())
 
 
 def _readings_csv_gz(frame: pd.DataFrame) -> bytes:
-    out = frame.copy()
-    out["timestamp"] = _iso_seconds(out["timestamp"])
-    text = out.to_csv(index=False, lineterminator="\n").encode()
+    """CSV (header, then plain unquoted fields; levels in their shortest form), gzip-compressed
+    with no name or time in the header. Arrow's CSV writer is several times faster than
+    pandas' here."""
+    cols = {"timestamp": _iso_seconds(frame["timestamp"]),
+            "sensor": pa.array(frame["sensor"].to_numpy(dtype=object), type=pa.string())}
+    for c in frame.columns[2:]:
+        cols[c] = pa.array(frame[c].to_numpy(dtype=float))
     buf = io.BytesIO()
-    with gzip.GzipFile(filename="", mode="wb", fileobj=buf, mtime=0, compresslevel=6) as gz:
-        gz.write(text)
-    return buf.getvalue()
+    buf.write((",".join(cols) + "\n").encode())
+    pacsv.write_csv(pa.table(cols), buf,
+                    pacsv.WriteOptions(include_header=False, quoting_style="none"))
+    return gzip.compress(buf.getvalue(), compresslevel=6, mtime=0)
 
 
 def _readings_parquet(frame: pd.DataFrame, path: Path) -> None:
