@@ -8,6 +8,8 @@ reasons is in the docstring of :mod:`schedcheck.calendars` and in docs/calendars
 from __future__ import annotations
 
 import datetime as dt
+import difflib
+import functools
 import zoneinfo
 from pathlib import Path
 
@@ -51,6 +53,11 @@ def _values(prop) -> list:
     return out
 
 
+@functools.cache
+def _zone_names() -> tuple[str, ...]:
+    return tuple(sorted(zoneinfo.available_timezones()))
+
+
 def _unresolved_tzid(event) -> str | None:
     for name in ("DTSTART", "DTEND", "RECURRENCE-ID", "EXDATE", "RDATE"):
         prop = event.get(name)
@@ -62,8 +69,10 @@ def _unresolved_tzid(event) -> str | None:
             for value, _ in _values(p):
                 first = value[0] if isinstance(value, tuple) else value
                 if tzid and isinstance(first, dt.datetime) and first.tzinfo is None:
+                    close = difflib.get_close_matches(str(tzid), _zone_names(), n=1)
+                    hint = f"; did you mean {close[0]!r}?" if close else ""
                     return (f"{name} has TZID={tzid!r}, which matches no VTIMEZONE in the "
-                            "file and no IANA time zone")
+                            f"file and no IANA time zone{hint}")
     return None
 
 

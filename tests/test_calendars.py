@@ -352,3 +352,9 @@ def test_calendar_without_events_is_a_warning():
     res = expand_calendar(cal(), OSLO, D(2026, 3, 1), D(2026, 3, 31), path="empty.ics")
     assert len(res.events) == 0 and res.warnings == ["empty.ics: the calendar holds no events "
                                                      "(VEVENT)"]
+
+
+def test_mistyped_tzid_gets_a_suggestion():
+    c = cal("SUMMARY:Cleaners\nDTSTART;TZID=Europe/Olso:20260302T180000\n"
+            "DTEND;TZID=Europe/Olso:20260302T200000")
+    assert "did you mean 'Europe/Oslo'?" in str(check_calendar(c, path="c.ics")[0])
