@@ -219,3 +219,10 @@ def test_window_beyond_the_data_is_no_data_with_warnings(site, tmp_path, capsys)
     assert any("ends with 2026-11-06 but the last reading" in w for w in s["warnings"])
     assert any("AHU-7/supply: 5" in w and "no data" in w for w in s["warnings"])
     assert "warning: the window ends with 2026-11-06" in stdout
+
+
+def test_from_after_the_data_names_the_option(site, tmp_path, capsys):
+    folder, _ = site
+    code, _, err = run(["audit", str(folder / "site.toml"), "--from", "2026-12-01",
+                        "--out", str(tmp_path / "late")], capsys)
+    assert code == 2 and err.startswith("error: --from: 2026-12-01 is after the last whole day")

@@ -45,6 +45,12 @@ def audit_window(site: Site, first: dt.date | None, last: dt.date | None, readin
             d0, d1 = whole_days_covered(*data_span(readings), site.timezone)
         else:
             d0, d1 = data_time_range(site)
+        if first is not None and first > d1:
+            raise InputError(f"{first} is after the last whole day of readings ({d1}); give "
+                             "--to as well to audit days without data", key="--from")
+        if last is not None and last < d0:
+            raise InputError(f"{last} is before the first whole day of readings ({d0}); give "
+                             "--from as well to audit days without data", key="--to")
         first = first or d0
         last = last or d1
     if last < first:
