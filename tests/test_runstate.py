@@ -321,3 +321,25 @@ def test_middle_group_below_the_floor_is_off():
     cs = runstate.classify_component(comp(), r, T0, end, GAP)
     assert len(cs.threshold.groups) == 3 and "below the floor" in cs.threshold.reason
     assert synth.score_states(truth, cs.intervals, T0, end)["known_share_correct"] > 0.995
+
+
+def test_transitions_agree_with_ruptures_pelt():
+    # validation against a reference library: ruptures' KernelCPD with a linear kernel (the L2
+    # cost) and a penalty, i.e. a PELT search (Killick et al. 2012), finds the level changes in
+    # the same log levels; ours must sit within 2 readings of them
+    import ruptures
+
+    end = T0 + pd.Timedelta("4D")
+    rng = np.random.default_rng(18)
+    night = (T0 + pd.Timedelta("2D 22h"), T0 + pd.Timedelta("3D 1h"))
+    truth = synth.weekday_truth(T0, end, TZ, rng, extra_runs=[night])
+    r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=T0, end=end,
+                                     packet_loss=0, duplicates=0, out_of_order=0)
+    cs = runstate.classify_component(comp(), r, T0, end, GAP)
+    t, lv, _ = runstate.reading_levels(r)
+    signal = np.log10(lv).reshape(-1, 1)
+    bkps = ruptures.KernelCPD(kernel="linear", min_size=3).fit(signal).predict(pen=5.0)[:-1]
+    theirs = t[np.array(bkps)] - 30_000_000_000       # half-way to the reading before
+    ours = synth.to_ns(cs.intervals["start"].iloc[1:])
+    assert len(ours) == len(theirs) == len(truth) - 1
+    assert np.abs(np.sort(ours) - np.sort(theirs)).max() <= 2 * 60_000_000_000
