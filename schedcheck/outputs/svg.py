@@ -41,6 +41,7 @@ HOUR_PX = 8.0               # carpet plot: pixels per hour of the day
 PLOT_W = 720.0              # target width of the plot area [px]
 COL_MIN, COL_MAX = 1.6, 28.0  # limits of a day column's width [px]
 LEFT, TOP = 40.0, 22.0      # margins for labels [px]
+SIDES_MIN_PX = 12.0         # outlines get sides only on columns at least this wide [px]
 MIN_PER_DAY = 1440.0
 
 
@@ -233,7 +234,7 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
         _, day, y0, y1 = day_pieces(spare["start"], spare["end"], tz, first, ndays)
         if len(day):
             x = LEFT + day * cw
-            if cw >= 5:
+            if cw >= SIDES_MIN_PX:
                 d = rect_path(x + 0.8, TOP + y0 * k, cw - 1.6, (y1 - y0) * k)
             else:
                 d = _hlines(x, TOP + y0 * k, cw) + _hlines(x, TOP + y1 * k, cw)
@@ -243,15 +244,17 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
         _, day, y0, y1 = day_pieces(occ["start"], occ["end"], tz, first, ndays)
         if len(day):
             x = LEFT + day * cw
-            if cw >= 5:
+            if cw >= SIDES_MIN_PX:
                 d = rect_path(x + 0.6, TOP + y0 * k, cw - 1.2, (y1 - y0) * k)
-            else:
+                under, over = 1.9, 1.0
+            else:  # narrow columns: start and stop edges only, drawn bolder
                 d = _hlines(x, TOP + y0 * k, cw) + _hlines(x, TOP + y1 * k, cw)
+                under, over = 2.8, 1.5
             # two-tone line: the dark underlay shows on pale "off", the amber on dark "run",
             # so the outline survives grey-scale print on both
-            out.append(f'<path d="{d}" fill="none" stroke="{LINE_UNDER}" stroke-width="2"/>'
+            out.append(f'<path d="{d}" fill="none" stroke="{LINE_UNDER}" stroke-width="{under}"/>'
                        f'<path class="occupied" d="{d}" fill="none" stroke="{LINE_OCCUPIED}" '
-                       f'stroke-width="1.1"/>')
+                       f'stroke-width="{over}"/>')
     out.append(f'<rect x="{LEFT}" y="{TOP}" width="{ndays * cw:.2f}" height="{ph}" fill="none" '
                f'stroke="{TEXT}" stroke-width=".6"/>')
     out.append(_days_off_marks(days_off, first, ndays, cw, TOP + ph + 3))
