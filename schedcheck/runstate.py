@@ -298,6 +298,9 @@ def choose_threshold(
             raise InputError("threshold must be above 0", key="threshold")
         b, src = float(np.log10(configured)), "configured"
         reason = f"set in the site file ({configured:g})"
+        below_b, above_b = [m for m in med if m < b], [m for m in med if m > b]
+        lo_med = max(below_b) if below_b else np.nan
+        hi_med = min(above_b) if above_b else np.nan
     elif g.count == 1:
         b, src = F, "floor"
         state = "running" if med[0] > F else "off"
