@@ -85,7 +85,7 @@ _FREQ_STEP = {  # length of one step of the rule library [s] (nominal)
 }
 _MARGIN = dt.timedelta(days=2)   # extra query span around the window: covers every UTC offset
 
-EVENT_COLUMNS = ["start", "end", "source", "uid", "open_on_holidays"]
+EVENT_COLUMNS = ["start", "end", "source", "uid", "open_on_holidays", "event_start", "event_end"]
 
 
 @dataclass
@@ -97,7 +97,8 @@ class CalendarExpansion:
     events : pandas.DataFrame
         One row per occurrence that overlaps the window, clipped to it: ``start``, ``end``
         (``datetime64[ns, UTC]``), ``source`` (the event's SUMMARY), ``uid``,
-        ``open_on_holidays`` (bool). Rows are in no particular order and may overlap.
+        ``open_on_holidays`` (bool), ``event_start``, ``event_end`` (the occurrence before
+        clipping, UTC). Rows are in no particular order and may overlap.
     warnings : list of str
         One line each, naming file and event.
     """
@@ -245,6 +246,7 @@ def expand_calendar(
 
     starts: list[int] = []
     ends: list[int] = []
+    whole: list[tuple[int, int]] = []
     sources: list[str] = []
     uids: list[str] = []
     opens: list[bool] = []
@@ -278,6 +280,7 @@ def expand_calendar(
                     continue
                 starts.append(max(s, w0_ns))
                 ends.append(min(e, w1_ns))
+                whole.append((s, e))
                 sources.append(str(comp.get("SUMMARY", "")).strip() or "(no summary)")
                 uids.append(str(comp.get("UID", "")))
                 opens.append(is_open_on_holidays(comp))
@@ -300,5 +303,7 @@ def expand_calendar(
         "source": pd.Series(sources, dtype=object),
         "uid": pd.Series(uids, dtype=object),
         "open_on_holidays": pd.Series(opens, dtype=bool),
+        "event_start": from_ns(np.asarray([w[0] for w in whole], dtype="int64")),
+        "event_end": from_ns(np.asarray([w[1] for w in whole], dtype="int64")),
     })
     return CalendarExpansion(events=events, warnings=warnings)

@@ -93,7 +93,8 @@ def _expand_all(calendars: CalendarList, tz, first, last, max_days) -> tuple[pd.
     frames = [f for f in frames if len(f)]
     if not frames:
         return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "source": [],
-                             "open_on_holidays": pd.Series([], dtype=bool)}), warnings
+                             "open_on_holidays": pd.Series([], dtype=bool),
+                             "event_start": from_ns([]), "event_end": from_ns([])}), warnings
     return pd.concat(frames, ignore_index=True), warnings
 
 
@@ -104,13 +105,17 @@ def _days_off_intervals(dates, tz: str) -> Intervals:
 
 
 def _remove_days_off(events: pd.DataFrame, off_dates: set, tz: str) -> pd.DataFrame:
-    """Apply the day-off rule of the module docstring; returns pieces ``start, end, source``."""
+    """Apply the day-off rule of the module docstring; returns pieces ``start, end, source``.
+
+    The rule looks at each whole occurrence (``event_start``, ``event_end``), not at the part
+    that falls inside the window.
+    """
     if not len(events) or not off_dates:
         return events[["start", "end", "source"]]
-    start_dates = events["start"].dt.tz_convert(tz).dt.date
+    start_dates = events["event_start"].dt.tz_convert(tz).dt.date
     keep = events["open_on_holidays"].to_numpy() | ~start_dates.isin(off_dates).to_numpy()
     kept = events[keep]
-    long = (kept["end"] - kept["start"]) >= pd.Timedelta(days=1)
+    long = (kept["event_end"] - kept["event_start"]) >= pd.Timedelta(days=1)
     long &= ~kept["open_on_holidays"]
     if not long.any():
         return kept[["start", "end", "source"]]

@@ -249,3 +249,15 @@ def _reference_occupied(events, base, tz, off_dates, window) -> Intervals:
     for p in pieces:
         out = out | p
     return out & window
+
+
+def test_long_event_starting_before_the_window_is_judged_by_its_real_start():
+    # one event for the whole spring term; the window starts the day after Good Friday, so the
+    # padded expansion starts on a holiday: the term must not be removed for that
+    term = cal("SUMMARY:Spring term\nDTSTART;TZID=Europe/Oslo:20260105T000000\n"
+               "DTEND;TZID=Europe/Oslo:20260620T000000")
+    s = expand([term], first=D(2026, 4, 4), last=D(2026, 4, 7),
+               holidays=HolidaySettings(country="NO"))
+    # Easter Sunday 5th and Monday 6th are cut out whole; the 4th and 7th stay
+    assert rows(s) == [("04-04 00:00", "04-05 00:00", "occupied", "Spring term"),
+                       ("04-07 00:00", "04-08 00:00", "occupied", "Spring term")]
