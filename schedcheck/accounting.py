@@ -268,15 +268,8 @@ def _daily_frame(dates, edges_ns, per_day, seen_starts, seen_stops, tz, days_off
     bins_e = np.searchsorted(edges_ns, seen_stops, side="right") - 1
     n = len(dates)
     starts_per_day = np.bincount(bins_s[(bins_s >= 0) & (bins_s < n)], minlength=n)[:n]
-    first_start: list[pd.Timestamp | None] = [None] * n
-    last_stop: list[pd.Timestamp | None] = [None] * n
-    for i in range(n):
-        s = seen_starts[bins_s == i]
-        if s.size:
-            first_start[i] = from_ns([s.min()])[0].tz_convert(tz)
-        e = seen_stops[bins_e == i]
-        if e.size:
-            last_stop[i] = from_ns([e.max()])[0].tz_convert(tz)
+    first_start = _per_bin_instant(seen_starts, bins_s, n, tz, last=False)
+    last_stop = _per_bin_instant(seen_stops, bins_e, n, tz, last=True)
     frame = pd.DataFrame({
         "date": dates,
         "weekday": [WEEKDAYS[d.weekday()] for d in dates],
@@ -288,6 +281,21 @@ def _daily_frame(dates, edges_ns, per_day, seen_starts, seen_stops, tz, days_off
     frame["last_stop"] = last_stop
     frame["starts"] = starts_per_day.astype(np.int64)
     return frame
+
+
+def _per_bin_instant(instants: np.ndarray, bins: np.ndarray, n: int, tz: str, *, last: bool
+                     ) -> pd.Series:
+    """The first (or last) of sorted ``instants`` in each of ``n`` bins, local; NaT if none."""
+    out = np.full(n, np.iinfo(np.int64).min, dtype=np.int64)   # NaT
+    ok = (bins >= 0) & (bins < n)
+    b, t = bins[ok], instants[ok]
+    if b.size:
+        if last:
+            b, t = b[::-1], t[::-1]
+        uniq, idx = np.unique(b, return_index=True)
+        out[uniq] = t[idx]
+    idx_local = pd.DatetimeIndex(out.view("datetime64[ns]")).tz_localize("UTC").tz_convert(tz)
+    return pd.Series(idx_local)
 
 
 def state_frame_from_sets(states: StateSets) -> pd.DataFrame:
