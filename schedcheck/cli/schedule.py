@@ -28,12 +28,12 @@ def schedule_records(result) -> list[dict]:
     for unit_id, sched in result.units:
         rows = []
         for r in sched.days_off.itertuples(index=False):
-            rows.append(((r.date.isoformat(), ""), {
+            rows.append(((r.date.isoformat(), -1), {
                 "unit": unit_id, "kind": "holiday", "date": r.date.isoformat(),
                 "name": str(r.name)}))
         for r in sched.intervals.itertuples(index=False):
             s, e = r.start.tz_convert(tz), r.end.tz_convert(tz)
-            rows.append(((s.date().isoformat(), s.isoformat()), {
+            rows.append(((s.date().isoformat(), r.start.value), {
                 "unit": unit_id, "kind": r.kind, "start": s.isoformat(),
                 "end": e.isoformat(), "source": str(r.source)}))
         rows.sort(key=lambda x: x[0])
