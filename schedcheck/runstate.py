@@ -320,7 +320,8 @@ def choose_threshold(
             b, src, lo_med, hi_med = F, "floor", med[1], np.nan
             reason = (f"both level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}) lie below "
                       f"the floor level {floor:g}: never running")
-            warn.append(reason + "; set `threshold` if this machine does run")
+            warn.append("never running by the floor level; set `threshold` if this machine "
+                        "does run")
         elif med[0] >= F:
             share, n = _moving_share(L <= g.boundaries[0], sibling_moving)
             overall, _ = _moving_share(np.ones(L.size, bool), sibling_moving)
@@ -333,8 +334,9 @@ def choose_threshold(
                 reason = (f"two level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}) both "
                           f"above the floor level {floor:g}: two running levels (speeds), "
                           "never stopped")
-                warn.append(reason + "; if the lower group is a stopped machine shaken by its "
-                            "neighbours, set `threshold` between the groups")
+                warn.append(f"counted as running all the time; if the group at "
+                            f"{10**med[0]:.3g} is a stopped machine shaken by its neighbours, set "
+                            f"`threshold` to about {10 ** ((med[0] + med[1]) / 2):.3g}")
     else:
         lo_b, hi_b = g.boundaries
         low, mid = L <= lo_b, (L > lo_b) & (L <= hi_b)

@@ -128,7 +128,8 @@ def histogram_svg(
                f'{label}</text>')
     out.append(f'<text x="14" y="{TOP + ph / 2:.1f}" text-anchor="middle" '
                f'transform="rotate(-90 14 {TOP + ph / 2:.1f})">readings (square-root scale)</text>')
-    if floor is not None and ok(floor) and x0 <= math.log10(floor) <= x1:
+    same = ok(level) and floor is not None and ok(floor) and abs(floor / level - 1) < 0.01
+    if floor is not None and ok(floor) and x0 <= math.log10(floor) <= x1 and not same:
         x = X(math.log10(floor))
         out.append(f'<line x1="{x:.1f}" y1="{TOP}" x2="{x:.1f}" y2="{TOP + ph}" stroke="#666" '
                    'stroke-dasharray="4 3"/>')
