@@ -89,8 +89,8 @@ def _local(ts: pd.Timestamp, tz: str, fmt: str = "%a %d %b %Y %H:%M") -> str:
     return ts.tz_convert(tz).strftime(fmt)
 
 
-def _span(start: pd.Timestamp, end: pd.Timestamp, tz: str) -> str:
-    """``Wed 25 Mar 2026 17:20 – 23:00``; the end's date is written when it is another day."""
+def _span(start: pd.Timestamp, end: pd.Timestamp, tz: str) -> tuple[str, str]:
+    """(``Wed 25 Mar 2026 17:20``, ``23:00``); the end's date is written when it is another day."""
     a, b = start.tz_convert(tz), end.tz_convert(tz)
     if b.date() == a.date():
         tail = b.strftime("%H:%M")
@@ -98,7 +98,7 @@ def _span(start: pd.Timestamp, end: pd.Timestamp, tz: str) -> str:
         tail = "24:00"
     else:
         tail = b.strftime("%a %d %b %Y %H:%M")
-    return f"{a.strftime('%a %d %b %Y %H:%M')} – {tail}"
+    return a.strftime("%a %d %b %Y %H:%M"), tail
 
 
 def _sum(rows: list[dict], path: tuple[str, str]) -> float:
