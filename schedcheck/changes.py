@@ -196,6 +196,46 @@ def biweight_cost(values, cap: float) -> float:
     return float(max(np.min(inside + (k - cnt) * c2), 0.0))
 
 
+def _biweight_suffixes(z: np.ndarray, first: np.ndarray, cap: float) -> np.ndarray:
+    """:func:`biweight_cost` of every suffix ``z[j:]`` for ``j`` in ``first``, in one pass.
+
+    Same piecewise method as :func:`biweight_cost`, on a matrix with one row per suffix (values
+    before ``j`` padded with +inf). Sweeping the sorted breakpoints ``v - cap`` (a value comes
+    within reach) and ``v + cap`` (it leaves) in order, the values within reach are the sorted
+    run from the count of leaves to the count of arrivals so far.
+    """
+    m = z.size
+    if m == 0 or first.size == 0:
+        return np.zeros(first.size)
+    cols = np.arange(m)
+    v = np.sort(np.where(cols[None, :] >= first[:, None], z[None, :], np.inf), axis=1)
+    k = m - first                                     # values per row
+    valid = cols[None, :] < k[:, None]
+    vz = np.where(valid, v, 0.0)
+    zero = np.zeros((len(first), 1))
+    s1 = np.hstack([zero, np.cumsum(vz, axis=1)])
+    s2 = np.hstack([zero, np.cumsum(vz**2, axis=1)])
+    edges = np.hstack([v - cap, v + cap])
+    arrive = np.hstack([np.ones_like(v), np.zeros_like(v)])
+    order = np.argsort(edges, axis=1, kind="stable")
+    edges = np.take_along_axis(edges, order, axis=1)
+    arrive = np.take_along_axis(arrive, order, axis=1)
+    hi = np.cumsum(arrive, axis=1).astype(np.int64)   # piece after each breakpoint
+    lo = np.cumsum(1.0 - arrive, axis=1).astype(np.int64)
+    upper = np.hstack([edges[:, 1:], np.full((len(first), 1), np.inf)])
+    cnt = hi - lo
+    t1 = np.take_along_axis(s1, hi, axis=1) - np.take_along_axis(s1, lo, axis=1)
+    t2 = np.take_along_axis(s2, hi, axis=1) - np.take_along_axis(s2, lo, axis=1)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        mu = np.where(cnt > 0, t1 / np.maximum(cnt, 1), edges)
+        mu = np.clip(mu, edges, upper)
+        total = t2 - 2 * mu * t1 + cnt * mu**2 + (k[:, None] - cnt) * cap**2
+    total = np.where(np.isfinite(edges) & np.isfinite(total), total, np.inf)
+    best = np.min(total, axis=1)
+    best = np.where(np.isfinite(best), best, 0.0)   # empty rows cost nothing
+    return np.maximum(best, 0.0)
+
+
 def pelt_mean_shift(
     values, penalty: float, *, groups=None, min_size: int = 1, cap: float | None = None
 ) -> list[int]:
@@ -265,10 +305,10 @@ def pelt_mean_shift(
 
     def capped(starts: np.ndarray, end: int) -> np.ndarray:
         out = np.zeros(len(starts))
-        for i, s in enumerate(starts):
-            for idx in members:
-                sel = idx[(idx >= s) & (idx < end)]
-                out[i] += biweight_cost(y[sel], cap) if sel.size else 0.0
+        for idx in members:
+            z = y[idx[idx < end]]
+            first = np.searchsorted(idx, starts)  # position of each segment's first member
+            out += _biweight_suffixes(z, first, cap)
         return out
 
     cost = squared if cap is None else capped

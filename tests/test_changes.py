@@ -145,6 +145,17 @@ def test_biweight_cost_is_the_minimum_over_a_dense_grid(seed):
     assert biweight_cost(v, 1e6) == pytest.approx(((v - v.mean()) ** 2).sum())
 
 
+def test_batched_suffix_costs_equal_one_by_one():
+    from schedcheck.changes import _biweight_suffixes
+
+    rng = np.random.default_rng(9)
+    z = np.r_[rng.normal(0.0, 1.0, 25), [8.0, 9.5]]
+    rng.shuffle(z)
+    first = np.arange(z.size + 1)
+    one_by_one = [biweight_cost(z[j:], 1.2) for j in first]
+    assert _biweight_suffixes(z, first, 1.2) == pytest.approx(one_by_one, abs=1e-9)
+
+
 def _best_partition_by_enumeration(y, pen, groups, min_size, cap):
     n, best = len(y), (np.inf, None)
     for r in range(n):
