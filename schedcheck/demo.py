@@ -202,9 +202,10 @@ def _supply_runs(plan: UnitPlan, dates: list[dt.date], off: dict[dt.date, str], 
     for d in dates:
         if change is not None and d > change:
             break
-        periods = [(r.start, r.end) for r in CALENDARS[plan.calendar][1] if r.on(d)]
+        rules = [r for r in CALENDARS[plan.calendar][1] if r.on(d)]
         if d in off and not plan.ignores_days_off:
-            periods = []
+            rules = [r for r in rules if r.on_holidays]
+        periods = [(r.start, r.end) for r in rules]
         day_runs = []
         for a, b in periods:
             s, e = _at(d, a, plan.clock_tz), _at(d, b, plan.clock_tz)

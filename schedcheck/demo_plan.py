@@ -11,6 +11,8 @@ from __future__ import annotations
 import datetime as dt
 from dataclasses import dataclass
 
+from schedcheck.calendars import HOLIDAY_MARKER
+
 TZ = "Europe/Oslo"
 SITE_NAME = "Lindeskar Learning House"
 FIRST_DAY = dt.date(2026, 2, 16)          # a Monday
@@ -32,6 +34,7 @@ class Rule:
     end: str                       # local HH:MM (same day)
     days: tuple[int, ...] = ()     # weekdays, Monday = 0; empty = a one-off event
     exdates: tuple[dt.date, ...] = ()
+    on_holidays: bool = False      # marked to apply on public holidays and closures too
 
     def on(self, day: dt.date) -> bool:
         if not self.days:
@@ -48,7 +51,9 @@ CALENDARS: dict[str, tuple[str, tuple[Rule, ...]]] = {
         Rule("Evening course", dt.date(2026, 1, 6), "18:00", "21:00", (1,),
              exdates=(dt.date(2026, 3, 31),)),
         Rule("Open day", dt.date(2026, 3, 21), "10:00", "15:00"),
-        Rule("Choir concert", dt.date(2026, 4, 23), "19:00", "22:00"))),
+        Rule("Choir concert", dt.date(2026, 4, 23), "19:00", "22:00"),
+        Rule("Graduation ceremony", dt.date(2026, 5, 14), "11:00", "15:00",
+             on_holidays=True))),   # Ascension Day: a public holiday
     "canteen.ics": ("Canteen and kitchen, occupied hours", (
         Rule("Kitchen and canteen open", dt.date(2026, 1, 5), "06:30", "15:00", _WD),)),
     "library.ics": ("Library, opening hours", (
@@ -177,6 +182,8 @@ def calendar_text(name: str) -> str:
             lines.append("RRULE:FREQ=WEEKLY;BYDAY=" + ",".join(_BYDAY[d] for d in r.days))
         for x in r.exdates:
             lines.append(f"EXDATE;TZID={TZ}:{_ics_time(x, r.start)}")
+        if r.on_holidays:
+            lines.append(f"CATEGORIES:{HOLIDAY_MARKER}")
         lines.append("END:VEVENT")
     lines.append("END:VCALENDAR")
     return "\r\n".join(lines) + "\r\n"

@@ -44,10 +44,16 @@ def _runs(site, key) -> Intervals:
     return Intervals.from_frame(t[t["state"] == "run"])
 
 
-def _expand(text: str, first: dt.date, last: dt.date) -> Intervals:
-    """Expand calendar text with the reference library recurring-ical-events (PyPI), not ours."""
+def _expand(text: str, first: dt.date, last: dt.date, marked: bool | None = None) -> Intervals:
+    """Expand calendar text with the reference library recurring-ical-events (PyPI), not ours;
+    ``marked``: only the events with (True) or without (False) the holiday marker."""
     cal = icalendar.Calendar.from_ical(text)
     events = recurring_ical_events.of(cal).between(first, last + dt.timedelta(days=1))
+    if marked is not None:
+        def has(e) -> bool:
+            cats = e.get("CATEGORIES")
+            return cats is not None and b"OPEN-ON-HOLIDAYS" in cats.to_ical()
+        events = [e for e in events if has(e) == marked]
     s = [to_ns(pd.Timestamp(e["DTSTART"].dt)) for e in events]
     e = [to_ns(pd.Timestamp(e["DTEND"].dt)) for e in events]
     return Intervals.from_arrays(np.array(s, np.int64), np.array(e, np.int64))
@@ -109,6 +115,10 @@ def test_holiday_fault_is_on_norwegian_public_holidays_and_the_closure(site):
     f = next(f for f in site.faults if f.component == "AHU-1/supply" and f.kind == "holiday")
     assert list(f.dates) == [str(d) for d in expected]
     assert [a.tz_convert(TZ).date() for a, _ in f.episodes] == expected
+    # an event marked OPEN-ON-HOLIDAYS (graduation on Ascension Day) is run through
+    grad = Intervals.window(pd.Timestamp("2026-05-14T11:00", tz=TZ),
+                            pd.Timestamp("2026-05-14T15:00", tz=TZ))
+    assert grad - _runs(site, "AHU-2/supply") == Intervals.empty()
     # the other units' controllers know the holidays: AHU-5 (clean) runs on none of them
     for d in expected:
         day = Intervals.window(*day_window(d, d, TZ))
@@ -143,7 +153,9 @@ def test_clean_and_faulty_running_against_calendars_expanded_by_a_reference_libr
         off_days = off_days | Intervals.window(*day_window(d, d, TZ))
     allowed = _expand(site.calendars["night-purge.ics"], site.first, site.last)
     for plan in UNITS:
-        occ = _expand(site.calendars[plan.calendar], site.first, site.last) - off_days
+        text = site.calendars[plan.calendar]
+        occ = (_expand(text, site.first, site.last, marked=False) - off_days
+               | _expand(text, site.first, site.last, marked=True))
         early = parse_duration(plan.early_start or "2h").value
         late = parse_duration("30min").value
         ok = occ.shift_ends(early, late) | allowed
@@ -265,3 +277,12 @@ def test_cli_writes_the_demo_and_rejects_bad_months(tmp_path, capsys):
     assert main(["demo", str(tmp_path / "e"), "--months", "13"]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("error:") and "--months" in err[0]
+
+
+def test_unwritable_place_is_a_clean_error(tmp_path):
+    blocker = tmp_path / "file"
+    blocker.write_text("x")
+    with pytest.raises(InputError, match="not a folder"):
+        write_demo(demo_mod.build_demo(months=1), {}, blocker)
+    with pytest.raises(InputError, match="cannot write"):
+        write_demo(demo_mod.build_demo(months=1), {}, blocker / "sub")

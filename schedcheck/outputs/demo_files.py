@@ -178,17 +178,21 @@ def write_demo(demo: DemoSite, readings: dict[str, pd.DataFrame], folder: Path) 
     files["truth/faults.json"] = (json.dumps(faults_document(demo), indent=2) + "\n").encode()
     files["README.txt"] = _readme(demo).encode()
     written = []
-    for rel, data in files.items():
-        path = folder / rel
-        path.parent.mkdir(parents=True, exist_ok=True)
-        path.write_bytes(data)
-        written.append(path)
-    for name, frame in readings.items():
-        if name.endswith(".parquet"):
-            path = folder / "readings" / name
+    path = folder
+    try:
+        for rel, data in files.items():
+            path = folder / rel
             path.parent.mkdir(parents=True, exist_ok=True)
-            _readings_parquet(frame, path)
+            path.write_bytes(data)
             written.append(path)
+        for name, frame in readings.items():
+            if name.endswith(".parquet"):
+                path = folder / "readings" / name
+                path.parent.mkdir(parents=True, exist_ok=True)
+                _readings_parquet(frame, path)
+                written.append(path)
+    except OSError as e:
+        raise InputError(f"cannot write the demo here ({e.strerror or e})", path=path) from None
     return sorted(written)
 
 
