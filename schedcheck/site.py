@@ -397,7 +397,14 @@ class _Validator:
             for i, (pat, hits) in enumerate(resolve_patterns(self.base, tuple(files)), 1):
                 if not hits:
                     k = key if len(files) == 1 else f"{key}[{i}]"
-                    self.err(k, f"{pat!r} matches no file (relative to {self.base})")
+                    where = Path(pat).expanduser()
+                    where = where if where.is_absolute() else self.base / where
+                    if where.is_dir():
+                        self.err(k, f"{pat!r} is a folder; name the files in it, e.g. "
+                                 f"\"{pat.rstrip('/')}/*.csv\" or \"{pat.rstrip('/')}/*.parquet\"")
+                    else:
+                        self.err(k, f"{pat!r} matches no file (relative to "
+                                 f"{self.base.resolve()})")
         unit = self.string(r, "unit", "readings.unit", default="mm/s")
         naive = self.string(r, "naive_time", "readings.naive_time", choices=("local", "utc"))
         max_gap = self.duration(r, "max_gap", "readings.max_gap", pd.Timedelta("5min"), True)
@@ -508,7 +515,8 @@ class _Validator:
             p = (p if p.is_absolute() else self.base / p).resolve()
             if not p.is_file():
                 k = key if len(files) == 1 else f"{key}[{i}]"
-                self.err(k, f"calendar file {f!r} does not exist (relative to {self.base})")
+                self.err(k, f"calendar file {f!r} does not exist (relative to "
+                         f"{self.base.resolve()})")
             out.append(p)
         return tuple(out)
 

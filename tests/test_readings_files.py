@@ -332,7 +332,7 @@ def test_a_whole_read_is_reused_for_the_next_window_and_changes_are_seen(tmp_pat
     reads = []
     real = rf._read_csv
     monkeypatch.setattr(rf, "_read_csv", lambda *a: reads.append(1) or real(*a))
-    whole = load_readings(site)
+    whole = rf.read_readings(site, keep=True)
     start, end = pd.Timestamp("2026-03-02T01:00Z"), pd.Timestamp("2026-03-02T02:00Z")
     part = load_readings(site, start, end)
     assert len(reads) == 1     # the window came from the kept whole read
@@ -340,6 +340,11 @@ def test_a_whole_read_is_reused_for_the_next_window_and_changes_are_seen(tmp_pat
     assert part.by_sensor["S1"]["timestamp"].min() == start
     load_readings(site, start, end)
     assert len(reads) == 2     # kept for one window only
-    both(n=120).to_csv(tmp_path / "readings" / "r.csv", index=False)
+    assert data_time_range(site) == (dt.date(2026, 3, 2), dt.date(2026, 3, 2))
+    assert load_readings(site, start, end).health["S1"].count == 60 and len(reads) == 3
     load_readings(site)
-    assert len(reads) == 3 and load_readings(site).health["S1"].count == 120   # file changed
+    load_readings(site)
+    assert len(reads) == 5     # without keep=True nothing is kept
+    both(n=120).to_csv(tmp_path / "readings" / "r.csv", index=False)
+    rf.read_readings(site, keep=True)
+    assert len(reads) == 6 and rf.read_readings(site).health["S1"].count == 120   # changed

@@ -206,8 +206,8 @@ def _mapping(site: Site, have: list[str], path: Path, line: int | None
         theirs = cols.get(ours, ours)
         if theirs not in have:
             via = f" (mapped from {ours} in [readings] columns)" if ours in cols else ""
-            raise InputError(f"no column {theirs!r}{via}; the file has: {', '.join(have)}",
-                             path=path, line=line)
+            raise InputError(f"no column {theirs!r}{via}; the file has: {', '.join(have)}"
+                             + _mapping_hint(cols, have), path=path, line=line)
         mapping[ours] = theirs
     levels = []
     for ours in LEVEL_COLUMNS:
@@ -220,6 +220,19 @@ def _mapping(site: Site, have: list[str], path: Path, line: int | None
                          f"names with [readings] columns); the file has: {', '.join(have)}",
                          path=path, line=line)
     return mapping, tuple(levels)
+
+
+def _mapping_hint(cols: dict[str, str], have: list[str]) -> str:
+    """A ``columns = {...}`` line for columns whose names differ from ours only in case."""
+    lower = {h.strip().lower(): h for h in have}
+    pairs = dict(cols)
+    for ours in ("timestamp", "sensor", *LEVEL_COLUMNS):
+        if ours not in pairs and ours not in have and ours in lower:
+            pairs[ours] = lower[ours]
+    if pairs == cols:
+        return ""
+    body = ", ".join(f'{k} = "{v}"' for k, v in pairs.items())
+    return f"; add to [readings] in the site file: columns = {{ {body} }}"
 
 
 def _read_csv(col: _Collector, site: Site, path: Path, file_idx: int) -> tuple[str, ...]:
@@ -323,7 +336,7 @@ def _clustered(pf, column: str, wanted: list) -> bool:
 
 
 def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timestamp | None = None,
-                  *, skip_bad_rows: bool | None = None) -> rd.Readings:
+                  *, skip_bad_rows: bool | None = None, keep: bool = False) -> rd.Readings:
     """Read every readings file of a site and return clean readings of its sensors.
 
     Parameters
@@ -335,6 +348,9 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
     skip_bad_rows : bool, optional
         Drop malformed rows (counted and named in the result) instead of failing; None takes
         ``[readings] skip_bad_rows`` from the site file.
+    keep : bool
+        Keep this whole read (no window) for the next call, which may then cut its window from
+        it without parsing the files again (see :func:`schedcheck.jobs.common.data_time_range`).
 
     Raises
     ------
@@ -355,7 +371,7 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
         col = _Collector(site, start, end)
         for i, path in enumerate(files):
             _read_file(col, site, path, i)
-        if start is None and end is None:
+        if keep and start is None and end is None:
             _LAST = (key, col)
     problems = col.file_errors() + ([] if skip else col.bad_row_errors())
     if problems:

@@ -64,5 +64,8 @@ def data_time_range(site: Site) -> tuple[dt.date, dt.date]:
     are returned. Bad rows are skipped here (they do not move the range); the later
     :func:`load_readings` of the window reports them.
     """
-    first, last = data_span(load_readings(site, skip_bad_rows=True))
+    from schedcheck.inputs.readings_files import read_readings
+
+    # the whole read is kept for the caller's next load_readings of its window
+    first, last = data_span(read_readings(site, skip_bad_rows=True, keep=True))
     return whole_days_covered(first, last, site.timezone)
