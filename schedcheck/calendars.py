@@ -251,11 +251,13 @@ def expand_calendar(
     uids: list[str] = []
     opens: list[bool] = []
     dropped: dict[tuple[str, str], list] = {}
+    generated = 0
     where = f"{path}: " if path is not None else ""
     for series in series_list:
         try:
             for occ in series.between(q0, q1):
-                if len(starts) >= MAX_OCCURRENCES:
+                generated += 1
+                if generated > MAX_OCCURRENCES:
                     comp = occ.as_component(False)
                     raise InputError(
                         f"more than {MAX_OCCURRENCES:,} occurrences in the window "
@@ -267,6 +269,8 @@ def expand_calendar(
                 s = _to_utc_ns(occ.start, zone, tz)
                 e = _to_utc_ns(occ.end, zone, tz)
                 if e <= s:
+                    if not w0_ns <= s < w1_ns:
+                        continue   # outside the window: not this window's concern
                     label = f"{where}{event_label(comp, override=False)}"
                     if occ.start == occ.end:
                         why = ("has no length as written (no DTEND or DURATION, or DTEND equal "
