@@ -7,8 +7,9 @@ Steps, for each component (see ``docs/run-states.md`` for the user's view):
    as supporting evidence (start transients). Grouping works on ``log10(level)``.
 2. **On/off level.** A ``threshold`` set for the component wins (source ``configured``).
    Otherwise the log levels are grouped (:func:`schedcheck.thresholds.level_groups`: Otsu's
-   split, Ashman's D, a histogram valley) and the level is learned (source ``learned``), or,
-   when they do not split into well-separated groups, decided against an absolute floor level
+   split, Ashman's D, a histogram valley) and the level is learned (source ``learned``: the
+   lowest point of the histogram between the off and the running group), or, when they do
+   not split into well-separated groups, decided against an absolute floor level
    (source ``floor``). Three groups: the middle one is judged from the unit's other components
    (a group seen only while a sibling moves is carried vibration, not running).
 3. **Hysteresis.** A reading at or above ``on_level`` means run, at or below ``off_level``
@@ -41,9 +42,6 @@ Defaults (each with its source):
   to each group's median when the groups are known (common practice, no source).
 * ``TRANSIENT_CREST`` = 2.5: steady running fans show crest factors of about 1.4-2 (sine
   sqrt(2); common practice, no source), start transients more.
-* ``GAP_EDGE`` = 0.5 %: a learned level is put in the middle of the gap between the top 0.5 %
-  of the group below and the bottom 0.5 % of the group above, so stray readings do not pull it
-  (common practice, no source).
 * ``CARRIED_SHARE`` = 0.95: a middle group is carried vibration when at least this share of its
   readings fall while a sibling moves and at most 1 - this share of the lowest group's
   (common practice, no source).
@@ -73,7 +71,6 @@ TRANSIENT_CREST = 2.5     # [-]
 CARRIED_SHARE = 0.95      # [-]
 NO_DATA_WARN = 0.01       # warn above this share of the window without readings (common
 #                           practice, no source)
-GAP_EDGE = 0.005          # group edges for the middle of the gap [-] (common practice, no source)
 RMS = ("x_rms", "y_rms", "z_rms")
 PEAK = ("x_peak", "y_peak", "z_peak")
 DISPLAY_BINS = 60         # histogram bins kept for pictures and summary.json
@@ -218,21 +215,6 @@ def _band(b: float, lo: float = np.nan, hi: float = np.nan) -> tuple[float, floa
     return b + h, b - h
 
 
-def gap_middle(L: np.ndarray, b: float, edge: float = GAP_EDGE) -> float:
-    """The middle of the empty gap around a group boundary ``b`` (log10 levels).
-
-    Otsu's level decides which readings are in which group, but it sits wherever the
-    between-class variance peaks, often close to the larger group. The level used is the
-    middle between the top of the group below (its ``1 - edge`` quantile) and the bottom of the
-    group above (its ``edge`` quantile); where those overlap, ``b`` itself.
-    """
-    below, above = L[L <= b], L[L > b]
-    if below.size == 0 or above.size == 0:
-        return b
-    top, bottom = np.quantile(below, 1 - edge), np.quantile(above, edge)
-    return float((top + bottom) / 2) if bottom > top else b
-
-
 def _moving_share(mask: np.ndarray, sib: np.ndarray | None) -> tuple[float, int]:
     """Share of the readings in ``mask`` taken while a sibling moved, and how many were known."""
     if sib is None:
@@ -315,7 +297,8 @@ def choose_threshold(
         b, src = g.boundaries[0], "learned"
         lo_med, hi_med = med
         reason = (f"two level groups (medians {10**med[0]:.3g} and {10**med[1]:.3g}, "
-                  f"Ashman's D {_d(g.separations[0])}); the level is in the middle of the gap")
+                  f"Ashman's D {_d(g.separations[0])}); the level is at the lowest point "
+                  "between them")
         if med[1] <= F:
             b, src, lo_med, hi_med = F, "floor", med[1], np.nan
             reason = (f"both level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}) lie below "
@@ -366,7 +349,7 @@ def choose_threshold(
                         f"set `threshold` to about {10 ** ((med[1] + med[2]) / 2):.3g}")
         src = "learned"
     if src == "learned":
-        b = gap_middle(L, b)
+        b = th.valley_level(L, lo_med, hi_med)
     on, off = _band(b, lo_med, hi_med)
     below, above = L[L <= b], L[L > b]
     sep = min(th.ashman_d(below, above), SEPARATION_CAP)

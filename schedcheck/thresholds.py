@@ -11,6 +11,7 @@ plain numbers; none of them knows about fans.
 * :func:`multi_otsu_thresholds` -- Otsu's criterion for three classes, exhaustive search [1, 3].
 * :func:`ashman_d` -- Ashman's D between two groups [2]; D > 2 is the usual criterion for a
   clean separation of two normal components.
+* :func:`valley_level` -- the lowest point of the histogram between two groups [4].
 * :func:`level_groups` -- the plain dispatcher: are there one, two or three groups?
 
 References
@@ -21,6 +22,8 @@ References
    The Astronomical Journal 108, 2348-2361, 1994.
 .. [3] P.-S. Liao, T.-S. Chen, P.-C. Chung, "A fast algorithm for multilevel thresholding",
    Journal of Information Science and Engineering 17, 713-727, 2001.
+.. [4] J. M. S. Prewitt, M. L. Mendelsohn, "The analysis of cell images", Annals of the New
+   York Academy of Sciences 128(3), 1035-1053, 1966 (the minimum method).
 """
 
 from __future__ import annotations
@@ -249,6 +252,46 @@ def valley_ratio(values: np.ndarray, boundary: float, left: float, right: float)
         return 1.0
     k = np.clip(np.searchsorted(edges, [left, right], side="right") - 1, 0, 127)
     return float((lo + hi)[k[0]:k[1] + 1].min() / peak)
+
+
+def valley_level(values: np.ndarray, left: float, right: float, nbins: int = NBINS) -> float:
+    """The lowest point of the histogram between two group medians ``left`` < ``right``.
+
+    The minimum method of Prewitt and Mendelsohn [4], restricted to the stretch between the two
+    groups: the values between the medians are binned (``nbins`` bins, smoothed over
+    ``SMOOTH_BINS``), and the level is the middle of the longest run of bins at the lowest
+    count, so an empty gap gives its middle.
+
+    Parameters
+    ----------
+    values : ndarray
+        All values [any unit].
+    left, right : float
+        Medians of the groups below and above [same unit].
+
+    Returns
+    -------
+    float
+        The level [same unit]; the midpoint of ``left`` and ``right`` when there is nothing
+        between them.
+
+    References
+    ----------
+    .. [4] J. M. S. Prewitt, M. L. Mendelsohn, "The analysis of cell images", Annals of the
+       New York Academy of Sciences 128(3), 1035-1053, 1966.
+    """
+    v = np.asarray(values, dtype=float)
+    if not right > left:
+        return float((left + right) / 2)
+    sel = v[(v >= left) & (v <= right)]
+    counts, edges = np.histogram(sel, nbins, (left, right))
+    sm = np.convolve(counts, np.ones(SMOOTH_BINS) / SMOOTH_BINS, mode="same")
+    low = sm <= sm.min() + 1e-9
+    # longest run of lowest bins
+    d = np.diff(np.concatenate([[0], low.astype(np.int8), [0]]))
+    starts, stops = np.flatnonzero(d == 1), np.flatnonzero(d == -1)
+    k = int(np.argmax(stops - starts))
+    return float((edges[starts[k]] + edges[stops[k]]) / 2)
 
 
 def _describe(v: np.ndarray, bounds: tuple[float, ...]):

@@ -87,3 +87,13 @@ def test_valley_ratio():
     assert th.valley_ratio(gap, -0.75, -1.5, 0.0) < 0.05
     flat = rng.uniform(0, 1, 20000)
     assert th.valley_ratio(flat, 0.5, 0.25, 0.75) > 0.7
+
+
+def test_valley_level_finds_the_lowest_point_between_groups():
+    rng = np.random.default_rng(8)
+    # an empty gap between 0.3 and 0.7: its middle
+    v = np.concatenate([rng.uniform(0.0, 0.3, 5000), rng.uniform(0.7, 1.0, 5000)])
+    assert th.valley_level(v, 0.15, 0.85) == pytest.approx(0.5, abs=0.01)
+    # no empty stretch: the sparsest place (a normal dip at 0.6 between two bumps)
+    w = _mix(rng, [(0.0, 0.2, 20000), (1.0, 0.2, 20000)])
+    assert th.valley_level(w, 0.0, 1.0) == pytest.approx(0.5, abs=0.05)
