@@ -3,7 +3,8 @@
 The small site is written from scratch with the seeded generator (schedcheck.synth): unit
 AHU-A is left running day and night from 13:00 on the change date (a controls change gone
 wrong); unit AHU-B keeps its office pattern, with one Saturday override after the change and a
-five-hour gateway outage before it. Expected figures come from that planted truth.
+five-hour gateway outage before it; unit AHU-C got its sensor only on the change date, so it
+cannot be compared. Expected figures come from that planted truth.
 """
 
 from __future__ import annotations
@@ -62,6 +63,17 @@ role = "supply_fan"
 sensor = "CP-0201"
 power_kw = 4.0
 speed = 1.0
+
+[[unit]]
+id = "AHU-C"
+name = "Stores"
+
+[[unit.component]]
+id = "supply"
+role = "supply_fan"
+sensor = "CP-0301"
+power_kw = 2.0
+speed = 1.0
 """
 
 CAL = """BEGIN:VCALENDAR\r
@@ -104,6 +116,8 @@ def site(tmp_path_factory):
                                      running_level=2.0),
         synth.readings_for_component(truth_b, sensor="CP-0201", rng=rng, start=start, end=end,
                                      running_level=1.5, outages=outage),
+        synth.readings_for_component(truth_b, sensor="CP-0301", rng=rng, start=local(str(CHANGE)),
+                                     end=end, running_level=1.0),
     ]
     rows = pd.concat(frames, ignore_index=True)
     rows["timestamp"] = rows["timestamp"].dt.strftime("%Y-%m-%dT%H:%M:%SZ")
@@ -138,8 +152,8 @@ def test_json_has_the_interface_fields(as_json):
                            "days": BEFORE}
     assert j["after"]["start"] == f"{CHANGE}T00:00:00+01:00"
     assert j["after"]["end"] == f"{LAST + dt.timedelta(days=1)}T00:00:00+01:00"
-    assert [c["id"] for c in j["components"]] == ["AHU-A/supply", "AHU-B/supply"]
-    for c in j["components"]:
+    assert [c["id"] for c in j["components"]] == ["AHU-A/supply", "AHU-B/supply", "AHU-C/supply"]
+    for c in j["components"][:2]:
         for side in ("before", "after"):
             assert {"off_schedule_h_per_day", "kwh_per_day"} <= set(c[side])
         assert {"off_schedule_h_per_day", "ci95"} <= set(c["difference"])
@@ -178,11 +192,20 @@ def test_clean_unit_has_no_change_point_and_counts_the_outage_day(as_json):
     assert any("left out" in n for n in b["notes"])
 
 
+def test_component_without_data_before_is_reported_not_dropped(as_json):
+    c = as_json["components"][2]
+    assert c["before"]["days_no_data"] == BEFORE and c["before"]["days_used"] == 0
+    assert c["after"]["days_used"] == AFTER
+    assert c["difference"] == {} and c["change_points"] == []
+    assert any(n.startswith("not compared: too few days") for n in c["notes"])
+
+
 def test_table_output_reads_plainly(site, capsys):
     code, out, err = run(["compare", str(site), "--change", str(CHANGE), "--before", "21",
                           "--after", "21"], capsys)
     assert code == 0, err
     assert "AHU-A/supply" in out and "more off-schedule running" in out
+    assert "AHU-C/supply" in out and "not enough data" in out
     assert str(CHANGE) in out
     assert "ventilation minimums" in out and "smoke control" in out
     assert err == ""

@@ -60,6 +60,9 @@ def compare_table(result) -> object:
     table.add_column("Verdict")
     table.add_column("Pattern changed on")
     for c in result.components:
+        if not c.figures:
+            table.add_row(c.id, "-", "-", "-", "-", "not enough data", "-")
+            continue
         off = c.figures["off_schedule_h_per_day"]
         kwh = c.figures["kwh_per_day"]
         missed = c.figures.get("missed_h_per_day")
@@ -78,6 +81,9 @@ def _advice(result) -> list[str]:
     """One plain line per component worth a second look after the change."""
     lines = []
     for c in result.components:
+        if not c.figures:
+            lines += [f"{c.id}: {n}" for n in c.notes]
+            continue
         kwh = c.figures["kwh_per_day"]
         off = c.figures["off_schedule_h_per_day"]
         if off.ci95[0] > 0:

@@ -135,8 +135,10 @@ class CompareResult:
                 diff[k] = round(v.difference, 3)
                 name = "ci95" if k == "off_schedule_h_per_day" else f"{k}_ci95"
                 diff[name] = [round(v.ci95[0], 3), round(v.ci95[1], 3)]
-            diff["kwh_per_year"] = round(fig["kwh_per_day"].difference * 365.0, 1)
-            diff["cost_per_year"] = round(fig["kwh_per_day"].difference * 365.0 * self.price, 1)
+            if "kwh_per_day" in fig:
+                per_year = fig["kwh_per_day"].difference * 365.0
+                diff["kwh_per_year"] = round(per_year, 1)
+                diff["cost_per_year"] = round(per_year * self.price, 1)
             comps.append({
                 "id": c.id, "unit": c.unit, "role": c.role,
                 "before": side["before"], "after": side["after"], "difference": diff,
@@ -199,9 +201,13 @@ def compare_daily(
     notes = [f"{days[p]['no_data']} day(s) {p} the change left out: more than "
              f"{max_no_data_h:g} h of no data" for p in ("before", "after") if days[p]["no_data"]]
     figures = {}
-    for name, read in FIGURES.items():
-        series = pd.Series(np.where(usable, read(daily).to_numpy(dtype=float), np.nan), index=dates)
-        figures[name] = before_after(series, change, before, after, day_types=types)
+    try:
+        for name, read in FIGURES.items():
+            values = np.where(usable, read(daily).to_numpy(dtype=float), np.nan)
+            series = pd.Series(values, index=dates)
+            figures[name] = before_after(series, change, before, after, day_types=types)
+    except InputError as e:  # this component cannot be compared; the others still can
+        return {}, [], days, [*notes, f"not compared: {e.message}"]
     notes += [f"off-schedule hours: {n}" for n in figures["off_schedule_h_per_day"].notes]
     y = (daily["off_schedule_ns"] / NS_PER_H).to_numpy(dtype=float)[usable]
     g = types.to_numpy()[usable]
@@ -262,14 +268,15 @@ def compare_site(
     comps = []
     for comp in result.components:
         daily = comp.account.daily
-        try:
-            figures, points, days, notes = compare_daily(daily, change, before, after)
-        except InputError as e:
-            raise InputError(f"{comp.key}: {e.message}", path=site.path, key="--change") from None
+        figures, points, days, notes = compare_daily(daily, change, before, after)
         if not comp.account.counts_missed:
             figures.pop("missed_h_per_day", None)
         comps.append(ComponentChange(comp.key, comp.unit.id, comp.component.role, days,
                                      figures, points, notes))
+    if comps and not any(c.figures for c in comps):
+        first_note = next(n for n in comps[0].notes if n.startswith("not compared: "))
+        raise InputError(f"no component can be compared: {comps[0].id}: "
+                         f"{first_note.removeprefix('not compared: ')}", key="--change")
     e = site.energy
     return CompareResult(
         site_name=site.name, timezone=site.timezone, change=change, before_days=before,
