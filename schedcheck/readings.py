@@ -26,12 +26,18 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
+from schedcheck.durations import format_duration
+
 NAT = np.iinfo(np.int64).min
 RMS_COLUMNS = ("x_rms", "y_rms", "z_rms")
 
 # Epoch seconds outside 2000-01-01 .. 2100-01-01 are refused: they are almost always
 # milliseconds or a wrong column (common practice, no source).
 EPOCH_RANGE = (946_684_800, 4_102_444_800)
+
+# A suggested max_gap is this many reporting intervals: one or two lost packets in a row do
+# not make a silence (common practice, no source).
+STEPS_PER_GAP = 3
 
 # Row status codes from parse_timestamps.
 OK, EMPTY, UNPARSEABLE, NAIVE, NONEXISTENT, AMBIGUOUS, EPOCH_RANGE_BAD = range(7)
@@ -398,6 +404,19 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
         frame[c] = frame[c].astype("float64")
     health.count = len(frame)
     measure_gaps(health, ts, start, end, max_gap)
+    if health.duplicates_conflicting:
+        warnings.append(f"sensor {sensor}: {health.duplicates_conflicting} readings fall on an "
+                        "instant already read with other levels and were averaged; two devices "
+                        "may report under one sensor id")
+    step = health.median_interval
+    if step is not None and step >= max_gap:
+        # a max_gap of a few reporting intervals tolerates a lost packet or two (common
+        # practice, no source)
+        suggest = format_duration(pd.Timedelta(minutes=int(np.ceil(
+            STEPS_PER_GAP * step.total_seconds() / 60))))
+        warnings.append(f"sensor {sensor} reports every {format_duration(step)} (median) but "
+                        f"max_gap is {format_duration(max_gap)}, so most of its time counts as "
+                        f"no data; set [readings] max_gap to about {suggest}")
     return frame[["timestamp", *columns]], health, warnings
 
 

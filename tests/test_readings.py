@@ -218,3 +218,14 @@ def test_level_checks_and_their_reasons():
     assert "'abc', not a number" in reasons[1] and "negative" in reasons[2]
     assert "NaN" in reasons[3] and "not a finite number" in reasons[4]
     assert "missing" in reasons[5]
+
+
+def test_warnings_for_conflicts_and_for_a_max_gap_shorter_than_the_reporting_step():
+    times = [f"2026-03-02 00:{m:02d}" for m in range(0, 60, 10)]
+    frame, h, warnings = rd.clean_sensor(parts(times + times[:1], [1, 1, 1, 1, 1, 1, 2]),
+                                         sensor="S", columns=("x_rms",), start=None, end=None,
+                                         max_gap=pd.Timedelta("5min"))
+    assert h.duplicates_conflicting == 1 and h.gaps == 5
+    assert any("two devices may report under one sensor id" in w for w in warnings)
+    assert any("reports every 10min (median) but max_gap is 5min" in w
+               and "max_gap to about 30min" in w for w in warnings)
