@@ -358,3 +358,16 @@ def test_mistyped_tzid_gets_a_suggestion():
     c = cal("SUMMARY:Cleaners\nDTSTART;TZID=Europe/Olso:20260302T180000\n"
             "DTEND;TZID=Europe/Olso:20260302T200000")
     assert "did you mean 'Europe/Oslo'?" in str(check_calendar(c, path="c.ics")[0])
+
+
+def test_check_calendar_file_applies_window_caps_by_a_trial_year(tmp_path):
+    from schedcheck.inputs.calendar_files import check_calendar_file
+
+    path = tmp_path / "hourly.ics"
+    path.write_text("BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//t//EN\r\nBEGIN:VEVENT\r\n"
+                    "UID:h@x\r\nSUMMARY:Hourly since 1950\r\nDTSTART:19500101T000000\r\n"
+                    "DURATION:PT30M\r\nRRULE:FREQ=HOURLY\r\nEND:VEVENT\r\nEND:VCALENDAR\r\n",
+                    encoding="utf-8")
+    problems = [str(p) for p in check_calendar_file(path, OSLO)]
+    assert len(problems) == 1 and problems[0].startswith(f"{path}:4: event 'Hourly since 1950'")
+    assert "move DTSTART closer" in problems[0]
