@@ -70,6 +70,12 @@ from schedcheck.window import day_window
 _NS_MIN = 60 * NS_PER_S
 
 
+# Side effects: a late clock also gives short missed mornings (up to about 55 min here) and
+# late stops; a unit stuck running also runs through nights, weekends and holidays.
+MAY_ALSO_SHOW = {"clock_offset": ("missed", "late_stop", "early_start"),
+                 "continuous": ("night", "weekend", "holiday")}
+
+
 @dataclass(frozen=True)
 class PlantedFault:
     """One planted fault on one component; ``episodes`` are the true UTC ``[start, end)``."""
@@ -95,6 +101,11 @@ class PlantedFault:
     @property
     def hours(self) -> float:
         return sum((b - a).total_seconds() for a, b in self.episodes) / 3600.0
+
+    @property
+    def may_also_show(self) -> tuple[str, ...]:
+        """Finding kinds this fault can also produce on some days (its side effects)."""
+        return MAY_ALSO_SHOW.get(self.kind, ())
 
 
 @dataclass

@@ -249,6 +249,7 @@ def test_truth_files_read_back(written):
     assert f["episodes"][0][0] == pd.Timestamp("2026-03-09T20:58:20Z")
     doc = json.loads((written.folder / "truth/faults.json").read_text())
     assert doc["window"]["first"] == "2026-02-16" and doc["seed"] == written.demo.seed
+    assert all(f["may_also_show"] == [] for f in doc["faults"] if f["kind"] == "night")
     t = truth.component_runs("AHU-1/supply")
     assert_tiles_window(t, written.demo.start, written.demo.end)
 

@@ -100,7 +100,8 @@ def faults_document(demo: DemoSite) -> dict:
         "faults": [
             {"component": f.component, "unit": f.unit, "kind": f.kind, "dates": list(f.dates),
              "start": _iso(f.start), "end": _iso(f.end), "hours": round(f.hours, 4),
-             "episodes": [[_iso(a), _iso(b)] for a, b in f.episodes], "note": f.note}
+             "episodes": [[_iso(a), _iso(b)] for a, b in f.episodes],
+             "may_also_show": list(f.may_also_show), "note": f.note}
             for f in demo.faults
         ],
         "data_gaps": [
