@@ -44,7 +44,7 @@ def _segments(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 def write_fixture(outdir: Path, *, first: dt.date = dt.date(2026, 3, 23), days: int = 14,
                   tz: str = "Europe/Oslo", units=None, site_name: str = "Harbour Street Offices",
                   holiday: tuple[int, str] | None = (3, "Founders' Day"), seed: int = 7,
-                  gaps_per_day: int = 0) -> Path:
+                  gaps_per_day: int = 0, event_name: str = "Offices open") -> Path:
     """Write summary.json, daily.csv, runs.csv, findings.csv and schedule.csv into ``outdir``.
 
     ``gaps_per_day`` adds that many random 2-10 minute no-data gaps per component and day
@@ -79,7 +79,8 @@ def write_fixture(outdir: Path, *, first: dt.date = dt.date(2026, 3, 23), days: 
             for a, b in zip(s_idx, e_idx, strict=True):
                 if m[a]:
                     end_ts = grid[b] if b < len(grid) else end
-                    schedule_rows.append((uid, kind, grid[a], end_ts, "occupancy.ics"))
+                    source = event_name if kind == "occupied" else "early start 2h"
+                    schedule_rows.append((uid, kind, grid[a], end_ts, source))
         for ci, (cid, role, sensor, power) in enumerate(components):
             key = f"{uid}/{cid}"
             on = (wd < 5) & (mod >= 340 + ci * 3) & (mod < 1040 - ci * 2)

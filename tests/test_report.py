@@ -19,6 +19,7 @@ HOSTILE_UNIT = "<img src=x onerror=alert(1)>"
 HOSTILE_COMP = 'fan"><b>'
 HOSTILE_SENSOR = "S-1' onmouseover='alert(2)"
 HOSTILE_HOLIDAY = 'Tom & Jerry\'s <iframe src="https://evil.invalid"></iframe> day'
+HOSTILE_EVENT = "<svg onload=alert(3)>Opening & \"late\" hours"
 
 
 class _Tags(HTMLParser):
@@ -110,18 +111,20 @@ def test_hostile_names_are_escaped(tmp_path):
     units = [(f"AHU-{HOSTILE_UNIT}", HOSTILE_UNIT,
               [(HOSTILE_COMP, "supply_fan", HOSTILE_SENSOR, 7.5)])]
     write_fixture(tmp_path, days=5, units=units, site_name=HOSTILE_SITE,
-                  holiday=(1, HOSTILE_HOLIDAY))
+                  holiday=(1, HOSTILE_HOLIDAY), event_name=HOSTILE_EVENT)
     page = write_report(tmp_path).read_text(encoding="utf-8")
     tags = _Tags()
     tags.feed(page)
     assert not tags.tags & {"script", "img", "iframe"}
     assert not {a for a in tags.attrs if a.startswith("on")}
-    for raw in (HOSTILE_SITE, HOSTILE_UNIT, HOSTILE_COMP, HOSTILE_SENSOR, HOSTILE_HOLIDAY):
+    for raw in (HOSTILE_SITE, HOSTILE_UNIT, HOSTILE_COMP, HOSTILE_SENSOR, HOSTILE_HOLIDAY,
+                HOSTILE_EVENT):
         assert raw not in page
     assert "&lt;script&gt;alert(&#34;site&#34;)&lt;/script&gt; &amp; Sons" in page
     assert "&lt;img src=x onerror=alert(1)&gt;" in page
     assert "S-1&#39; onmouseover=&#39;alert(2)" in page
     assert "Tom &amp; Jerry&#39;s &lt;iframe" in page
+    assert "&lt;svg onload=alert(3)&gt;Opening &amp; &#34;late&#34; hours" in page
 
 
 def test_rendering_is_repeatable(outdir):
@@ -135,6 +138,29 @@ def test_no_findings_says_so(tmp_path):
     (tmp_path / "findings.csv").write_text(head + "\n")
     page = write_report(tmp_path).read_text(encoding="utf-8")
     assert "No findings" in page
+
+
+def test_long_findings_list_is_cut_and_says_so(tmp_path, monkeypatch):
+    from schedcheck.outputs import report as report_module
+
+    write_fixture(tmp_path, days=14)
+    n = len(read_saved_audit(tmp_path).findings)
+    monkeypatch.setattr(report_module, "FINDINGS_SHOWN", 3)
+    page = write_report(tmp_path).read_text(encoding="utf-8")
+    assert f"{n - 3} smaller findings are not" in page and f"all {n} are in findings.csv" in page
+    assert page.count('<td class="kind">') == 3
+
+
+def test_no_price_hides_money_but_keeps_energy(tmp_path):
+    write_fixture(tmp_path, days=3)
+    path = tmp_path / "summary.json"
+    summary = json.loads(path.read_text())
+    summary["site"].pop("currency")
+    summary["site"].pop("price")
+    path.write_text(json.dumps(summary))
+    page = write_report(tmp_path).read_text(encoding="utf-8")
+    assert "NOK" not in page
+    assert "energy off schedule" in page and "kWh" in page
 
 
 def test_a_quarter_of_three_units_stays_small(tmp_path):

@@ -256,7 +256,25 @@ def report_context(data: SavedAudit) -> dict:
         "generated": _when(s.get("generated")), "tool_version": s.get("tool_version", ""),
         "legend": Markup(svg.legend_svg("lg")),
         "dst_days": _dst_days(data.timezone, first, last),
+        "intended": _intended(data.schedule, units),
     }
+
+
+def _intended(schedule: pd.DataFrame, units: list[dict]) -> list[dict]:
+    """Per unit: hours of each kind of intended interval and what they came from."""
+    out = []
+    sched = schedule.assign(hours=(schedule["end"] - schedule["start"]).dt.total_seconds() / 3600)
+    for u in units:
+        rows = sched[sched["unit"] == u["id"]]
+        entry = {"id": u["id"], "name": u["name"]}
+        for kind in ("occupied", "allowance", "allowed"):
+            part = rows[rows["kind"] == kind]
+            entry[f"{kind}_h"] = float(part["hours"].sum())
+            src = part["source"] if "source" in part else pd.Series(dtype=object)
+            counts = src.fillna("").astype(str).value_counts()
+            entry[f"{kind}_sources"] = [(name, int(n)) for name, n in counts.items() if name][:8]
+        out.append(entry)
+    return out
 
 
 def _when(text: str | None) -> str:
