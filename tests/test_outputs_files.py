@@ -184,3 +184,18 @@ def test_files_read_back_by_the_report_reader(result, tmp_path):
     back = saved.read_saved_audit(tmp_path)
     assert back.first_date == dt.date(2026, 10, 24) and back.last_date == dt.date(2026, 10, 26)
     assert len(back.findings) == 1
+
+
+def test_findings_ics_without_findings_is_still_a_valid_calendar(tmp_path):
+    # RFC 5545 section 3.6: a calendar holds at least one component
+    site = make_site(tmp_path)
+    start, end = day_window(dt.date(2026, 3, 2), dt.date(2026, 3, 2), TZ)
+    off = frame([("2026-03-02 00:00", "2026-03-03 00:00", "off")], "state")
+    empty = frame([], "kind")
+    res = run_audit(site, {"AHU-9/supply": off, "AHU-9/wheel": off},
+                    {"AHU-9": Sched(empty, None)}, start, end, find=lambda r: None)
+    files = write_audit_files(res, tmp_path)
+    cal = icalendar.Calendar.from_ical(files["findings.ics"].read_bytes())
+    assert list(cal.walk("VEVENT")) == []
+    assert len(cal.walk("VJOURNAL")) == 1
+    assert pd.read_csv(files["findings.csv"]).empty

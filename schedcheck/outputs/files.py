@@ -358,6 +358,16 @@ def findings_calendar(result: AuditResult) -> bytes:
         ev.add("categories", [str(row.kind)])
         ev.add("transp", "TRANSPARENT")
         cal.add_component(ev)
+    if len(result.findings) == 0:
+        # RFC 5545 section 3.6 needs at least one component in a calendar; a journal entry
+        # records the clean audit without putting anything in anyone's diary.
+        note = icalendar.Journal()
+        note.add("uid", finding_uid(result.site.name, "no_findings", result.start))
+        note.add("dtstamp", stamp)
+        note.add("dtstart", result.first_date)
+        note.add("summary", f"{result.site.name}: no findings from {result.first_date} to "
+                            f"{result.last_date}")
+        cal.add_component(note)
     return cal.to_ical()
 
 
