@@ -155,7 +155,8 @@ def reading_levels(frame: pd.DataFrame, *, name: str = "readings") -> tuple[np.n
             return np.full(len(frame), np.nan)
         a = frame[cols].to_numpy(dtype=float)
         if (a < 0).any():
-            raise InputError("negative vibration level", key=f"{name}: {cols[0][0]}_...")
+            bad = cols[int(np.flatnonzero((a < 0).any(axis=0))[0])]
+            raise InputError(f"negative vibration level in column {bad}", key=name)
         out = np.sqrt(np.nansum(a * a, axis=1))
         return np.where(np.isnan(a).all(axis=1), np.nan, out)
 

@@ -252,6 +252,9 @@ def test_missing_sensor_is_all_no_data_and_bad_columns_are_refused():
     bad = pd.DataFrame({"timestamp": [T0], "temperature": [20.0]})
     with pytest.raises(InputError, match="S1.*RMS"):
         runstate.classify_unit(unit(comp()), {"S1": bad}, T0, end, GAP)
+    neg = pd.DataFrame({"timestamp": [T0], "x_rms": [0.1], "y_rms": [-0.2]})
+    with pytest.raises(InputError, match="^S1: negative vibration level in column y_rms$"):
+        runstate.classify_unit(unit(comp()), {"S1": neg}, T0, end, GAP)
 
 
 def test_floor_default_follows_the_reading_unit():
