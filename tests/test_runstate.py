@@ -346,3 +346,26 @@ def test_transitions_agree_with_ruptures_pelt():
     ours = synth.to_ns(cs.intervals["start"].iloc[1:])
     assert len(ours) == len(theirs) == len(truth) - 1
     assert np.abs(np.sort(ours) - np.sort(theirs)).max() <= 2 * 60_000_000_000
+
+
+@pytest.fixture(scope="module")
+def week_readings():
+    end = T0 + pd.Timedelta("7D")
+    rng = np.random.default_rng(19)
+    truth = synth.weekday_truth(T0, end, TZ, rng)
+    outs = [(T0 + pd.Timedelta("2D 3h"), T0 + pd.Timedelta("2D 9h")),
+            (T0 + pd.Timedelta("4D 12h"), T0 + pd.Timedelta("4D 12h 20min"))]
+    return synth.readings_for_component(truth, sensor="S1", rng=rng, start=T0, end=end,
+                                        outages=outs)
+
+
+@pytest.mark.parametrize("a, b", [("-1D", "8D"), ("0s", "7D"), ("2D 5h 17min 3s", "2D 11h"),
+                                  ("4D 12h 5min", "4D 12h 10min"), ("6D 23h 59min", "9D")])
+def test_any_window_is_covered_exactly(week_readings, a, b):
+    start, end = T0 + pd.Timedelta(a), T0 + pd.Timedelta(b)
+    cs = runstate.classify_component(comp(), week_readings, start, end, GAP)
+    tab = cs.intervals
+    assert_covers(tab, start, end)
+    assert str(tab["start"].dtype) == "datetime64[ns, UTC]" == str(tab["end"].dtype)
+    assert ((tab["end"] - tab["start"]) > pd.Timedelta(0)).all()
+    assert tab["level"].isna().tolist() == (tab["state"] == "no_data").tolist()
