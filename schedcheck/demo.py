@@ -16,7 +16,8 @@ Writing files is done by :mod:`schedcheck.outputs.demo_files`.
 Planted faults (each a :class:`PlantedFault`, one record per affected component):
 
 * ``holiday``  AHU-1 runs on public holidays and the closure day (its controller never got the
-  holiday calendar);
+  holiday calendar); AHU-2's graduation on Ascension Day is marked to apply on holidays, so
+  running for it is correct;
 * ``night``    AHU-2 runs 22:00-05:00 on four nights (an override left on);
 * ``clock_offset`` AHU-3's controller keeps standard time (UTC+1) after 2026-03-29, so its
   starts and stops are one hour late in local time;
@@ -321,6 +322,9 @@ def build_demo(seed: int = DEFAULT_SEED, months: int = DEFAULT_MONTHS) -> DemoSi
         Length of the window in months (1 to 12), rounded to whole weeks from 2026-02-16. The
         full set of planted faults needs at least 3 (13 weeks, to 2026-05-17).
     """
+    if not 0 <= int(seed) < 2**63:
+        raise InputError(f"seed must be a whole number from 0 to 2**63 - 1, not {seed}",
+                         key="--seed")
     first, last = window_dates(months)
     start, end = day_window(first, last, TZ)
     s0, e0 = to_ns(start), to_ns(end)

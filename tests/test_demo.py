@@ -179,6 +179,8 @@ def test_months_changes_the_window_and_bad_months_are_refused():
     assert demo_mod.window_dates(6)[1] == dt.date(2026, 8, 16)
     with pytest.raises(InputError, match="--months"):
         demo_mod.window_dates(0)
+    with pytest.raises(InputError, match="--seed"):
+        demo_mod.build_demo(seed=-1)
 
 
 # -- the written files ---------------------------------------------------------------------------

@@ -69,7 +69,7 @@ def demo(
                       ("readings/", "vibration readings (CSV.gz and Parquet)"),
                       ("truth/", "true run intervals and planted faults"),
                       ("README.txt", "what this folder is")):
-        out.print(f"  {result.folder / rel}  {what}", markup=False, soft_wrap=True)
+        out.print(f"  {result.folder}/{rel}  {what}", markup=False, soft_wrap=True)
     out.print(_faults_table(result))
     if no_audit:
         out.print(f"Next: schedcheck audit {result.site_file}", markup=False, soft_wrap=True)
