@@ -127,6 +127,30 @@ def test_hostile_names_are_escaped(tmp_path):
     assert "&lt;svg onload=alert(3)&gt;Opening &amp; &#34;late&#34; hours" in page
 
 
+@pytest.mark.parametrize(("tz", "first", "day"), [
+    # EU: summer time ends on the last Sunday of October (Directive 2000/84/EC, art. 2)
+    ("Europe/Oslo", dt.date(2026, 10, 20), "Sun 25 Oct 2026 (25 h)"),
+    # US: daylight saving time starts on the second Sunday of March (Energy Policy Act of 2005,
+    # sec. 110)
+    ("America/New_York", dt.date(2026, 3, 4), "Sun 08 Mar 2026 (23 h)"),
+])
+def test_clock_change_days_are_named(tmp_path, tz, first, day):
+    write_fixture(tmp_path, first=first, days=10, tz=tz)
+    page = write_report(tmp_path).read_text(encoding="utf-8")
+    assert f"Clock changes in this window: {day}." in page
+    assert tz in page
+
+
+def test_unwritable_folder_is_one_line_error(outdir, capsys, monkeypatch):
+    def refuse(*_args, **_kwargs):
+        raise PermissionError(13, "Permission denied")
+
+    monkeypatch.setattr("pathlib.Path.write_text", refuse)
+    assert main(["report", str(outdir)]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("error: ") and "report.html" in err and "Permission denied" in err
+
+
 def test_rendering_is_repeatable(outdir):
     data = read_saved_audit(outdir)
     assert render_report(data) == render_report(data)

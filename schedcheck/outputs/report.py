@@ -17,6 +17,7 @@ import numpy as np
 import pandas as pd
 from markupsafe import Markup
 
+from schedcheck.errors import InputError
 from schedcheck.outputs import svg
 from schedcheck.outputs.histogram import histogram_svg
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
@@ -353,6 +354,9 @@ def write_report(outdir: Path) -> Path:
     html = render_report(read_saved_audit(outdir))
     path = outdir / "report.html"
     tmp = path.with_suffix(".html.part")
-    tmp.write_text(html, encoding="utf-8")
-    tmp.replace(path)
+    try:
+        tmp.write_text(html, encoding="utf-8")
+        tmp.replace(path)
+    except OSError as e:
+        raise InputError(f"cannot write the report ({e.strerror or e})", path=path) from None
     return path
