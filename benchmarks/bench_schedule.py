@@ -19,7 +19,13 @@ import tracemalloc
 import icalendar
 import pandas as pd
 
-from schedcheck.calendars import MAX_RULE_STEPS, check_calendar, expand_calendar
+from schedcheck.calendars import (
+    MAX_OCCURRENCES,
+    MAX_RULE_STEPS,
+    check_calendar,
+    expand_calendar,
+)
+from schedcheck.errors import InputError
 from schedcheck.schedule import expand_unit_schedule
 from schedcheck.site import HolidaySettings
 
@@ -130,12 +136,30 @@ def main() -> int:
         "RRULE:FREQ=DAILY;BYMONTH=2;BYMONTHDAY=30\r\nEND:VEVENT\r\nEND:VCALENDAR\r\n")
     t_never = best_of(1, lambda: check_calendar(never))
 
+    # the time to refuse a calendar at the occurrence cap: three half-hourly rules, 3 years
+    hours = ",".join(str(h) for h in range(24))
+    dense = icalendar.Calendar.from_ical(
+        "BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//bench//EN\r\n" + "".join(
+            f"BEGIN:VEVENT\r\nUID:d{i}\r\nSUMMARY:dense {i}\r\nDTSTART:20250101T000{i}00\r\n"
+            f"DURATION:PT10M\r\nRRULE:FREQ=DAILY;BYHOUR={hours};BYMINUTE={i},{i + 30}\r\n"
+            "END:VEVENT\r\n" for i in range(3)) + "END:VCALENDAR\r\n")
+
+    def refuse_dense():
+        try:
+            expand_calendar(dense, TZ, dt.date(2025, 1, 1), dt.date(2027, 12, 31))
+        except InputError:
+            return
+        raise AssertionError("the dense calendar was not refused")
+
+    t_dense = best_of(1, refuse_dense)
+
     print(f"one calendar, one year: {n_events} occurrences in {t_cal * 1000:.0f} ms "
           f"(target < {TARGET_S:.1f} s)")
     print(f"unit schedule, one year (2 calendars, holidays, closures, allowances): "
           f"{t_unit * 1000:.0f} ms, peak {peak / 1e6:.1f} MB traced, intervals {kinds}")
     print(f"worst admitted rule (hourly, {years_back:.1f} years of steps): {t_worst:.2f} s")
     print(f"never-occurs probe (FREQ=DAILY;BYMONTH=2;BYMONTHDAY=30 refused): {t_never:.2f} s")
+    print(f"refusing a calendar at the {MAX_OCCURRENCES:,}-occurrence cap: {t_dense:.1f} s")
     return 0 if max(t_cal, t_unit) < TARGET_S else 1
 
 
