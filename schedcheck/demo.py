@@ -34,7 +34,6 @@ from __future__ import annotations
 import datetime as dt
 from dataclasses import dataclass, field
 
-import holidays as holidays_lib
 import numpy as np
 import pandas as pd
 
@@ -42,7 +41,6 @@ from schedcheck import synth
 from schedcheck.demo_plan import (
     BATTERY_FLAT,
     CALENDARS,
-    CLOSED,
     CONTROLS_CHANGE,
     DEFAULT_MONTHS,
     DEFAULT_SEED,
@@ -61,6 +59,8 @@ from schedcheck.demo_plan import (
     Machine,
     UnitPlan,
     calendar_text,
+    days_off,
+    outdoor_temperature,
     site_toml,
 )
 from schedcheck.durations import parse_duration
@@ -157,38 +157,6 @@ def _labelled(run: Intervals, s0: int, e0: int) -> pd.DataFrame:
 def _pairs(iv: Intervals) -> tuple[tuple[pd.Timestamp, pd.Timestamp], ...]:
     s, e = from_ns(iv.starts), from_ns(iv.ends)
     return tuple(zip(s, e, strict=True))
-
-
-def days_off(first: dt.date, last: dt.date) -> dict[dt.date, str]:
-    """Norwegian public holidays (holidays package, pinned English names) and closure dates."""
-    years = list(range(first.year, last.year + 1))
-    hol = holidays_lib.country_holidays("NO", years=years, categories=("public",), language="en_US")
-    out = {d: str(n) for d, n in hol.items() if first <= d <= last}
-    for a, b in CLOSED:
-        d = a
-        while d <= b:
-            if first <= d <= last:
-                out.setdefault(d, "Closure day")
-            d += dt.timedelta(days=1)
-    return dict(sorted(out.items()))
-
-
-def outdoor_temperature(instants_ns: np.ndarray, rng: np.random.Generator) -> np.ndarray:
-    """Invented outdoor air of a coastal town [degC]: an annual cycle (coldest about 20 January
-    at -2 degC, warmest about 20 July at 14 degC), day-to-day weather (AR(1), sd about 2.5 K) and
-    4 K of daily swing peaking at 15:00 local. Demo data only, from no source."""
-    t = np.asarray(instants_ns, dtype=np.int64)
-    local = from_ns(t).tz_convert(TZ)
-    base = _at(FIRST_DAY, "00:00")
-    day = ((t - base) // (86400 * NS_PER_S)).astype(int)
-    n_days = int(day.max()) + 2
-    weather = np.zeros(n_days)
-    shocks = rng.normal(0.0, 1.5, n_days)
-    for i in range(1, n_days):
-        weather[i] = 0.8 * weather[i - 1] + shocks[i]
-    hour = local.hour.to_numpy() + local.minute.to_numpy() / 60.0
-    season = 6.0 - 8.0 * np.cos(2 * np.pi * (local.day_of_year.to_numpy() - 20) / 365.0)
-    return season + weather[day.clip(0, n_days - 1)] + 4.0 * np.cos(2 * np.pi * (hour - 15) / 24)
 
 
 # -- the true run intervals ----------------------------------------------------------------------
