@@ -125,7 +125,12 @@ def test_every_site_problem_gets_its_own_error_line(tmp_path, capsys):
     assert code == 2
     errs = error_lines(err)
     site = tmp_path / "site.toml"
-    assert len(errs) == 4 and all(e.startswith(f"error: {site}: ") for e in errs)
+    assert len(errs) == 4 and all(e.startswith(f"error: {site}:") for e in errs)
+    lines = SITE.splitlines()
+    # each names the line of its key: timezone, earlystart, power_kw, the second sensor
+    expect = [lines.index('timezone = "Europe/Oslo"') + 1, lines.index('early_start = "1h"') + 1,
+              lines.index("power_kw = 5.5") + 1, lines.index('sensor = "VS-12"') + 1]
+    assert sorted(int(e.split(":")[2]) for e in errs) == sorted(expect)
     assert any('did you mean "early_start"' in e for e in errs)
     assert "4 problems found" in err and "checked once the site file is valid" in out
 

@@ -126,6 +126,24 @@ def test_toml_syntax_error_names_the_line(tmp_path):
     assert len(out) == 1 and out[0].startswith(f"{tmp_path / 'site.toml'}:{line}: not valid TOML")
 
 
+def test_messages_name_the_line_of_the_key_or_of_its_table(tmp_path):
+    text = (BASE.replace("speed = 0.9", "speed = 9").replace('timezone = "Europe/Oslo"\n', "")
+            .replace("threshold = 0.3", "threshold = -1"))
+    out = problems(tmp_path, text)
+    p = tmp_path / "site.toml"
+    lines = text.splitlines()
+    assert f"{p}:{lines.index('[site]') + 1}: site.timezone: missing" in out[0]
+    third = [i for i, x in enumerate(lines) if x == "speed = 9"][0] + 1
+    assert any(o.startswith(f"{p}:{third}: unit[AHU-2].component[supply].speed:") for o in out)
+    thr = lines.index("threshold = -1") + 1
+    assert any(o.startswith(f"{p}:{thr}: unit[AHU-1].component[wheel].threshold:") for o in out)
+    sched = BASE.replace('schedule = { occupied = "shop.ics", early_start = "1h" }',
+                         'schedule = { occupied = "shop.ics", earlystart = "1h" }')
+    (msg,) = problems(tmp_path, sched)
+    row = sched.splitlines().index('schedule = { occupied = "shop.ics", earlystart = "1h" }') + 1
+    assert msg.startswith(f"{p}:{row}: unit[AHU-1].schedule.earlystart: unknown key")
+
+
 def test_missing_file(tmp_path):
     with pytest.raises(InputProblems, match="does not exist"):
         load_site(tmp_path / "nope.toml")
@@ -320,10 +338,11 @@ def test_the_site_file_reference_names_every_key():
     import dataclasses
 
     from schedcheck import site as s
+    from schedcheck.inputs import site_file as sf
 
     doc = (Path(__file__).resolve().parents[1] / "docs" / "site-file.md").read_text()
-    keys = [*s._SITE, *s._READINGS, *s._HOLIDAYS, *s._SCHEDULE, *s._ENERGY, *s._UNIT,
-            *s._COMPONENT, *s.READING_COLUMNS]
+    keys = [*sf._SITE, *sf._READINGS, *sf._HOLIDAYS, *sf._SCHEDULE, *sf._ENERGY, *sf._UNIT,
+            *sf._COMPONENT, *s.READING_COLUMNS]
     keys += [f.name for cls in (s.RunStateSettings, s.FindingSettings)
              for f in dataclasses.fields(cls)]
     missing = [k for k in keys if f"`{k}`" not in doc]

@@ -15,7 +15,8 @@ import pandas as pd
 
 from schedcheck import readings as rd
 from schedcheck.errors import InputError, InputProblems
-from schedcheck.site import LEVEL_COLUMNS, Site, resolve_patterns
+from schedcheck.inputs.site_file import resolve_patterns
+from schedcheck.site import LEVEL_COLUMNS, Site
 
 BAD_ROW_EXAMPLES = 5          # bad rows named in a message (common practice, no source)
 CSV_CHUNK_ROWS = 500_000      # rows per CSV chunk: bounds memory (common practice, no source)
