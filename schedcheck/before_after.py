@@ -102,25 +102,21 @@ def before_after(
     if before_days < 2 or after_days < 2:
         raise InputError("before and after periods need at least 2 days each", key="before/after")
     dates = _dates(daily.index)
-    values = pd.Series(np.asarray(daily, dtype=float), index=pd.Index(dates))
+    values = np.asarray(daily, dtype=float)
     if day_types is None:
-        types = pd.Series(default_day_types(dates), index=pd.Index(dates))
+        types = np.asarray(default_day_types(dates), dtype=object)
     else:
-        types = pd.Series(list(day_types), index=pd.Index(_dates(day_types.index)))
-        types = types.reindex(pd.Index(dates))
+        given = dict(zip(_dates(day_types.index), list(day_types), strict=True))
+        types = np.asarray([given.get(d) for d in dates], dtype=object)
     b0 = change_date - dt.timedelta(days=int(before_days))
     a1 = change_date + dt.timedelta(days=int(after_days))
-    period = pd.Series(
-        [
-            ("before" if b0 <= d < change_date else "after" if change_date <= d < a1 else None)
-            for d in dates
-        ],
-        index=pd.Index(dates),
+    side = np.array(
+        [0 if b0 <= d < change_date else 1 if change_date <= d < a1 else -1 for d in dates],
+        dtype=np.int64,
     )
-    ok = values.notna() & period.notna() & types.notna()
-    frame = pd.DataFrame({"v": values[ok], "p": period[ok], "t": types[ok].astype(str)})
-    n_b = int((frame.p == "before").sum())
-    n_a = int((frame.p == "after").sum())
+    ok = ~np.isnan(values) & (side >= 0) & np.array([t is not None for t in types], dtype=bool)
+    v, side, types = values[ok], side[ok], types[ok].astype(str)
+    n_b, n_a = int((side == 0).sum()), int((side == 1).sum())
     if n_b < 2 or n_a < 2:
         raise InputError(
             f"too few days with data to compare: {n_b} before and {n_a} after {change_date} "
@@ -128,33 +124,34 @@ def before_after(
             key="change",
         )
     notes: list[str] = []
-    counts = (
-        frame.groupby(["t", "p"])
-        .size()
-        .unstack(fill_value=0)
-        .reindex(columns=["before", "after"], fill_value=0)
-    )
-    keep = [t for t in counts.index if counts.loc[t, "before"] > 0 and counts.loc[t, "after"] > 0]
-    for t in counts.index:
-        if t not in keep:
-            notes.append(f"{t} days appear on one side only and are left out of the comparison")
+    labels = sorted(set(types.tolist()))
+    count = {
+        t: (int(((types == t) & (side == 0)).sum()), int(((types == t) & (side == 1)).sum()))
+        for t in labels
+    }
+    keep = [t for t in labels if min(count[t]) > 0]
+    notes += [
+        f"{t} days appear on one side only and are left out of the comparison"
+        for t in labels
+        if t not in keep
+    ]
     if not keep:
         raise InputError(f"no day type appears both before and after {change_date}", key="change")
-    if any(counts.loc[t, "before"] < 2 or counts.loc[t, "after"] < 2 for t in keep):
+    if any(min(count[t]) < 2 for t in keep):
         notes.append(
             "too few days of some type to compare type by type; all days compared as one group"
         )
-        frame = frame.assign(t="all day types")
+        types = np.where(np.isin(types, keep), "all day types", types)
         keep = ["all day types"]
-    frame = frame[frame.t.isin(keep)]
-    total = len(frame)
+    used = np.isin(types, keep)
+    v, side, types = v[used], side[used], types[used]
+    total = len(v)
     parts = {}
     terms = []  # (variance contribution, n - 1)
     for t in keep:
-        sub = frame[frame.t == t]
-        b = sub.v[sub.p == "before"].to_numpy()
-        a = sub.v[sub.p == "after"].to_numpy()
-        w = len(sub) / total
+        b = v[(types == t) & (side == 0)]
+        a = v[(types == t) & (side == 1)]
+        w = (len(a) + len(b)) / total
         parts[t] = {
             "weight": w,
             "n_before": len(b),
@@ -167,9 +164,9 @@ def before_after(
     before = sum(p["weight"] * p["before_mean"] for p in parts.values())
     after = sum(p["weight"] * p["after_mean"] for p in parts.values())
     diff = after - before
-    var = sum(v for v, _ in terms)
+    var = sum(term for term, _ in terms)
     if var > 0:
-        dof = var**2 / sum(v**2 / df for v, df in terms if v > 0)
+        dof = var**2 / sum(term**2 / df for term, df in terms if term > 0)
         half = float(stats.t.ppf(0.5 + CONFIDENCE / 2, dof) * np.sqrt(var))
     else:
         dof, half = float("inf"), 0.0
@@ -179,8 +176,8 @@ def before_after(
         after_mean=float(after),
         difference=float(diff),
         ci95=(float(diff - half), float(diff + half)),
-        n_before=int((frame.p == "before").sum()),
-        n_after=int((frame.p == "after").sum()),
+        n_before=int((side == 0).sum()),
+        n_after=int((side == 1).sum()),
         dof=float(dof),
         day_types=parts,
         notes=tuple(notes),

@@ -275,3 +275,21 @@ def test_missing_days_are_left_out_and_counted():
 def test_too_few_days_is_an_input_error():
     with pytest.raises(InputError, match="too few days"):
         before_after(daily(np.ones(10)), MONDAY + dt.timedelta(days=30), 5, 5)
+
+
+def test_stratified_interval_covers_the_true_difference_about_95_percent_of_the_time():
+    # Check by simulation (seeded): weekdays and weekends with different levels, spreads and
+    # a different true change each; the interval should hold the true weighted difference in
+    # about 95% of trials (400 trials: the binomial 99% band is roughly 91.5% .. 98.5%).
+    rng = np.random.default_rng(2024)
+    idx = [MONDAY + dt.timedelta(days=i) for i in range(56)]
+    weekend = np.array([d.weekday() >= 5 for d in idx])
+    after = np.arange(56) >= 28
+    true_diff = 5 / 7 * 1.0 + 2 / 7 * 3.0
+    hits = 0
+    for _ in range(400):
+        v = np.where(weekend, 4.0 + rng.normal(0.0, 1.5, 56), 1.0 + rng.normal(0.0, 0.5, 56))
+        v = v + np.where(after, np.where(weekend, 3.0, 1.0), 0.0)
+        res = before_after(pd.Series(v, index=idx), MONDAY + dt.timedelta(days=28), 28, 28)
+        hits += res.ci95[0] <= true_diff <= res.ci95[1]
+    assert 0.915 <= hits / 400 <= 0.985
