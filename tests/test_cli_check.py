@@ -176,3 +176,16 @@ def test_missing_site_file(tmp_path, capsys):
 def test_the_minimal_example_checks_clean(capsys):
     code, out, err = run(capsys, ROOT / "examples" / "minimal" / "site.toml")
     assert code == 0, err
+
+
+def test_a_sensor_that_starts_late_shows_the_silence_as_a_gap(tmp_path):
+    t = pd.date_range("2026-03-02T00:00:00Z", periods=600, freq="1min")
+    rows = pd.concat([
+        pd.DataFrame({"timestamp": t.strftime("%Y-%m-%dT%H:%M:%SZ"), "sensor": "VS-11",
+                      "x_rms": 1.0}),
+        pd.DataFrame({"timestamp": t[120:].strftime("%Y-%m-%dT%H:%M:%SZ"), "sensor": "VS-12",
+                      "x_rms": 1.0})])
+    report = check_site(make(tmp_path, rows=rows))
+    h11, h12 = report.health
+    assert (h11.gaps, h11.gap_hours) == (0, 0.0)
+    assert h12.gaps == 1 and h12.gap_hours == pytest.approx(2.0)   # 00:00 to 02:00 UTC

@@ -61,9 +61,14 @@ def check(
     """
     from rich.console import Console
 
+    from schedcheck.cli._common import interactive
     from schedcheck.jobs.check import check_site
 
-    report = check_site(site, skip_bad_rows=skip_bad_rows)
+    def say(message: str) -> None:
+        print(f"... {message}", file=sys.stderr, flush=True)
+
+    report = check_site(site, skip_bad_rows=skip_bad_rows,
+                        progress=say if interactive() else None)
     out = Console(width=None if sys.stdout.isatty() else 200, highlight=False)
     if report.site is not None:
         s = report.site

@@ -8,6 +8,7 @@ than the whole file. Rows are turned into clean per-sensor frames by :mod:`sched
 from __future__ import annotations
 
 from collections import Counter
+from collections.abc import Callable
 from pathlib import Path
 
 import numpy as np
@@ -337,7 +338,8 @@ def _clustered(pf, column: str, wanted: list) -> bool:
 
 
 def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timestamp | None = None,
-                  *, skip_bad_rows: bool | None = None, keep: bool = False) -> rd.Readings:
+                  *, skip_bad_rows: bool | None = None, keep: bool = False,
+                  progress: Callable[[str], None] | None = None) -> rd.Readings:
     """Read every readings file of a site and return clean readings of its sensors.
 
     Parameters
@@ -352,6 +354,8 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
     keep : bool
         Keep this whole read (no window) for the next call, which may then cut its window from
         it without parsing the files again (see :func:`schedcheck.jobs.common.data_time_range`).
+    progress : callable, optional
+        Called with a short message before each file is read.
 
     Raises
     ------
@@ -371,6 +375,8 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
         _LAST = None
         col = _Collector(site, start, end)
         for i, path in enumerate(files):
+            if progress is not None:
+                progress(f"reading {path.name} ({i + 1} of {len(files)})")
             _read_file(col, site, path, i)
         if keep and start is None and end is None:
             _LAST = (key, col)

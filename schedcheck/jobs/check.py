@@ -7,8 +7,11 @@ calendars and readings cannot be located reliably and are not read; the report s
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
+
+import pandas as pd
 
 from schedcheck.errors import InputError, InputProblems
 from schedcheck.readings import SensorHealth
@@ -65,7 +68,32 @@ def check_calendars(site: Site, paths: list[Path]) -> list[InputError]:
     return out
 
 
-def check_site(path: str | Path, skip_bad_rows: bool = False) -> CheckReport:
+def _health_over_span(readings, max_gap) -> list[SensorHealth]:
+    """Health with silences measured against the span of all sensors' data, so that a sensor
+    that starts late or stops early shows it as a gap."""
+    import dataclasses
+
+    import numpy as np
+
+    from schedcheck.readings import measure_gaps
+
+    firsts = [h.first for h in readings.health.values() if h.first is not None]
+    if not firsts:
+        return list(readings.health.values())
+    start = min(firsts)
+    end = max(h.last for h in readings.health.values() if h.last is not None)
+    end = end + pd.Timedelta(1, "ns")   # [start, end) holds the last reading
+    out = []
+    for sensor, h in readings.health.items():
+        ts = readings.by_sensor[sensor]["timestamp"].to_numpy("datetime64[ns]").view(np.int64)
+        h = dataclasses.replace(h)
+        measure_gaps(h, ts, start, end, max_gap)
+        out.append(h)
+    return out
+
+
+def check_site(path: str | Path, skip_bad_rows: bool = False,
+               progress: Callable[[str], None] | None = None) -> CheckReport:
     """Validate a site file, its calendars and its readings; never raises for input problems.
 
     Parameters
@@ -75,13 +103,14 @@ def check_site(path: str | Path, skip_bad_rows: bool = False) -> CheckReport:
     skip_bad_rows : bool
         Treat malformed readings rows as skipped (counted, listed) rather than as problems; also
         on when the site file sets ``[readings] skip_bad_rows = true``.
+    progress : callable, optional
+        Called with a short message before each readings file is read.
 
     Returns
     -------
     CheckReport
         ``problems`` is empty when every input is usable.
     """
-    from schedcheck.jobs.common import load_readings
     from schedcheck.site import load_site
 
     report = CheckReport(path=Path(path))
@@ -98,11 +127,13 @@ def check_site(path: str | Path, skip_bad_rows: bool = False) -> CheckReport:
     try:
         # read with skipping so that the health table is complete; bad rows become problems
         # below unless the user asked to skip them
-        readings = load_readings(site, skip_bad_rows=True)
+        from schedcheck.inputs.readings_files import read_readings
+
+        readings = read_readings(site, skip_bad_rows=True, progress=progress)
     except InputError as e:
         report.problems.extend(_problems(e))
         return report
-    report.health = list(readings.health.values())
+    report.health = _health_over_span(readings, site.readings.max_gap)
     report.unconfigured = dict(sorted(readings.unconfigured.items()))
     report.files = readings.files
     report.bad_rows_count = readings.bad_rows_count
