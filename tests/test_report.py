@@ -88,6 +88,22 @@ def test_findings_sorted_by_cost_with_local_times(outdir, page):
     assert rows[0]["when"][0] == local_start
 
 
+def test_speed_sensitivity_follows_the_affinity_law(outdir):
+    # fan affinity laws: power ~ speed**3, so 10 % more speed is 1.1**3 = 1.331 times the power
+    # (the textbook cube law for geometrically similar fans; stated here from memory)
+    data = read_saved_audit(outdir)
+    ctx = report_context(data)
+    comps = data.summary["components"]
+    low = sum(c["energy"]["off_schedule_kwh"] * ((c["speed"] - 0.05) / c["speed"]) ** 3
+              for c in comps)
+    assert ctx["totals"]["kwh_speed_low"] == pytest.approx(low)
+    assert ((0.85 + 0.05) / 0.85) ** 3 == pytest.approx(1.1870, abs=1e-4)
+    assert ctx["totals"]["kwh_speed_high"] == pytest.approx(
+        ctx["totals"]["off_schedule_kwh"] * 1.1870, rel=1e-3)
+    nd = sum(c["hours"]["no_data"] * c["energy"]["running_kw"] for c in comps)
+    assert ctx["totals"]["kwh_no_data_max"] == pytest.approx(nd) and nd > 0
+
+
 def test_asks_cautions_and_method_are_present(page):
     assert "What to ask the controls contractor" in page
     assert "holiday calendar" in page       # the holiday finding's question

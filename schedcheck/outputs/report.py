@@ -240,6 +240,7 @@ def report_context(data: SavedAudit) -> dict:
     totals["no_data_share"] = (totals["no_data_h"] / totals["period_h"]
                                if totals["period_h"] else 0.0)
     totals["per_year_cost"] = totals["off_schedule_cost"] * 365.0 / ndays if ndays else 0.0
+    totals.update(_sensitivity(comps))
     return {
         "site": site, "currency": site.get("currency") or "", "price": site.get("price"),
         "co2_per_kwh": site.get("co2_per_kwh"), "reading_unit": site.get("reading_unit", ""),
@@ -259,6 +260,31 @@ def report_context(data: SavedAudit) -> dict:
         "dst_days": _dst_days(data.timezone, first, last),
         "intended": _intended(data.schedule, units),
     }
+
+
+SPEED_STEP = 0.05  # speed fraction +/- for the sensitivity line (common practice, no source)
+
+
+def _sensitivity(comps: list[dict]) -> dict:
+    """How the off-schedule energy moves with the assumed speed, and what no data could hide.
+
+    Affinity law: power scales with speed**n, so the off-schedule kWh of a component at speed
+    s +/- SPEED_STEP is kwh * ((s +/- step) / s) ** n. The no-data bound is the energy had the
+    component run through every no-data hour at its assumed power [kWh].
+    """
+    low = high = hidden = 0.0
+    for c in comps:
+        kwh = (c["energy"].get("off_schedule_kwh") or 0.0)
+        s, n = c.get("speed"), c.get("exponent")
+        if s and n and s > SPEED_STEP:
+            low += kwh * ((s - SPEED_STEP) / s) ** n
+            high += kwh * (min(s + SPEED_STEP, 1.0) / s) ** n if s < 1.0 else kwh
+        else:
+            low += kwh
+            high += kwh
+        hidden += (c["hours"].get("no_data") or 0.0) * (c["energy"].get("running_kw") or 0.0)
+    return {"kwh_speed_low": low, "kwh_speed_high": high, "kwh_no_data_max": hidden,
+            "speed_step": SPEED_STEP}
 
 
 def _intended(schedule: pd.DataFrame, units: list[dict]) -> list[dict]:
