@@ -78,6 +78,11 @@ FIGURES = {  # name in the output -> how to read it from the audit's daily rows
 }
 
 
+def _round(x: float, digits: int) -> float:
+    """Rounded, without a negative zero in the output."""
+    return round(float(x), digits) + 0.0
+
+
 @dataclass
 class ChangePoint:
     """A date from which the daily off-schedule hours settle at another level."""
@@ -125,27 +130,27 @@ class CompareResult:
         for c in self.components:
             fig = c.figures
             side = {
-                p: {k: round(getattr(v, f"{p}_mean"), 3) for k, v in fig.items()}
+                p: {k: _round(getattr(v, f"{p}_mean"), 3) for k, v in fig.items()}
                 | {"days": c.days[p]["days"], "days_used": c.days[p]["used"],
                    "days_no_data": c.days[p]["no_data"]}
                 for p in ("before", "after")
             }
             diff = {}
             for k, v in fig.items():
-                diff[k] = round(v.difference, 3)
+                diff[k] = _round(v.difference, 3)
                 name = "ci95" if k == "off_schedule_h_per_day" else f"{k}_ci95"
-                diff[name] = [round(v.ci95[0], 3), round(v.ci95[1], 3)]
+                diff[name] = [_round(v.ci95[0], 3), _round(v.ci95[1], 3)]
             if "kwh_per_day" in fig:
                 per_year = fig["kwh_per_day"].difference * 365.0
-                diff["kwh_per_year"] = round(per_year, 1)
-                diff["cost_per_year"] = round(per_year * self.price, 1)
+                diff["kwh_per_year"] = _round(per_year, 1)
+                diff["cost_per_year"] = _round(per_year * self.price, 1)
             comps.append({
                 "id": c.id, "unit": c.unit, "role": c.role,
                 "before": side["before"], "after": side["after"], "difference": diff,
                 "change_points": [
                     {"date": p.date.isoformat(), "latest": p.latest.isoformat(),
-                     "before_mean": round(p.before_mean, 3),
-                     "after_mean": round(p.after_mean, 3)} for p in c.change_points],
+                     "before_mean": _round(p.before_mean, 3),
+                     "after_mean": _round(p.after_mean, 3)} for p in c.change_points],
                 "notes": list(c.notes),
             })
         return {
