@@ -289,3 +289,14 @@ def test_unwritable_place_is_a_clean_error(tmp_path):
         write_demo(demo_mod.build_demo(months=1), {}, blocker)
     with pytest.raises(InputError, match="cannot write"):
         write_demo(demo_mod.build_demo(months=1), {}, blocker / "sub")
+
+
+def test_the_check_job_accepts_the_written_demo(written):
+    from schedcheck.jobs.check import check_site
+
+    report = check_site(written.site_file)
+    assert report.ok, [str(p) for p in report.problems]
+    assert {h.sensor for h in report.health} == {m.sensor for m in MACHINES}
+    for h in report.health:   # 28 days of minutes less about 1.2 % lost; no outage before March 24
+        assert 0.97 * 28 * 1440 < h.count < 28 * 1440 and h.gap_hours == 0.0, h.sensor
+        assert h.duplicates_exact > 0 and h.out_of_order > 0, h.sensor
