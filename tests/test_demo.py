@@ -300,3 +300,18 @@ def test_the_check_job_accepts_the_written_demo(written):
     for h in report.health:   # 28 days of minutes less about 1.2 % lost; no outage before March 24
         assert 0.97 * 28 * 1440 < h.count < 28 * 1440 and h.gap_hours == 0.0, h.sensor
         assert h.duplicates_exact > 0 and h.out_of_order > 0, h.sensor
+
+
+@pytest.mark.slow
+def test_cli_demo_audits_what_it_wrote(tmp_path, capsys):
+    """End to end on one month: the only planted fault then is AHU-2's night override."""
+    assert main(["demo", str(tmp_path / "d"), "--months", "1"]) == 0
+    summary = json.loads((tmp_path / "d/audit/summary.json").read_text())
+    kinds = {(f["component"], f["kind"]) for f in summary["findings"]}
+    assert kinds == {(c, "night") for c in ("AHU-2/supply", "AHU-2/exhaust", "AHU-2/wheel")}
+    truth = read_demo_truth(tmp_path / "d")
+    for comp in summary["components"]:
+        planted = sum(f["hours"] for f in truth.faults_of(comp["id"]))
+        # off-schedule hours within 1 % plus a minute per episode of the generator's truth
+        n = sum(len(f["episodes"]) for f in truth.faults_of(comp["id"]))
+        assert abs(comp["hours"]["off_schedule"] - planted) <= 0.01 * planted + n / 60, comp["id"]
