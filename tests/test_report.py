@@ -60,6 +60,24 @@ def test_page_names_site_window_and_every_component(outdir, page):
     assert "Sun 29 Mar 2026 (23 h)" in page
 
 
+def test_carpet_running_area_equals_running_hours(outdir):
+    # the drawing (from runs.csv) against the summary's hour figures: equal, except that a run
+    # across the skipped spring hour (29 Mar 2026 02:00-03:00 in Oslo, i.e. 01:00 UTC) is drawn
+    # as one wall-clock block, one hour longer than the elapsed time
+    import re
+
+    from schedcheck.outputs.svg import HOUR_PX
+
+    data = read_saved_audit(outdir)
+    change = pd.Timestamp("2026-03-29T01:00:00Z")
+    for comp in report_context(data)["components"]:
+        d = re.search(r'class="st-run"[^>]*\sd="([^"]*)"', str(comp["carpet"])).group(1)
+        drawn_h = sum(float(v) for v in re.findall(r"v([\d.]+)", d)) / HOUR_PX
+        runs = data.runs[(data.runs["component"] == comp["id"]) & (data.runs["state"] == "run")]
+        bridged = int(((runs["start"] < change) & (runs["end"] > change)).sum())
+        assert drawn_h == pytest.approx(comp["hours"]["running"] + bridged, abs=0.1)
+
+
 def test_headline_figures_agree_with_the_daily_file(outdir, page):
     data = read_saved_audit(outdir)
     ctx = report_context(data)
