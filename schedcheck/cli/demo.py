@@ -36,6 +36,7 @@ def _faults_table(result) -> object:
 @app.command()
 def demo(
     folder: Annotated[Path, typer.Argument(
+        metavar="DIR",
         help="Folder to write the demo site into (created; must be empty or an earlier demo).")
     ] = Path("schedcheck-demo"),
     seed: Annotated[int, typer.Option(
