@@ -41,6 +41,7 @@ HOUR_PX = 8.0               # carpet plot: pixels per hour of the day
 PLOT_W = 720.0              # target width of the plot area [px]
 COL_MIN, COL_MAX = 1.6, 28.0  # limits of a day column's width [px]
 LEFT, TOP = 40.0, 22.0      # margins for labels [px]
+MIN_W = 240.0               # narrowest picture, room for its caption [px]
 SIDES_MIN_PX = 12.0         # outlines get sides only on columns at least this wide [px]
 MIN_PER_DAY = 1440.0
 
@@ -204,7 +205,7 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
     ndays = (last - first).days + 1
     cw = column_width(ndays)
     ph = 24 * HOUR_PX
-    width = LEFT + ndays * cw + 8
+    width = max(LEFT + ndays * cw + 8, MIN_W)
     height = TOP + ph + 40
     k = HOUR_PX / 60.0
     out = [f'<svg xmlns="http://www.w3.org/2000/svg" class="chart carpet" role="img" '
@@ -296,7 +297,7 @@ def daily_bars_svg(daily: pd.DataFrame, *, first: dt.date, last: dt.date, title:
     below = min(ph * 0.5, missed_max / top * ph) if missed_max > 0 else 0.0
     k = ph / top
     base_y = TOP + ph
-    width = LEFT + ndays * cw + 8
+    width = max(LEFT + ndays * cw + 8, MIN_W)
     height = base_y + below + 36
     bw = max(cw * 0.8, min(cw, 1.2))
     x = LEFT + day * cw + (cw - bw) / 2
