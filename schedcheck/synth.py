@@ -29,12 +29,16 @@ The reading model (per reading, per axis)
   log-normal scatter (sigma 0.08), only while the truth says ``run``;
 * carried: ``carried_level`` (same drift, scatter sigma 0.10) while the *sibling's* truth
   (``carried``) says ``run``, whatever this component does;
+* all scatters are multiplied by ``scatter`` (0 gives noise-free levels for exact-recovery
+  tests);
 * the three add in quadrature (independent sources) and are split over the axes by fixed
   per-sensor weights; peaks are the RMS times a crest factor of about 1.5 (common practice,
   no source: about sqrt(2) for a sine, more with impacts), times ``transient_factor`` during
   the first two minutes after each start.
 
-Then reading times get uniform jitter of up to +-``jitter``, a share ``packet_loss`` of readings
+Then reading times get uniform jitter of up to +-``jitter`` (in whole seconds when ``jitter``
+is a second or more, as gateways stamp readings; readings are due at ``start + k * period``),
+a share ``packet_loss`` of readings
 is lost at random, readings inside ``outages`` are lost, a share ``duplicates`` is sent twice and
 a share ``out_of_order`` swaps places with its neighbour in the file.
 """
