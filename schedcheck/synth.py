@@ -36,11 +36,11 @@ The reading model (per reading, per axis)
   no source: about sqrt(2) for a sine, more with impacts), times ``transient_factor`` during
   the first two minutes after each start.
 
-Then reading times get uniform jitter of up to +-``jitter`` (in whole seconds when ``jitter``
-is a second or more, as gateways stamp readings; readings are due at ``start + k * period``),
-a share ``packet_loss`` of readings
-is lost at random, readings inside ``outages`` are lost, a share ``duplicates`` is sent twice and
-a share ``out_of_order`` swaps places with its neighbour in the file.
+Readings are due at ``start + k * period``. Their times get uniform jitter of up to
++-``jitter`` (in whole seconds when ``jitter`` is a second or more, as gateways stamp
+readings); a share ``packet_loss`` of readings is lost at random, readings inside ``outages``
+are lost, a share ``duplicates`` is sent twice and a share ``out_of_order`` swaps places with
+its neighbour in the file.
 """
 
 from __future__ import annotations
