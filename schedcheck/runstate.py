@@ -275,6 +275,9 @@ def choose_threshold(
                          floor)
     g = groups if groups is not None else th.level_groups(L)
     med = [float(m) for m in g.medians]
+    if L.size >= 10 and np.all(L == L[0]):
+        warn.append(f"every reading has the same level ({10 ** L[0]:.3g}): is the sensor stuck "
+                    "or disconnected?")
     lo_med = hi_med = np.nan
     if configured is not None:
         if configured <= 0:

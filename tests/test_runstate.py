@@ -369,3 +369,11 @@ def test_any_window_is_covered_exactly(week_readings, a, b):
     assert str(tab["start"].dtype) == "datetime64[ns, UTC]" == str(tab["end"].dtype)
     assert ((tab["end"] - tab["start"]) > pd.Timedelta(0)).all()
     assert tab["level"].isna().tolist() == (tab["state"] == "no_data").tolist()
+
+
+def test_a_stuck_sensor_is_named():
+    end = T0 + pd.Timedelta("1D")
+    ts = pd.date_range(T0, end, freq="60s", inclusive="left")
+    r = pd.DataFrame({"timestamp": ts, "z_rms": 0.0})
+    cs = runstate.classify_component(comp(), r, T0, end, GAP)
+    assert cs.run_share == 0.0 and any("stuck" in w for w in cs.threshold.warnings)
