@@ -19,7 +19,6 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
-from scipy import stats
 
 from schedcheck.errors import InputError
 
@@ -168,6 +167,8 @@ def before_after(
     diff = after - before
     var = sum(term for term, _ in terms)
     if var > 0:
+        from scipy import stats  # imported here: it is slow to load and only needed now
+
         dof = var**2 / sum(term**2 / df for term, df in terms if term > 0)
         half = float(stats.t.ppf(0.5 + CONFIDENCE / 2, dof) * np.sqrt(var))
     else:

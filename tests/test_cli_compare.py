@@ -211,6 +211,13 @@ def test_table_output_reads_plainly(site, capsys):
     assert err == ""
 
 
+def test_cli_default_period_is_the_job_default():
+    from schedcheck.cli import compare as cli_compare
+    from schedcheck.jobs import compare as job_compare
+
+    assert cli_compare.DEFAULT_DAYS == job_compare.DEFAULT_DAYS
+
+
 @pytest.mark.parametrize(
     ("args", "words"),
     [
