@@ -58,6 +58,8 @@ def test_page_names_site_window_and_every_component(outdir, page):
     # the window holds the spring clock change (Europe/Oslo, 29 Mar 2026: EU rule, last Sunday
     # of March, Directive 2000/84/EC) and the page says how it is drawn
     assert "Sun 29 Mar 2026 (23 h)" in page
+    # the day off, named, for every unit
+    assert "Thu 26 Mar 2026</td><td>Founders&#39; Day</td><td>holiday</td><td>all</td>" in page
 
 
 def test_carpet_running_area_equals_running_hours(outdir):

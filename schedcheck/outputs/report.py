@@ -250,10 +250,7 @@ def report_context(data: SavedAudit) -> dict:
         "findings_hidden": findings[FINDINGS_SHOWN:], "n_findings": len(findings),
         "asks": _asks(findings, by_id),
         "sensors": _sensors(s.get("sensors") or [], data.timezone),
-        "days_off": [{"unit": r.unit, "date": r.date.strftime("%a %d %b %Y"), "name": r.name,
-                      "kind": r.kind} for r in days_off.drop_duplicates(
-                          ["date", "name", "kind"]).itertuples(index=False)]
-        if len(days_off) else [],
+        "days_off": _days_off_rows(days_off, [u["id"] for u in units]),
         "bad_rows": s.get("bad_rows") or {}, "warnings": s.get("warnings") or [],
         "generated": _when(s.get("generated")), "tool_version": s.get("tool_version", ""),
         "legend": Markup(svg.legend_svg("lg")),
@@ -302,6 +299,19 @@ def _intended(schedule: pd.DataFrame, units: list[dict]) -> list[dict]:
             entry[f"{kind}_sources"] = [(name, int(n)) for name, n in counts.items() if name][:8]
         out.append(entry)
     return out
+
+
+def _days_off_rows(days_off: pd.DataFrame, unit_ids: list[str]) -> list[dict]:
+    """One row per day off (date, name, kind) with the units it applies to ("all" if every)."""
+    rows = []
+    if len(days_off) == 0:
+        return rows
+    for (date, name, kind), g in days_off.groupby(["date", "name", "kind"], sort=True):
+        units = sorted({str(u) for u in g["unit"] if u})
+        every = not units or set(units) >= set(unit_ids)
+        rows.append({"date": date.strftime("%a %d %b %Y"), "name": name, "kind": kind,
+                     "units": "all" if every else ", ".join(units)})
+    return rows
 
 
 def _when(text: str | None) -> str:
