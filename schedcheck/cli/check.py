@@ -10,6 +10,8 @@ import typer
 
 from schedcheck.cli._app import app
 
+UNMAPPED_SHOWN = 20   # unmapped sensors named on screen; the rest are counted
+
 
 def _local(ts, tz: str) -> str:
     return "-" if ts is None else ts.tz_convert(tz).strftime("%Y-%m-%d %H:%M")
@@ -79,7 +81,10 @@ def check(
         if report.health:
             out.print(health_table(report))
         if report.unconfigured:
-            listed = ", ".join(f"{k} ({v:,} rows)" for k, v in report.unconfigured.items())
+            items = list(report.unconfigured.items())
+            listed = ", ".join(f"{k} ({v:,} rows)" for k, v in items[:UNMAPPED_SHOWN])
+            if len(items) > UNMAPPED_SHOWN:
+                listed += f" and {len(items) - UNMAPPED_SHOWN} more"
             out.print(f"Sensors in the readings that the site file does not map: {listed}",
                       markup=False)
         if report.bad_rows_count and (skip_bad_rows or s.readings.skip_bad_rows):
