@@ -200,6 +200,29 @@ def test_component_without_data_before_is_reported_not_dropped(as_json):
     assert any(n.startswith("not compared: too few days") for n in c["notes"])
 
 
+def test_figures_agree_with_the_audits_daily_csv(site, as_json, tmp_path, capsys):
+    # The same window audited by `schedcheck audit`: its daily.csv, weighted by day type the
+    # way docs/compare.md describes, gives the per-day figures compare printed.
+    code, _, err = run(["audit", str(site), "--from", str(FIRST), "--to", str(LAST), "--out",
+                        str(tmp_path / "audit")], capsys)
+    assert code == 0, err
+    daily = pd.read_csv(tmp_path / "audit" / "daily.csv")
+    daily = daily[daily["no_data_h"] <= 2.0]
+    daily["type"] = np.where(daily["scheduled_h"] > 0, "occupied", "unoccupied")
+    daily["side"] = np.where(daily["date"] < str(CHANGE), "before", "after")
+    for comp in as_json["components"][:2]:
+        rows = daily[daily["component"] == comp["id"]]
+        weight = rows.groupby("type").size() / len(rows)
+        for side in ("before", "after"):
+            means = rows[rows["side"] == side].groupby("type")[["off_schedule_h",
+                                                                 "off_schedule_kwh"]].mean()
+            expect = means.mul(weight, axis=0).sum()
+            assert comp[side]["off_schedule_h_per_day"] == pytest.approx(
+                expect["off_schedule_h"], abs=2e-3)
+            assert comp[side]["kwh_per_day"] == pytest.approx(expect["off_schedule_kwh"],
+                                                              abs=2e-3)
+
+
 def test_table_output_reads_plainly(site, capsys):
     code, out, err = run(["compare", str(site), "--change", str(CHANGE), "--before", "21",
                           "--after", "21"], capsys)
