@@ -1,8 +1,11 @@
 """Reading the readings files: CSV, gzip-compressed CSV and Parquet, globs and column mapping.
 
-Only the needed columns are read. CSV files are read in chunks; Parquet files are read one
-configured sensor at a time with a row filter, so memory follows the largest sensor rather
-than the whole file. Rows are turned into clean per-sensor frames by :mod:`schedcheck.readings`.
+Only the needed columns are read. CSV files are read in chunks. Parquet files whose row groups
+each hold about one sensor are read one configured sensor at a time with a row filter, so
+memory follows the largest sensor rather than the whole file; Parquet files with the sensors
+mixed in every row group (where a filter would decode every group once per sensor) are
+streamed in batches instead. Rows are turned into clean per-sensor frames by
+:mod:`schedcheck.readings`.
 """
 
 from __future__ import annotations
@@ -127,15 +130,13 @@ class _Collector:
 
     def _bad(self, raw, tp, levels, bad, path, lines, sensor) -> None:
         idx = np.flatnonzero(bad)
-        rec = self.bad_by_file.setdefault(str(path), [])
+        rec = self.bad_by_file.setdefault(str(path), [[], 0])   # [first few errors, count]
         for s, n in Counter(sensor[idx]).items():
             if s:
                 self.bad_by_sensor[s] += n
         self.bad_total += len(idx)
-        for i in idx:
-            if len(rec) >= BAD_ROW_EXAMPLES + 20:   # enough lines to name; the rest is counted
-                rec.append(None)
-                continue
+        rec[1] += len(idx)
+        for i in idx[:max(0, BAD_ROW_EXAMPLES - len(rec[0]))]:   # the rest are only counted
             reason = None
             if tp.status[i] not in (rd.OK, rd.AMBIGUOUS):
                 reason = rd.describe_time(raw["timestamp"].iloc[i], int(tp.status[i]), self.tz)
@@ -148,7 +149,7 @@ class _Collector:
                         break
             w = self._where(path, lines, int(i), sensor, raw)
             err = InputError(reason or "bad row", path=w.path, line=w.line, key=w.key)
-            rec.append(err)
+            rec[0].append(err)
             if len(self.bad_examples) < BAD_ROW_EXAMPLES:
                 self.bad_examples.append(err)
 
@@ -167,15 +168,14 @@ class _Collector:
     def bad_row_errors(self) -> list[InputError]:
         """One problem per file with bad rows: the first, then where the next few are."""
         out = []
-        for rec in self.bad_by_file.values():
-            named = [e for e in rec if e is not None]
-            first, rest = named[0], len(rec) - 1
+        for named, count in self.bad_by_file.values():
+            first, rest = named[0], count - 1
             if rest:
                 spots = [str(e.line) if e.line is not None else e.key
                          for e in named[1:BAD_ROW_EXAMPLES]]
                 label = "lines" if first.line is not None else "rows"
-                extra = f" and {rest - len(spots)} more" if rest > len(spots) else ""
-                tail = (f" (and {rest} more bad row{'s' if rest > 1 else ''}: {label} "
+                extra = f" and {rest - len(spots):,} more" if rest > len(spots) else ""
+                tail = (f" (and {rest:,} more bad row{'s' if rest > 1 else ''}: {label} "
                         f"{', '.join(spots)}{extra}; pass --skip-bad-rows to drop them)")
             else:
                 tail = " (pass --skip-bad-rows to drop bad rows)"
@@ -473,7 +473,7 @@ def _assemble(col: _Collector, site: Site, files, start, end, skip: bool,
             path=site.path, key="readings.files")])
     if skip and col.bad_total:
         first = "; ".join(str(e) for e in col.bad_examples[:3])
-        warns.append(f"skipped {col.bad_total} bad row{'s' if col.bad_total > 1 else ''} "
+        warns.append(f"skipped {col.bad_total:,} bad row{'s' if col.bad_total > 1 else ''} "
                      f"(first: {first})")
     return rd.Readings(by_sensor=by_sensor, health=health, unconfigured=dict(col.unconfigured),
                        bad_rows_count=col.bad_total,
