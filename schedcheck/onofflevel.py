@@ -1,0 +1,313 @@
+"""The on/off level of one component: levels per reading, grouping, the learned or floor level.
+
+Part of run-state classification (see :mod:`schedcheck.runstate` for the whole sequence and
+``docs/run-states.md`` for the user's view). The published methods (Otsu, Ashman's D, the
+histogram valley) live in :mod:`schedcheck.thresholds`; this module decides which one applies.
+
+Defaults (each with its source):
+
+* ``FLOOR_BY_UNIT`` -- the floor level per reading unit. MEMS accelerometers of the kind used in
+  wireless vibration sensors have noise densities of roughly 25-300 ug/sqrt(Hz) (datasheet
+  figures, from memory); integrated to velocity over 10-1000 Hz that is about 0.01-0.15 mm/s
+  RMS (computed: v = a_n / (2 pi) * sqrt(1/10 Hz - 1/1000 Hz)). The common rule that a running
+  machine should read several times its stopped background (common practice, no source; we
+  take about 3x the upper noise figure) gives 0.2 mm/s, which is also well below the
+  vibration of a healthy running fan (ISO 10816-3 zone A reaches 1.4-2.3 mm/s, from memory).
+  The other units are the same level converted at a typical 30 Hz fan frequency (from memory).
+* ``HYSTERESIS`` = 0.1 decade either side (about +-26 %), narrowed to a quarter of the distance
+  to each group's median when the groups are known (common practice, no source).
+* ``CARRIED_SHARE`` = 0.95: a middle group is carried vibration when at least this share of its
+  readings fall while a sibling moves and at most 1 - this share of the lowest group's
+  (common practice, no source).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from schedcheck import thresholds as th
+from schedcheck.errors import InputError
+from schedcheck.intervals import to_ns
+from schedcheck.site import RunStateSettings
+
+FLOOR_BY_UNIT = {"mm/s": 0.2, "in/s": 0.008, "ips": 0.008, "m/s": 0.0002,
+                 "g": 0.004, "mg": 4.0, "m/s2": 0.04, "m/s^2": 0.04, "m/s²": 0.04}
+SEPARATION_CAP = 1000.0   # Ashman's D reported at most this (noise-free levels give infinity)
+HYSTERESIS = 0.1          # [decades]
+CARRIED_SHARE = 0.95      # [-]
+RMS = ("x_rms", "y_rms", "z_rms")
+PEAK = ("x_peak", "y_peak", "z_peak")
+DISPLAY_BINS = 60         # histogram bins kept for pictures and summary.json
+
+
+
+@dataclass(frozen=True)
+class Threshold:
+    """The on/off level of one component and why it was chosen.
+
+    ``level``, ``on_level``, ``off_level`` are in the reading unit; ``separation`` is Ashman's D
+    between the readings below and above ``level`` (log10 levels; at most 1000) and
+    ``effectiveness`` Otsu's eta of that split (both NaN when one side is empty); ``counts`` /
+    ``edges_log10`` a histogram of log10 levels for pictures; ``groups`` the medians of the
+    level groups found [reading unit]; ``reason`` one plain sentence; ``floor`` the floor level
+    in force [reading unit].
+    """
+
+    level: float
+    source: str                       # "learned" | "configured" | "floor"
+    separation: float
+    effectiveness: float
+    on_level: float
+    off_level: float
+    counts: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
+    edges_log10: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    groups: tuple[float, ...] = ()
+    reason: str = ""
+    warnings: tuple[str, ...] = ()
+    floor: float = float("nan")       # the floor level in force [reading unit]
+
+
+# -- levels ----------------------------------------------------------------------------------
+def reading_levels(frame: pd.DataFrame, *, name: str = "readings") -> tuple[np.ndarray, ...]:
+    """Times, levels and crest factors of one sensor's readings, sorted, one row per instant.
+
+    Parameters
+    ----------
+    frame : DataFrame
+        ``timestamp`` (tz-aware) and at least one of ``x_rms``, ``y_rms``, ``z_rms``; optional
+        ``*_peak`` columns [reading unit].
+    name : str
+        Used in error messages (the sensor id).
+
+    Returns
+    -------
+    t : ndarray of int64
+        Reading instants [ns since epoch, UTC].
+    level : ndarray
+        Vector magnitude of the RMS axes [reading unit]; NaN where no axis has a value.
+    crest : ndarray
+        Crest factor: magnitude of the peak axes over the magnitude of the RMS of the same
+        axes [-]; NaN without peaks.
+    """
+    if "timestamp" not in frame.columns:
+        raise InputError("no 'timestamp' column", key=name)
+    rms = [c for c in RMS if c in frame.columns]
+    if not rms:
+        raise InputError("no RMS level column (x_rms, y_rms or z_rms)", key=name)
+    t = to_ns(frame["timestamp"]) if len(frame) else np.zeros(0, np.int64)
+
+    def magnitude(cols: list[str]) -> np.ndarray:
+        if not cols:
+            return np.full(len(frame), np.nan)
+        a = frame[cols].to_numpy(dtype=float)
+        if (a < 0).any():
+            bad = cols[int(np.flatnonzero((a < 0).any(axis=0))[0])]
+            raise InputError(f"negative vibration level in column {bad}", key=name)
+        out = np.sqrt(np.nansum(a * a, axis=1))
+        return np.where(np.isnan(a).all(axis=1), np.nan, out)
+
+    level = magnitude(rms)
+    peaks = [c for c in PEAK if c in frame.columns]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        # crest factor on the axes that have a peak: peak / RMS of the same axes
+        peak = magnitude(peaks) / magnitude([p.replace("_peak", "_rms") for p in peaks
+                                             if p.replace("_peak", "_rms") in frame.columns])
+    if t.size > 1 and not (np.diff(t) > 0).all():
+        order = np.argsort(t, kind="stable")
+        t, level, peak = t[order], level[order], peak[order]
+        keep = np.concatenate([[True], np.diff(t) > 0])
+        t, level, peak = t[keep], level[keep], peak[keep]
+    return t, level, peak
+
+
+def log_levels(level: np.ndarray, floor: float) -> np.ndarray:
+    """log10 of the levels [log10 reading unit].
+
+    A level of exactly 0 (a sensor reporting nothing below its resolution) is raised to a tenth
+    of the smaller of the floor level and the smallest positive level, so that zeros form their
+    own group well below anything running.
+    """
+    lv = np.asarray(level, dtype=float)
+    pos = lv[lv > 0]
+    tiny = min(pos.min() if pos.size else floor, floor) / 10
+    return np.log10(np.maximum(lv, tiny))
+
+
+def default_floor(settings: RunStateSettings, level_unit: str) -> tuple[float, list[str]]:
+    """The floor level [reading unit] from the settings or the table of defaults, + warnings."""
+    if settings.floor is not None:   # 0 is allowed: anything above zero is running
+        return max(float(settings.floor), 1e-12), []
+    key = level_unit.strip().lower().replace(" ", "")
+    if key in FLOOR_BY_UNIT:
+        return FLOOR_BY_UNIT[key], []
+    return FLOOR_BY_UNIT["mm/s"], [
+        f"no default floor level for reading unit {level_unit!r}; used 0.2 (meant for mm/s): "
+        "set [run_state] floor"]
+
+
+# -- the on/off level ------------------------------------------------------------------------
+def _d(x: float) -> str:
+    return "over 1000" if x > 1000 else f"{x:.1f}"
+
+
+def _band(b: float, lo: float = np.nan, hi: float = np.nan) -> tuple[float, float]:
+    """Hysteresis levels (log10) around ``b``: +-HYSTERESIS, at most a quarter of the way to the
+    group medians ``lo`` / ``hi`` (log10)."""
+    h = HYSTERESIS
+    if np.isfinite(lo):
+        h = min(h, 0.25 * (b - lo))
+    if np.isfinite(hi):
+        h = min(h, 0.25 * (hi - b))
+    h = max(h, 0.0)
+    return b + h, b - h
+
+
+def _moving_share(mask: np.ndarray, sib: np.ndarray | None) -> tuple[float, int]:
+    """Share of the readings in ``mask`` taken while a sibling moved, and how many were known."""
+    if sib is None:
+        return np.nan, 0
+    s = sib[mask]
+    s = s[np.isfinite(s)]
+    return (float(s.mean()) if s.size else np.nan), int(s.size)
+
+
+def _display_histogram(L: np.ndarray, marks: list[float]) -> tuple[np.ndarray, np.ndarray]:
+    lo = min([L.min()] + marks) if L.size else min(marks or [-2.0])
+    hi = max([L.max()] + marks) if L.size else max(marks or [1.0])
+    if hi - lo < 1e-6:
+        lo, hi = lo - 0.5, hi + 0.5
+    pad = 0.03 * (hi - lo)
+    counts, edges = np.histogram(L, bins=DISPLAY_BINS, range=(lo - pad, hi + pad))
+    return counts, edges
+
+
+def choose_threshold(
+    L: np.ndarray,
+    *,
+    configured: float | None,
+    floor: float,
+    sibling_moving: np.ndarray | None = None,
+    groups: th.LevelGroups | None = None,
+) -> Threshold:
+    """The on/off level of one component from its log10 levels.
+
+    Parameters
+    ----------
+    L : ndarray
+        log10 of the component's levels (finite) [log10 reading unit].
+    configured : float or None
+        A level set in the site file [reading unit]; wins when given.
+    floor : float
+        Absolute floor level [reading unit], used when the levels do not split.
+    sibling_moving : ndarray, optional
+        Per reading: 1 when another component of the unit moved, 0 when none did, NaN unknown.
+    groups : LevelGroups, optional
+        A grouping already computed for ``L``.
+
+    Returns
+    -------
+    Threshold
+    """
+    F = float(np.log10(floor))
+    warn: list[str] = []
+    if L.size == 0:
+        lv = configured if configured is not None else floor
+        src = "configured" if configured is not None else "floor"
+        b = float(np.log10(lv))
+        on, off = _band(b)
+        c, e = _display_histogram(L, [b])
+        return Threshold(lv, src, np.nan, np.nan, 10**on, 10**off, c, e, (),
+                         "no readings to learn from", ("no readings to learn a level from",),
+                         floor)
+    g = groups if groups is not None else th.level_groups(L)
+    med = [float(m) for m in g.medians]
+    if L.size >= 10 and np.all(L == L[0]):
+        warn.append(f"every reading has the same level ({10 ** L[0]:.3g}): is the sensor stuck "
+                    "or disconnected?")
+    lo_med = hi_med = np.nan
+    if configured is not None:
+        if configured <= 0:
+            raise InputError("threshold must be above 0", key="threshold")
+        b, src = float(np.log10(configured)), "configured"
+        reason = f"set in the site file ({configured:g})"
+        below_b, above_b = [m for m in med if m < b], [m for m in med if m > b]
+        lo_med = max(below_b) if below_b else np.nan
+        hi_med = min(above_b) if above_b else np.nan
+    elif g.count == 1:
+        b, src = F, "floor"
+        state = "running" if med[0] > F else "off"
+        side = "above" if med[0] > F else "below"
+        reason = (f"one level group ({g.reason}); its median {10**med[0]:.3g} is {side} "
+                  f"the floor level {floor:g}, so it is {state}")
+        if abs(med[0] - F) < 0.3:
+            warn.append(f"the only level group (median {10**med[0]:.3g}) lies close to the floor "
+                        f"level {floor:g}; check the states and set `threshold` if they are wrong")
+        (lo_med, hi_med) = (np.nan, med[0]) if med[0] > F else (med[0], np.nan)
+    elif g.count == 2:
+        b, src = g.boundaries[0], "learned"
+        lo_med, hi_med = med
+        reason = (f"two level groups (medians {10**med[0]:.3g} and {10**med[1]:.3g}, "
+                  f"Ashman's D {_d(g.separations[0])}); the level is at the lowest point "
+                  "between them")
+        if med[1] <= F:
+            b, src, lo_med, hi_med = F, "floor", med[1], np.nan
+            reason = (f"both level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}) lie below "
+                      f"the floor level {floor:g}: never running")
+            warn.append("never running by the floor level; set `threshold` if this machine "
+                        "does run")
+        elif med[0] >= F:
+            share, n = _moving_share(L <= g.boundaries[0], sibling_moving)
+            overall, _ = _moving_share(np.ones(L.size, bool), sibling_moving)
+            # carried only if the siblings do stop at times (else nothing tells the two apart)
+            if n and share >= CARRIED_SHARE and overall <= 1 - th.MIN_SHARE:
+                reason += ("; the lower group, above the floor, appears only while another "
+                           "component of the unit runs: carried vibration, counted as off")
+            else:
+                b, src, lo_med, hi_med = F, "floor", np.nan, med[0]
+                reason = (f"two level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}) both "
+                          f"above the floor level {floor:g}: two running levels (speeds), "
+                          "never stopped")
+                warn.append(f"counted as running all the time; if the group at "
+                            f"{10**med[0]:.3g} is a stopped machine shaken by its neighbours, set "
+                            f"`threshold` to about {10 ** ((med[0] + med[1]) / 2):.3g}")
+    else:
+        lo_b, hi_b = g.boundaries
+        low, mid = L <= lo_b, (L > lo_b) & (L <= hi_b)
+        p_mid, n_mid = _moving_share(mid, sibling_moving)
+        p_low, n_low = _moving_share(low, sibling_moving)
+        three = (f"three level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}, "
+                 f"{10**med[2]:.3g})")
+        if med[1] <= F:
+            b, lo_med, hi_med = hi_b, med[1], med[2]
+            reason = (f"{three}; the middle group lies below the floor level {floor:g}: "
+                      "counted as off")
+        elif n_mid and p_mid >= CARRIED_SHARE and (not n_low or p_low <= 1 - CARRIED_SHARE):
+            b, lo_med, hi_med = hi_b, med[1], med[2]
+            reason = (f"{three}; the middle group appears only while another component of the "
+                      f"unit runs ({p_mid:.0%} of its readings): carried vibration, counted as off")
+        elif n_mid and p_mid <= 0.8:
+            b, lo_med, hi_med = lo_b, med[0], med[1]
+            reason = (f"{three}; the middle group also appears while the rest of the unit is "
+                      f"stopped ({1 - p_mid:.0%} of its readings): a slower running level")
+        else:
+            b, lo_med, hi_med = lo_b, med[0], med[1]
+            why = "no other component of the unit to compare with" if not n_mid else (
+                f"{p_mid:.0%} of its readings fall while another component runs")
+            reason = f"{three}; the middle group counted as running ({why})"
+            warn.append(f"{three}: cannot tell whether the middle group is running or vibration "
+                        f"carried from a neighbour ({why}); counted as running. If it is carried, "
+                        f"set `threshold` to about {10 ** ((med[1] + med[2]) / 2):.3g}")
+        src = "learned"
+    if src == "learned":
+        b = th.valley_level(L, lo_med, hi_med)
+    on, off = _band(b, lo_med, hi_med)
+    below, above = L[L <= b], L[L > b]
+    sep = min(th.ashman_d(below, above), SEPARATION_CAP)
+    eff = th.otsu_effectiveness(L, b) if below.size and above.size else np.nan
+    c, e = _display_histogram(L, [on, off, F])
+    level = float(configured) if configured is not None else float(10**b)
+    return Threshold(level, src, sep, eff, float(10**on), float(10**off), c, e,
+                     tuple(float(10**m) for m in med), reason, tuple(warn), floor)
