@@ -1,4 +1,5 @@
-"""Durations as users write them (``90min``, ``2h``, ``1h30min``, ``PT2H``) and as the core keeps them.
+"""Durations as users write them (``90min``, ``2h``, ``1h30min``, ``PT2H``), and as the core
+keeps them.
 
 Durations inside the core are :class:`pandas.Timedelta`.
 """
@@ -9,13 +10,17 @@ import re
 
 import pandas as pd
 
-_SIMPLE = re.compile(r"^\s*(?:(\d+(?:\.\d+)?)\s*d)?\s*(?:(\d+(?:\.\d+)?)\s*h)?\s*"
-                     r"(?:(\d+(?:\.\d+)?)\s*min)?\s*(?:(\d+(?:\.\d+)?)\s*s)?\s*$")
-_ISO = re.compile(r"^P(?:(\d+)D)?(?:T(?:(\d+(?:\.\d+)?)H)?(?:(\d+(?:\.\d+)?)M)?(?:(\d+(?:\.\d+)?)S)?)?$")
+_SIMPLE = re.compile(
+    r"^\s*(?:(\d+(?:\.\d+)?)\s*d)?\s*(?:(\d+(?:\.\d+)?)\s*h)?\s*"
+    r"(?:(\d+(?:\.\d+)?)\s*min)?\s*(?:(\d+(?:\.\d+)?)\s*s)?\s*$"
+)
+_ISO = re.compile(
+    r"^P(?:(\d+)D)?(?:T(?:(\d+(?:\.\d+)?)H)?(?:(\d+(?:\.\d+)?)M)?(?:(\d+(?:\.\d+)?)S)?)?$"
+)
 
 
 def parse_duration(text: str | int | float) -> pd.Timedelta:
-    """Parse a duration such as ``90min``, ``2h``, ``1h30min``, ``45s``, ``1d`` or ISO 8601 ``PT2H``.
+    """Parse a duration: ``90min``, ``2h``, ``1h30min``, ``45s``, ``1d`` or ISO 8601 ``PT2H``.
 
     A bare number is minutes. Negative durations are refused.
 
@@ -25,13 +30,17 @@ def parse_duration(text: str | int | float) -> pd.Timedelta:
         With a message that says which forms are accepted (callers add file and key).
     """
     if isinstance(text, bool):
-        raise ValueError(f"{text!r} is not a duration; write e.g. '90min', '2h', '1h30min' or 'PT2H'")
+        raise ValueError(
+            f"{text!r} is not a duration; write e.g. '90min', '2h', '1h30min' or 'PT2H'"
+        )
     if isinstance(text, (int, float)):
         if text < 0:
             raise ValueError(f"duration {text!r} is negative")
         return pd.Timedelta(minutes=float(text))
     if not isinstance(text, str):
-        raise ValueError(f"{text!r} is not a duration; write e.g. '90min', '2h', '1h30min' or 'PT2H'")
+        raise ValueError(
+            f"{text!r} is not a duration; write e.g. '90min', '2h', '1h30min' or 'PT2H'"
+        )
     s = text.strip()
     m = _ISO.match(s.upper()) if s.upper().startswith("P") else None
     if m and any(m.groups()):

@@ -150,8 +150,12 @@ class Intervals:
         if pts.size == 0:
             return Intervals.empty()
         na, nb = self.starts.size, other.starts.size
-        da = np.concatenate([np.ones(na, np.int64), -np.ones(na, np.int64), np.zeros(2 * nb, np.int64)])
-        db = np.concatenate([np.zeros(2 * na, np.int64), np.ones(nb, np.int64), -np.ones(nb, np.int64)])
+        da = np.concatenate(
+            [np.ones(na, np.int64), -np.ones(na, np.int64), np.zeros(2 * nb, np.int64)]
+        )
+        db = np.concatenate(
+            [np.zeros(2 * na, np.int64), np.ones(nb, np.int64), -np.ones(nb, np.int64)]
+        )
         order = np.argsort(pts, kind="stable")
         pts, da, db = pts[order], da[order], db[order]
         ca, cb = np.cumsum(da), np.cumsum(db)

@@ -14,7 +14,11 @@ def local_midnight(day: dt.date, tz: str) -> pd.Timestamp:
     the first valid local instant after it.
     """
     ts = pd.Timestamp(dt.datetime(day.year, day.month, day.day))
-    return ts.tz_localize(tz, nonexistent="shift_forward", ambiguous=True).tz_convert("UTC").as_unit("ns")
+    return (
+        ts.tz_localize(tz, nonexistent="shift_forward", ambiguous=True)
+        .tz_convert("UTC")
+        .as_unit("ns")
+    )
 
 
 def day_window(first: dt.date, last: dt.date, tz: str) -> tuple[pd.Timestamp, pd.Timestamp]:
@@ -27,11 +31,15 @@ def day_window(first: dt.date, last: dt.date, tz: str) -> tuple[pd.Timestamp, pd
 def day_edges(first: dt.date, last: dt.date, tz: str) -> tuple[list[dt.date], pd.DatetimeIndex]:
     """Local dates first..last and the UTC instants of their boundaries (len(dates) + 1)."""
     dates = [first + dt.timedelta(days=i) for i in range((last - first).days + 1)]
-    edges = [local_midnight(d, tz) for d in dates] + [local_midnight(last + dt.timedelta(days=1), tz)]
+    edges = [local_midnight(d, tz) for d in dates] + [
+        local_midnight(last + dt.timedelta(days=1), tz)
+    ]
     return dates, pd.DatetimeIndex(edges)
 
 
-def whole_days_covered(first_instant: pd.Timestamp, last_instant: pd.Timestamp, tz: str) -> tuple[dt.date, dt.date]:
+def whole_days_covered(
+    first_instant: pd.Timestamp, last_instant: pd.Timestamp, tz: str
+) -> tuple[dt.date, dt.date]:
     """Local dates fully covered by data running from ``first_instant`` to ``last_instant``.
 
     A day counts when the data starts at or before its local midnight (within a minute) and ends

@@ -57,9 +57,22 @@ def assert_tiles_window(df: pd.DataFrame, start, end) -> None:
 
 def hours_of(df: pd.DataFrame) -> float:
     """Total length of a DataFrame's rows [h]."""
-    return float((pd.DatetimeIndex(df["end"]) - pd.DatetimeIndex(df["start"])).total_seconds().sum()
-                 / 3600.0) if len(df) else 0.0
+    return (
+        float(
+            (pd.DatetimeIndex(df["end"]) - pd.DatetimeIndex(df["start"])).total_seconds().sum()
+            / 3600.0
+        )
+        if len(df)
+        else 0.0
+    )
 
 
-__all__ = ["utc", "frame", "assert_intervals_equal", "assert_hours", "assert_tiles_window",
-           "hours_of", "NS_PER_H"]
+__all__ = [
+    "utc",
+    "frame",
+    "assert_intervals_equal",
+    "assert_hours",
+    "assert_tiles_window",
+    "hours_of",
+    "NS_PER_H",
+]

@@ -1,4 +1,4 @@
-"""The CLI's error contract: one line on stderr, exit 2 for bad input/usage, 1 for internal errors."""
+"""The CLI's error contract: one line on stderr; exit 2 for bad input or usage, 1 internal."""
 
 import pytest
 
@@ -28,7 +28,8 @@ def test_help_lists_every_command(capsys):
 def test_input_error_text_names_file_line_and_key():
     assert str(InputError("not a number", path="r.csv", line=17)) == "r.csv:17: not a number"
     assert str(InputError("must be > 0", path="site.toml", key="unit AHU-1: power_kw")) == (
-        "site.toml: unit AHU-1: power_kw: must be > 0")
+        "site.toml: unit AHU-1: power_kw: must be > 0"
+    )
     assert str(InputError("two\nlines")) == "two lines"
 
 

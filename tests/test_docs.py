@@ -1,4 +1,4 @@
-"""The documentation describes the tool as it is (the sqlite-utils model: docs generated from --help)."""
+"""The documentation describes the tool as it is (the CLI reference is generated from --help)."""
 
 from pathlib import Path
 
@@ -9,15 +9,18 @@ ROOT = Path(__file__).resolve().parents[1]
 
 def test_cli_reference_is_current():
     current = (ROOT / "docs" / "cli.md").read_text(encoding="utf-8")
-    assert current == reference(), "docs/cli.md is stale: python -m schedcheck.cli.reference > docs/cli.md"
+    assert current == reference(), (
+        "docs/cli.md is stale: python -m schedcheck.cli.reference > docs/cli.md"
+    )
 
 
 def test_every_command_is_in_the_readme_and_has_an_example():
     readme = (ROOT / "README.md").read_text(encoding="utf-8")
     for name in command_names():
         assert f"schedcheck {name}" in readme, f"README does not mention `schedcheck {name}`"
-        assert "Example" in reference().split(f"## schedcheck {name}")[1].split("## schedcheck")[0], (
-            f"`schedcheck {name} --help` carries no example")
+        assert (
+            "Example" in reference().split(f"## schedcheck {name}")[1].split("## schedcheck")[0]
+        ), f"`schedcheck {name} --help` carries no example"
 
 
 def test_readme_opens_with_the_job_then_the_two_commands():

@@ -6,8 +6,19 @@ from schedcheck.durations import format_duration, parse_duration
 
 @pytest.mark.parametrize(
     "text, minutes",
-    [("90min", 90), ("2h", 120), ("1h30min", 90), ("PT2H", 120), ("PT1H30M", 90), ("45s", 0.75),
-     ("1d", 1440), ("0min", 0), (30, 30), ("  2h ", 120), ("P1D", 1440)],
+    [
+        ("90min", 90),
+        ("2h", 120),
+        ("1h30min", 90),
+        ("PT2H", 120),
+        ("PT1H30M", 90),
+        ("45s", 0.75),
+        ("1d", 1440),
+        ("0min", 0),
+        (30, 30),
+        ("  2h ", 120),
+        ("P1D", 1440),
+    ],
 )
 def test_accepted_forms(text, minutes):
     assert parse_duration(text) == pd.Timedelta(minutes=minutes)

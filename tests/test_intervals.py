@@ -14,8 +14,9 @@ H = NS_PER_H
 
 
 def iv(*pairs):
-    return Intervals.from_arrays(np.array([a for a, _ in pairs], np.int64),
-                                 np.array([b for _, b in pairs], np.int64))
+    return Intervals.from_arrays(
+        np.array([a for a, _ in pairs], np.int64), np.array([b for _, b in pairs], np.int64)
+    )
 
 
 def test_normalise_merges_overlapping_and_touching_and_drops_empty():
@@ -48,8 +49,12 @@ def test_contains_is_half_open():
 
 
 def test_frames_round_trip_with_timezones():
-    f = pd.DataFrame({"start": pd.to_datetime(["2026-03-29T00:30:00+01:00"]),
-                      "end": pd.to_datetime(["2026-03-29T03:30:00+02:00"])})
+    f = pd.DataFrame(
+        {
+            "start": pd.to_datetime(["2026-03-29T00:30:00+01:00"]),
+            "end": pd.to_datetime(["2026-03-29T03:30:00+02:00"]),
+        }
+    )
     a = Intervals.from_frame(f)
     assert a.hours() == 2.0  # 23:30Z .. 01:30Z across the EU spring change (01:00 UTC)
     back = a.to_frame("Europe/Oslo")
@@ -70,8 +75,9 @@ pairs = st.lists(st.tuples(st.integers(0, 200), st.integers(0, 200)), max_size=1
 
 
 def make(p):
-    return Intervals.from_arrays(np.array([a for a, _ in p], np.int64),
-                                 np.array([b for _, b in p], np.int64))
+    return Intervals.from_arrays(
+        np.array([a for a, _ in p], np.int64), np.array([b for _, b in p], np.int64)
+    )
 
 
 def as_mask(s: Intervals, n=201):
@@ -111,13 +117,17 @@ def test_bins_add_up(p, edges):
     a = make(p)
     edges = sorted(edges)
     per_bin = a.ns_per_bin(edges)
-    assert per_bin.sum() == a.clip(edges[0], edges[-1]).duration_ns() if edges[0] < edges[-1] else True
+    assert (
+        per_bin.sum() == a.clip(edges[0], edges[-1]).duration_ns() if edges[0] < edges[-1] else True
+    )
     mask = as_mask(a, 211)
     for i in range(len(edges) - 1):
-        assert per_bin[i] == mask[edges[i]:edges[i + 1]].sum()
+        assert per_bin[i] == mask[edges[i] : edges[i + 1]].sum()
 
 
 def test_union_all():
     assert union_all([iv((0, 1)), iv((1, 3)), iv((5, 6))]) == iv((0, 3), (5, 6))
     assert len(union_all([])) == 0
-    assert_intervals_equal(union_all([iv((0, H))]), Intervals.from_arrays(np.array([0]), np.array([H])))
+    assert_intervals_equal(
+        union_all([iv((0, H))]), Intervals.from_arrays(np.array([0]), np.array([H]))
+    )

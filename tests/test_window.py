@@ -18,9 +18,14 @@ D = dt.date
 
 @pytest.mark.parametrize(
     "tz, day, hours",
-    [("Europe/Oslo", D(2026, 3, 29), 23), ("Europe/Oslo", D(2026, 10, 25), 25),
-     ("Europe/Oslo", D(2026, 3, 28), 24), ("America/New_York", D(2026, 3, 8), 23),
-     ("America/New_York", D(2026, 11, 1), 25), ("America/New_York", D(2026, 3, 9), 24)],
+    [
+        ("Europe/Oslo", D(2026, 3, 29), 23),
+        ("Europe/Oslo", D(2026, 10, 25), 25),
+        ("Europe/Oslo", D(2026, 3, 28), 24),
+        ("America/New_York", D(2026, 3, 8), 23),
+        ("America/New_York", D(2026, 11, 1), 25),
+        ("America/New_York", D(2026, 3, 9), 24),
+    ],
 )
 def test_day_lengths_at_dst_changes(tz, day, hours):
     start, end = day_window(day, day, tz)
@@ -31,8 +36,11 @@ def test_edges_and_utc_instants():
     dates, edges = day_edges(D(2026, 10, 24), D(2026, 10, 26), "Europe/Oslo")
     assert dates == [D(2026, 10, 24), D(2026, 10, 25), D(2026, 10, 26)]
     assert [str(e) for e in edges] == [
-        "2026-10-23 22:00:00+00:00", "2026-10-24 22:00:00+00:00",
-        "2026-10-25 23:00:00+00:00", "2026-10-26 23:00:00+00:00"]
+        "2026-10-23 22:00:00+00:00",
+        "2026-10-24 22:00:00+00:00",
+        "2026-10-25 23:00:00+00:00",
+        "2026-10-26 23:00:00+00:00",
+    ]
 
 
 def test_midnight_that_does_not_exist_starts_at_first_valid_instant():
@@ -46,9 +54,10 @@ def test_reversed_window_is_refused():
 
 
 def test_whole_days_covered():
-    a = pd.Timestamp("2026-03-01T23:00:30Z")   # 00:00:30 local on 2 March (within a minute)
-    b = pd.Timestamp("2026-03-05T10:00:00Z")   # mid-day 5 March: 5 March is not whole
+    a = pd.Timestamp("2026-03-01T23:00:30Z")  # 00:00:30 local on 2 March (within a minute)
+    b = pd.Timestamp("2026-03-05T10:00:00Z")  # mid-day 5 March: 5 March is not whole
     assert whole_days_covered(a, b, "Europe/Oslo") == (D(2026, 3, 2), D(2026, 3, 4))
     # less than a day of data: the partial day is still a window
-    assert whole_days_covered(pd.Timestamp("2026-03-02T08:00Z"), pd.Timestamp("2026-03-02T12:00Z"),
-                              "Europe/Oslo") == (D(2026, 3, 2), D(2026, 3, 2))
+    assert whole_days_covered(
+        pd.Timestamp("2026-03-02T08:00Z"), pd.Timestamp("2026-03-02T12:00Z"), "Europe/Oslo"
+    ) == (D(2026, 3, 2), D(2026, 3, 2))

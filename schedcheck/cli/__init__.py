@@ -11,9 +11,6 @@ import os
 import sys
 import traceback
 
-from schedcheck.cli._app import app
-from schedcheck.errors import SchedcheckError
-
 # command modules register themselves on `app` when imported
 from schedcheck.cli import audit as _audit  # noqa: E402,F401
 from schedcheck.cli import check as _check  # noqa: E402,F401
@@ -22,6 +19,8 @@ from schedcheck.cli import demo as _demo  # noqa: E402,F401
 from schedcheck.cli import report as _report  # noqa: E402,F401
 from schedcheck.cli import schedule as _schedule  # noqa: E402,F401
 from schedcheck.cli import states as _states  # noqa: E402,F401
+from schedcheck.cli._app import app
+from schedcheck.errors import SchedcheckError
 
 __all__ = ["app", "main"]
 
@@ -31,7 +30,7 @@ try:  # pragma: no cover - depends on the installed typer
     from typer._click import exceptions as _cx
 except ImportError:  # pragma: no cover
     from click import exceptions as _cx
-_Abort = getattr(_cx, "Abort", None) or getattr(__import__("typer.exceptions").exceptions, "Abort")
+_Abort = getattr(_cx, "Abort", None) or __import__("typer.exceptions").exceptions.Abort
 
 
 def _one_line(text: str) -> str:
@@ -60,7 +59,10 @@ def main(argv: list[str] | None = None) -> int:
     except Exception as e:  # noqa: BLE001 - the last line of defence
         if os.environ.get("SCHEDCHECK_DEBUG"):
             traceback.print_exc()
-        print(f"internal error: {type(e).__name__}: {_one_line(str(e))} "
-              "(set SCHEDCHECK_DEBUG=1 for details)", file=sys.stderr)
+        print(
+            f"internal error: {type(e).__name__}: {_one_line(str(e))} "
+            "(set SCHEDCHECK_DEBUG=1 for details)",
+            file=sys.stderr,
+        )
         return 1
     return rv if isinstance(rv, int) else 0
