@@ -4,7 +4,8 @@ The small site is written from scratch with the seeded generator (schedcheck.syn
 AHU-A is left running day and night from 13:00 on the change date (a controls change gone
 wrong); unit AHU-B keeps its office pattern, with one Saturday override after the change and a
 five-hour gateway outage before it; unit AHU-C got its sensor only on the change date, so it
-cannot be compared. Expected figures come from that planted truth.
+cannot be compared; unit AHU-D ran on to 22:00 every weekday until the change fixed it.
+Expected figures come from that planted truth.
 """
 
 from __future__ import annotations
@@ -74,6 +75,17 @@ role = "supply_fan"
 sensor = "CP-0301"
 power_kw = 2.0
 speed = 1.0
+
+[[unit]]
+id = "AHU-D"
+name = "Canteen"
+
+[[unit.component]]
+id = "supply"
+role = "supply_fan"
+sensor = "CP-0401"
+power_kw = 5.0
+speed = 0.8
 """
 
 CAL = """BEGIN:VCALENDAR\r
@@ -111,6 +123,13 @@ def site(tmp_path_factory):
     truth_b = synth.weekday_truth(start, end, TZ, rng, on="06:15", off="18:15", scatter="5min",
                                   extra_runs=override)
     outage = [(local("2026-01-20 08:00"), local("2026-01-20 13:00"))]
+    # AHU-D: weekdays 06:15-22:00 before the change (3.5 h past the 18:30 allowance), then
+    # 06:15-18:15 like the others
+    late = synth.weekday_truth(start, local(str(CHANGE)), TZ, rng, on="06:15", off="22:00",
+                               scatter="0min")
+    late_runs = [(r.start, r.end) for r in late.itertuples() if r.state == "run"]
+    truth_d = synth.weekday_truth(start, end, TZ, rng, on="06:15", off="18:15", scatter="5min",
+                                  extra_runs=late_runs)
     frames = [
         synth.readings_for_component(truth_a, sensor="CP-0101", rng=rng, start=start, end=end,
                                      running_level=2.0),
@@ -118,6 +137,8 @@ def site(tmp_path_factory):
                                      running_level=1.5, outages=outage),
         synth.readings_for_component(truth_b, sensor="CP-0301", rng=rng, start=local(str(CHANGE)),
                                      end=end, running_level=1.0),
+        synth.readings_for_component(truth_d, sensor="CP-0401", rng=rng, start=start, end=end,
+                                     running_level=1.8),
     ]
     rows = pd.concat(frames, ignore_index=True)
     rows["timestamp"] = rows["timestamp"].dt.strftime("%Y-%m-%dT%H:%M:%SZ")
@@ -152,7 +173,8 @@ def test_json_has_the_interface_fields(as_json):
                            "days": BEFORE}
     assert j["after"]["start"] == f"{CHANGE}T00:00:00+01:00"
     assert j["after"]["end"] == f"{LAST + dt.timedelta(days=1)}T00:00:00+01:00"
-    assert [c["id"] for c in j["components"]] == ["AHU-A/supply", "AHU-B/supply", "AHU-C/supply"]
+    ids = [c["id"] for c in j["components"]]
+    assert ids == ["AHU-A/supply", "AHU-B/supply", "AHU-C/supply", "AHU-D/supply"]
     for c in j["components"][:2]:
         for side in ("before", "after"):
             assert {"off_schedule_h_per_day", "kwh_per_day"} <= set(c[side])
@@ -180,6 +202,21 @@ def test_unit_left_running_is_found_with_its_date_and_size(as_json):
     assert cp["date"] == str(CHANGE)
     assert cp["latest"] in (str(CHANGE), str(CHANGE + dt.timedelta(days=1)))
     assert cp["before_mean"] == pytest.approx(0.0, abs=0.05) and cp["after_mean"] > 10
+
+
+def test_a_fix_shows_as_less_running_from_its_date(as_json):
+    d = as_json["components"][3]
+    # Planted truth: 3.5 h a weekday past the late-stop allowance before, none after; the
+    # weekdays are occupied days, weighted 30/42 of the days.
+    expected = -3.5 * 30 / 42
+    assert d["before"]["off_schedule_h_per_day"] == pytest.approx(-expected, abs=0.05)
+    assert d["after"]["off_schedule_h_per_day"] == pytest.approx(0.0, abs=0.05)
+    lo, hi = d["difference"]["ci95"]
+    assert lo < expected < hi < 0
+    # 5 kW at 80 % speed with the cube law: 5 x 0.8^3 = 2.56 kW (affinity laws)
+    assert d["difference"]["kwh_per_day"] == pytest.approx(2.56 * expected, abs=0.15)
+    [cp] = d["change_points"]
+    assert cp["date"] <= str(CHANGE) <= cp["latest"]
 
 
 def test_clean_unit_has_no_change_point_and_counts_the_outage_day(as_json):
