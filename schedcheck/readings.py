@@ -39,6 +39,18 @@ EPOCH_RANGE = (946_684_800, 4_102_444_800)
 # not make a silence (common practice, no source).
 STEPS_PER_GAP = 3
 
+# Autumn fold: the wall clock going back more often than this among one sensor's rows of the
+# repeated hour means they are not in time order (a late packet or two is tolerated; common
+# practice, no source).
+MAX_FOLD_DESCENTS = 3
+# Autumn fold: a placing is taken when it is clearly the most regular: its readings stray from
+# the usual step by at least this much less in total [s] than any other placing. A missing or
+# doubled hour strays by about an hour (common practice, no source).
+FOLD_MARGIN_S = 1800.0
+# ... judged only with at least this many of the sensor's other readings within three hours
+# of the fold (common practice, no source).
+FOLD_MIN_NEAR = 6
+
 # Row status codes from parse_timestamps.
 OK, EMPTY, UNPARSEABLE, NAIVE, NONEXISTENT, AMBIGUOUS, EPOCH_RANGE_BAD = range(7)
 
@@ -286,9 +298,18 @@ class Readings:
     files: tuple[str, ...] = ()
 
 
-def resolve_folds(early: np.ndarray, late: np.ndarray, wall: np.ndarray, utc: np.ndarray,
-                  order_ambiguous: np.ndarray) -> np.ndarray:
+def resolve_folds(early: np.ndarray, late: np.ndarray, wall: np.ndarray,
+                  utc: np.ndarray) -> np.ndarray:
     """Place one sensor's repeated-hour rows (autumn fold) by the order they were read in.
+
+    Where the rows are in time order, the wall clock goes back once: rows before that are the
+    first pass (daylight-saving time), rows after it the second (standard time). A late packet
+    or two make more places where it goes back; each is tried. The placing
+    is accepted only when it is clearly the most regular one: together with the sensor's other
+    readings around the fold, its times between readings stray from the sensor's usual step
+    by at least ``FOLD_MARGIN_S`` less in total than when every row is read as the first pass,
+    or every row as the second (rows seen in one pass only can rarely be told apart, and a
+    late packet inside one pass is not a change of pass). Otherwise the rows are not placed.
 
     Parameters
     ----------
@@ -296,10 +317,7 @@ def resolve_folds(early: np.ndarray, late: np.ndarray, wall: np.ndarray, utc: np
         For the sensor's ambiguous rows in read order: the daylight-saving reading, the
         standard-time reading [ns UTC] and the local wall time [ns].
     utc : numpy.ndarray
-        The sensor's unambiguous instants, in read order [ns UTC].
-    order_ambiguous : numpy.ndarray
-        Position in read order of each ambiguous row among all rows of the sensor; the
-        unambiguous rows fill the other positions.
+        The sensor's unambiguous instants [ns UTC].
 
     Returns
     -------
@@ -307,40 +325,39 @@ def resolve_folds(early: np.ndarray, late: np.ndarray, wall: np.ndarray, utc: np
         Chosen instant per ambiguous row [ns UTC], ``NAT`` where it cannot be told.
     """
     out = np.full(len(early), NAT, dtype=np.int64)
-    if len(early) == 0:
-        return out
-    total = len(early) + len(utc)
-    is_amb = np.zeros(total, bool)
-    is_amb[order_ambiguous] = True
-    sure_pos = np.flatnonzero(~is_amb)
-    # group by fold (one per year): the early candidate's UTC day is enough
-    fold_id = (early // (86_400 * 10**9))
+    hour = 3600 * 10**9
+    # one fold a year: rows whose early reading lies within a day of each other share it
+    fold_id = early // (86_400 * 10**9)
     for f in np.unique(fold_id):
         sel = np.flatnonzero(fold_id == f)
-        w = wall[sel]
-        steps = np.diff(w)
-        downs = np.flatnonzero(steps < 0)
-        if len(downs) == 1:
-            cut = downs[0] + 1
-            out[sel[:cut]] = early[sel[:cut]]
-            out[sel[cut:]] = late[sel[cut:]]
-            continue
-        if len(downs) > 1:
-            continue  # not in time order: no data
-        # one pass only: take the reading that fits between the neighbouring rows, if just one
-        pos = order_ambiguous[sel]
-        k0 = np.searchsorted(sure_pos, pos[0]) - 1
-        k1 = np.searchsorted(sure_pos, pos[-1])
-        prev = utc[k0] if k0 >= 0 else None
-        nxt = utc[k1] if k1 < len(utc) else None
-        fits = []
-        for cand in (early[sel], late[sel]):
-            ok = (prev is None or prev <= cand[0]) and (nxt is None or cand[-1] <= nxt)
-            fits.append(ok)
-        if fits[0] and not fits[1]:
-            out[sel] = early[sel]
-        elif fits[1] and not fits[0]:
-            out[sel] = late[sel]
+        e, lt = early[sel], late[sel]
+        downs = np.flatnonzero(np.diff(wall[sel]) < 0)
+        if len(downs) > MAX_FOLD_DESCENTS:
+            continue   # not in time order: no data
+        near = utc[(utc >= e.min() - 3 * hour) & (utc <= lt.max() + 3 * hour)]
+        if len(near) < FOLD_MIN_NEAR:
+            continue   # too few other readings to judge which placing is regular
+        options = [e, lt] + [np.concatenate([e[:d + 1], lt[d + 1:]]) for d in downs]
+        steps = np.diff(np.sort(near))
+        step = float(np.median(steps)) if len(steps) else 0.0
+        # irregularity: how far the times between readings stray from the sensor's usual step
+        # (a missing hour and a doubled hour both stray far)
+        scores = [float(np.abs(np.diff(np.sort(np.concatenate([near, c]))) - step).sum()) / 1e9
+                  for c in options]
+        best = int(np.argmin(scores))
+        if all(x - scores[best] >= FOLD_MARGIN_S for i, x in enumerate(scores) if i != best):
+            out[sel] = options[best]
+            if best >= 2:
+                # after the clock went back, a row out of order may be a late packet of either
+                # pass, and so may a row much closer to the one before it than the usual step:
+                # both rows at each such place are left unplaced (no data)
+                cut = downs[best - 2] + 1
+                for d in downs[downs >= cut]:
+                    out[sel[d:d + 2]] = NAT
+                w2 = wall[sel][cut:]
+                by_time = np.argsort(w2, kind="stable")
+                for d in np.flatnonzero(np.diff(w2[by_time]) < step / 2):
+                    out[sel[cut + by_time[d:d + 2]]] = NAT
     return out
 
 
@@ -369,7 +386,7 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
     amb = utc == NAT
     if amb.any() and "early" in p.columns:
         chosen = resolve_folds(p["early"].to_numpy()[amb], p["late"].to_numpy()[amb],
-                               p["wall"].to_numpy()[amb], utc[~amb], np.flatnonzero(amb))
+                               p["wall"].to_numpy()[amb], utc[~amb])
         utc[amb] = chosen
         lost = int((chosen == NAT).sum())
         if lost:

@@ -152,6 +152,22 @@ def test_fold_rows_out_of_order_become_no_data_with_a_warning():
     assert health.gaps == 1 and health.gap_hours == pytest.approx(2 + 1 / 60)
 
 
+def test_a_late_packet_inside_one_pass_is_not_taken_for_the_clock_going_back():
+    # one-a-minute readings with jitter through the Oslo fold, one packet of the first pass
+    # arriving 20 rows late; the rest in time order
+    rng = np.random.default_rng(11)
+    truth = (pd.date_range(pd.Timestamp("2026-10-25 01:00", tz="Europe/Oslo"), periods=240,
+                           freq="1min") + pd.to_timedelta(rng.integers(0, 20, 240), unit="s"))
+    order = list(range(240))
+    late = order.pop(70)            # 02:10 first pass (00:10 UTC)
+    order.insert(90, late)
+    local = truth[order].strftime("%Y-%m-%d %H:%M:%S").tolist()
+    frame, health, _ = rd.clean_sensor(fold_parts(local), sensor="S", columns=("x_rms",),
+                                       start=None, end=None, max_gap=pd.Timedelta("5min"))
+    assert health.ambiguous_dropped == 0 and health.out_of_order == 1
+    assert frame["timestamp"].tolist() == truth.tz_convert("UTC").tolist()
+
+
 def test_fold_rows_seen_once_only_cannot_be_placed():
     local = ["2026-10-25 01:58:00", "2026-10-25 01:59:00", "2026-10-25 02:10:00",
              "2026-10-25 02:20:00", "2026-10-25 03:00:00"]
@@ -229,3 +245,32 @@ def test_warnings_for_conflicts_and_for_a_max_gap_shorter_than_the_reporting_ste
     assert any("two devices may report under one sensor id" in w for w in warnings)
     assert any("reports every 10min (median) but max_gap is 5min" in w
                and "max_gap to about 30min" in w for w in warnings)
+
+
+@pytest.mark.parametrize("seed", range(60))
+def test_fold_placing_is_exact_or_no_data_never_wrong(seed):
+    """Seeded sweep: jitter, lost packets, a silence, late packets; both 2026 fall-back days.
+
+    Rows are either placed at their true instant or left as no data; readings in time order
+    with at most 1 % lost and no late packets are always placed exactly.
+    """
+    rng = np.random.default_rng(seed)
+    tz, day = [("Europe/Oslo", "2026-10-25"), ("America/New_York", "2026-11-01")][seed % 2]
+    step = [1, 2, 5][seed % 3]
+    n = 240 // step
+    truth = (pd.date_range(pd.Timestamp(day, tz=tz), periods=n, freq=f"{step}min")
+             + pd.to_timedelta(rng.integers(0, 20, n), unit="s"))
+    loss = [0, 0.01, 0.05, 0.3][seed % 4]
+    truth = truth[rng.random(n) > loss]
+    order = list(range(len(truth)))
+    moved = seed % 5 >= 3
+    for _ in range(rng.integers(1, 3) if moved else 0):
+        i = int(rng.integers(0, len(order)))
+        order.insert(min(len(order) - 1, i + int(rng.integers(1, 20))), order.pop(i))
+    local = truth[order].strftime("%Y-%m-%d %H:%M:%S").tolist()
+    frame, h, _ = rd.clean_sensor(fold_parts(local, tz), sensor="S", columns=("x_rms",),
+                                  start=None, end=None, max_gap=pd.Timedelta("5min"))
+    got, want = set(frame["timestamp"]), set(truth.tz_convert("UTC"))
+    assert got <= want and len(want - got) == h.ambiguous_dropped
+    if not moved and loss <= 0.01:
+        assert got == want
