@@ -347,3 +347,15 @@ def test_the_site_file_reference_names_every_key():
              for f in dataclasses.fields(cls)]
     missing = [k for k in keys if f"`{k}`" not in doc]
     assert not missing, f"docs/site-file.md does not describe: {missing}"
+
+
+def test_single_values_need_no_list_and_near_misses_get_hints(tmp_path):
+    text = BASE.replace('country = "NO"', 'country = "NO"\ncategories = "public"').replace(
+        'closed = ["2026-12-24", "2026-07-13/2026-07-31"]', 'closed = "2026-12-24"')
+    h = load_site(write(tmp_path, text)).holidays
+    assert h.categories == ("public",)
+    assert h.closed == ((dt.date(2026, 12, 24), dt.date(2026, 12, 24)),)
+    one(tmp_path, BASE.replace('country = "NO"', 'country = "no"'), "holidays.country",
+        'did you mean "NO"?')
+    one(tmp_path, BASE.replace('country = "NO"', 'country = "NO"\nsubdivision = 3'),
+        "holidays.subdivision", 'in quotes, e.g. "03"')

@@ -145,8 +145,17 @@ def resolve_patterns(base_dir: Path, patterns: tuple[str, ...]) -> list[tuple[st
 def _hint(word: str, allowed) -> str:
     import difflib
 
-    close = difflib.get_close_matches(str(word), list(allowed), n=1, cutoff=0.6)
-    return f'; did you mean "{close[0]}"?' if close else f"; allowed: {', '.join(allowed)}"
+    allowed = list(allowed)
+    same_case = [a for a in allowed if str(a).lower() == str(word).lower()]
+    close = same_case or difflib.get_close_matches(str(word), allowed, n=1, cutoff=0.6)
+    if close:
+        return f'; did you mean "{close[0]}"?'
+    shown = ", ".join(map(str, allowed[:HINT_LIST]))
+    return f"; allowed: {shown}" + (f" (and {len(allowed) - HINT_LIST} more)"
+                                     if len(allowed) > HINT_LIST else "")
+
+
+HINT_LIST = 12   # allowed values listed in a message at most
 
 
 def _is_number(x) -> bool:
@@ -356,11 +365,15 @@ class _Validator:
 
     def holidays(self, h: dict) -> HolidaySettings:
         country = self.string(h, "country", "holidays.country")
-        subdiv = self.string(h, "subdivision", "holidays.subdivision")
-        if "subdivision" in h and isinstance(h["subdivision"], int):
-            subdiv = str(h["subdivision"])  # e.g. subdivision = 3 for "03" would be wrong; say so
-            self.err("holidays.subdivision", f"write it as text in quotes, e.g. \"{subdiv:0>2}\"")
+        if isinstance(h.get("subdivision"), int) and not isinstance(h["subdivision"], bool):
+            # subdivision = 3 would lose the leading zero of "03": ask for text
+            self.err("holidays.subdivision", f"write it as text in quotes, e.g. "
+                     f"\"{h['subdivision']:0>2}\"")
+            subdiv = None
+        else:
+            subdiv = self.string(h, "subdivision", "holidays.subdivision")
         cats = h.get("categories", ["public"])
+        cats = [cats] if isinstance(cats, str) else cats   # one name needs no list
         if not isinstance(cats, list) or not cats or not all(isinstance(c, str) for c in cats):
             self.err("holidays.categories", f"must be a list of names such as [\"public\"], "
                      f"not {cats!r}")
@@ -372,6 +385,7 @@ class _Validator:
             self.err("holidays.subdivision", "needs holidays.country")
         closed = []
         raw = h.get("closed", [])
+        raw = [raw] if isinstance(raw, (str, dt.date)) else raw   # one date needs no list
         if not isinstance(raw, list):
             self.err("holidays.closed", "must be a list of dates or ranges, e.g. "
                      "[\"2026-12-24\", \"2026-07-13/2026-07-31\"]")
