@@ -27,13 +27,23 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from schedcheck.durations import format_duration
+from schedcheck.timestamps import (  # noqa: F401 - re-exported: the readings rules in one place
+    AMBIGUOUS,
+    EMPTY,
+    EPOCH_RANGE,
+    EPOCH_RANGE_BAD,
+    NAIVE,
+    NAT,
+    NONEXISTENT,
+    OK,
+    UNPARSEABLE,
+    TimeParse,
+    arrow_text,
+    describe_time,
+    parse_timestamps,
+)
 
-NAT = np.iinfo(np.int64).min
 RMS_COLUMNS = ("x_rms", "y_rms", "z_rms")
-
-# Epoch seconds outside 2000-01-01 .. 2100-01-01 are refused: they are almost always
-# milliseconds or a wrong column (common practice, no source).
-EPOCH_RANGE = (946_684_800, 4_102_444_800)
 
 # A suggested max_gap is this many reporting intervals: one or two lost packets in a row do
 # not make a silence (common practice, no source).
@@ -51,158 +61,6 @@ FOLD_MARGIN_S = 1800.0
 # of the fold (common practice, no source).
 FOLD_MIN_NEAR = 6
 
-# Row status codes from parse_timestamps.
-OK, EMPTY, UNPARSEABLE, NAIVE, NONEXISTENT, AMBIGUOUS, EPOCH_RANGE_BAD = range(7)
-
-_OFFSET_RE = (r"^\s*\d{4}-\d{2}-\d{2}[T ]\d{1,2}:\d{2}(?::\d{2}(?:[.,]\d+)?)?\s*"
-              r"(?:[zZ]|UTC|[+-]\d{2}(?::?\d{2})?)\s*$")
-_NUMBER_RE = r"^\s*[+-]?\d+(?:\.\d*)?\s*$"
-
-
-@dataclass
-class TimeParse:
-    """Timestamps parsed to UTC.
-
-    ``utc`` is int64 ns since the epoch (``NAT`` where the row is not OK); ``status`` one of the
-    codes above per row; for AMBIGUOUS rows ``early`` and ``late`` are the two candidate
-    instants (daylight-saving and standard reading) and ``wall`` the local wall time [ns].
-    """
-
-    utc: np.ndarray
-    status: np.ndarray
-    early: np.ndarray
-    late: np.ndarray
-    wall: np.ndarray
-
-
-def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str) -> TimeParse:
-    """Parse a timestamp column to UTC.
-
-    Parameters
-    ----------
-    values : pandas.Series
-        Text (ISO 8601, or epoch seconds as digits), numbers (epoch seconds [s]) or datetimes.
-    naive_time : {None, "local", "utc"}
-        How to read timestamps without an offset; None refuses them.
-    tz : str
-        IANA zone used for ``naive_time = "local"``.
-    """
-    n = len(values)
-    utc = np.full(n, NAT, dtype=np.int64)
-    status = np.full(n, OK, dtype=np.int8)
-    early = np.full(n, NAT, dtype=np.int64)
-    late = np.full(n, NAT, dtype=np.int64)
-    wall = np.full(n, NAT, dtype=np.int64)
-    s = values.reset_index(drop=True)
-    if isinstance(s.dtype, pd.DatetimeTZDtype):
-        t = s.dt.tz_convert("UTC").dt.as_unit("ns")
-        utc[:] = t.array.asi8
-        status[t.isna().to_numpy()] = EMPTY
-        return TimeParse(utc, status, early, late, wall)
-    if pd.api.types.is_datetime64_dtype(s.dtype):
-        naive = s.dt.as_unit("ns")
-        status[naive.isna().to_numpy()] = EMPTY
-        _naive(naive, np.ones(n, bool) & ~naive.isna().to_numpy(), naive_time, tz,
-               utc, status, early, late, wall)
-        return TimeParse(utc, status, early, late, wall)
-    if pd.api.types.is_numeric_dtype(s.dtype) and not pd.api.types.is_bool_dtype(s.dtype):
-        _epoch(s.astype("float64").to_numpy(), np.ones(n, bool), utc, status)
-        return TimeParse(utc, status, early, late, wall)
-    text = _arrow_text(s)
-    empty = _np(pc.or_(pc.is_null(text), pc.equal(text, "")), True)
-    status[empty] = EMPTY
-    number = _np(pc.match_substring_regex(text, _NUMBER_RE), False) & ~empty
-    if number.any():
-        x = pc.cast(pc.filter(text, pa.array(number)), pa.float64()).to_numpy(
-            zero_copy_only=False)
-        _epoch(x, number, utc, status)
-    offset = _np(pc.match_substring_regex(text, _OFFSET_RE), False) & ~empty & ~number
-    if offset.any():
-        sub = pc.filter(text, pa.array(offset))
-        sub = pc.replace_substring(pc.replace_substring(sub, "UTC", "Z"), ",", ".")
-        v = _to_ns(sub, utc=True)
-        utc[offset] = v
-        idx = np.flatnonzero(offset)
-        status[idx[v == NAT]] = UNPARSEABLE
-    rest = ~empty & ~number & ~offset
-    if rest.any():
-        v = _to_ns(pc.filter(text, pa.array(rest)), utc=False)
-        bad = v == NAT
-        idx = np.flatnonzero(rest)
-        status[idx[bad]] = UNPARSEABLE
-        good = rest.copy()
-        good[idx[bad]] = False
-        full = np.full(n, NAT, dtype=np.int64)
-        full[idx] = v
-        _naive(pd.Series(full.view("datetime64[ns]")), good, naive_time, tz, utc, status,
-               early, late, wall)
-    return TimeParse(utc, status, early, late, wall)
-
-
-def _arrow_text(s: pd.Series) -> pa.Array:
-    """Trimmed text of a column as an Arrow string array (nulls kept)."""
-    arr = getattr(s.array, "_pa_array", None)
-    if arr is None or not pa.types.is_string(arr.type) and not pa.types.is_large_string(arr.type):
-        arr = pa.array(s.astype("object").where(s.notna(), None).map(
-            lambda v: v if v is None else str(v)), type=pa.large_string())
-    elif isinstance(arr, pa.ChunkedArray):
-        arr = arr.combine_chunks()
-    return pc.utf8_trim_whitespace(arr)
-
-
-def _np(mask, null_as: bool) -> np.ndarray:
-    return np.asarray(pc.fill_null(mask, null_as).to_numpy(zero_copy_only=False), dtype=bool)
-
-
-def _to_ns(text: pa.Array, *, utc: bool) -> np.ndarray:
-    """ISO 8601 text -> int64 ns (UTC when ``utc``, else wall time); NAT where unreadable."""
-    try:  # fast path: Arrow's ISO 8601 parser, all or nothing
-        t = pc.cast(text, pa.timestamp("ns", tz="UTC" if utc else None))
-        return t.cast(pa.int64()).fill_null(NAT).to_numpy(zero_copy_only=False)
-    except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
-        pass
-    t = pd.to_datetime(pd.Series(text.to_pylist(), dtype=object), format="ISO8601", utc=utc,
-                       errors="coerce")
-    return t.dt.as_unit("ns").array.asi8.copy()
-
-
-def _epoch(x: np.ndarray, where: np.ndarray, utc, status) -> None:
-    idx = np.flatnonzero(where)
-    ok = np.isfinite(x) & (x >= EPOCH_RANGE[0]) & (x < EPOCH_RANGE[1])
-    status[idx[~ok]] = EPOCH_RANGE_BAD
-    good = idx[ok]
-    utc[good] = np.round(x[ok] * 1e9).astype(np.int64)
-
-
-def _naive(naive: pd.Series, where: np.ndarray, naive_time, tz, utc, status, early, late,
-           wall) -> None:
-    if not where.any():
-        return
-    if naive_time is None:
-        status[where] = NAIVE
-        return
-    idx = np.flatnonzero(where)
-    sub = naive.iloc[idx].reset_index(drop=True)
-    if naive_time == "utc":
-        utc[idx] = sub.dt.tz_localize("UTC").array.asi8
-        return
-    sure = sub.dt.tz_localize(tz, ambiguous="NaT", nonexistent="NaT").array.asi8
-    utc[idx] = sure
-    unsure = sure == NAT
-    if not unsure.any():
-        return
-    u = sub[unsure]
-    first = u.dt.tz_localize(tz, ambiguous=np.ones(len(u), bool), nonexistent="NaT").array.asi8
-    second = u.dt.tz_localize(tz, ambiguous=np.zeros(len(u), bool), nonexistent="NaT").array.asi8
-    uidx = idx[unsure]
-    gap = first == NAT
-    status[uidx[gap]] = NONEXISTENT
-    status[uidx[~gap]] = AMBIGUOUS
-    early[uidx[~gap]] = first[~gap]
-    late[uidx[~gap]] = second[~gap]
-    wall[uidx] = u.array.asi8 if hasattr(u.array, "asi8") else u.to_numpy().astype(np.int64)
-
-
 def level_values(raw: pd.DataFrame, columns: tuple[str, ...]) -> tuple[pd.DataFrame, np.ndarray]:
     """Levels as float64 and a per-row flag: True where any level is not a finite number >= 0."""
     out = {}
@@ -213,7 +71,7 @@ def level_values(raw: pd.DataFrame, columns: tuple[str, ...]) -> tuple[pd.DataFr
             v = col.to_numpy(dtype=float, na_value=np.nan)
         else:
             try:  # fast path: Arrow's number parser, all or nothing
-                v = pc.cast(_arrow_text(col), pa.float64()).fill_null(np.nan).to_numpy(
+                v = pc.cast(arrow_text(col), pa.float64()).fill_null(np.nan).to_numpy(
                     zero_copy_only=False)
             except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
                 v = pd.to_numeric(col, errors="coerce").to_numpy(dtype=float, na_value=np.nan)
@@ -240,26 +98,6 @@ def describe_level(raw_value, column: str) -> str | None:
     if v < 0:
         return f"level {column} is negative ({text})"
     return None
-
-
-def describe_time(raw_value, code: int, tz: str) -> str:
-    """Why one timestamp was refused (for the error message)."""
-    text = "" if raw_value is None else str(raw_value).strip()
-    if code == EMPTY:
-        return "timestamp is missing"
-    if code == NAIVE:
-        return f"timestamp {text!r} has no UTC offset"
-    if code == NONEXISTENT:
-        return (f"local time {text!r} does not exist in {tz} (the clocks skip that hour in "
-                "spring), so this row cannot be right")
-    if code == EPOCH_RANGE_BAD:
-        try:
-            hint = " (milliseconds? divide by 1000)" if float(text) >= EPOCH_RANGE[1] else ""
-        except ValueError:
-            hint = ""
-        return f"timestamp {text!r} read as epoch seconds is outside 2000-2100{hint}"
-    return (f"timestamp {text!r} is not a date and time (ISO 8601 with Z or an offset, or "
-            "epoch seconds)")
 
 
 @dataclass
