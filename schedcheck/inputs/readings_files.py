@@ -10,7 +10,6 @@ streamed in batches instead. Rows are turned into clean per-sensor frames by
 
 from __future__ import annotations
 
-from collections import Counter
 from collections.abc import Callable
 from pathlib import Path
 
@@ -19,15 +18,13 @@ import pandas as pd
 
 from schedcheck import readings as rd
 from schedcheck.errors import InputError, InputProblems
+from schedcheck.inputs.readings_rows import Collector
 from schedcheck.inputs.site_file import resolve_patterns
 from schedcheck.site import LEVEL_COLUMNS, Site
 
-BAD_ROW_EXAMPLES = 5          # bad rows named in a message (common practice, no source)
 CSV_CHUNK_ROWS = 500_000      # rows per CSV chunk: bounds memory (common practice, no source)
 PARQUET_SUFFIXES = (".parquet", ".pq", ".parq")
 CSV_SUFFIXES = (".csv", ".txt", ".tsv")
-_MARGIN = pd.Timedelta("1D")  # rows kept outside the window while placing autumn-fold rows
-_ORDER_SHIFT = 40             # read order = file index << 40 | row position
 
 
 def readings_files(site: Site) -> list[Path]:
@@ -38,150 +35,6 @@ def readings_files(site: Site) -> list[Path]:
             raise InputError(f"{pat!r} matches no file", path=site.path, key="readings.files")
         files.extend(h for h in hits if h not in files)
     return files
-
-
-class _Collector:
-    """Accumulates rows of every file, bad rows and file-level problems."""
-
-    def __init__(self, site: Site, start, end) -> None:
-        self.site = site
-        self.tz = site.timezone
-        self.naive_time = site.readings.naive_time
-        self.owner = {c.sensor: c.key for c in site.components}
-        self.start, self.end = start, end
-        self.parts: dict[str, list[pd.DataFrame]] = {s: [] for s in self.owner}
-        self.unconfigured: Counter = Counter()
-        self.problems: list[InputError] = []
-        self.bad_total = 0
-        self.bad_examples: list[InputError] = []
-        self.bad_by_sensor: Counter = Counter()
-        self.bad_by_file: dict[str, list] = {}
-        self.naive_by_file: dict[str, list] = {}
-
-    # one chunk of raw rows, columns already renamed to ours
-    def take(self, raw: pd.DataFrame, path: Path, file_idx: int, levels: tuple[str, ...],
-             lines: np.ndarray | None, positions: np.ndarray, comma_decimal: bool = False
-             ) -> None:
-        if len(raw) == 0:
-            return
-        codes, uniques = pd.factorize(raw["sensor"].fillna("").astype("str").str.strip())
-        names = np.asarray(uniques, dtype=object)
-        sensor = names[codes]
-        no_sensor = sensor == ""
-        if lines is not None and no_sensor.any():  # blank lines in a CSV are not data
-            blank = no_sensor.copy()
-            for c in raw.columns:
-                blank[no_sensor] &= (raw[c][no_sensor].fillna("").astype("str").str.strip()
-                                     == "").to_numpy()
-            if blank.any():
-                raw, sensor, codes = raw[~blank], sensor[~blank], codes[~blank]
-                lines, positions = lines[~blank], positions[~blank]
-        counts = np.bincount(codes, minlength=len(names))
-        mine = np.array([n in self.owner or n == "" for n in names], bool)
-        for k in np.flatnonzero(~mine & (counts > 0)):
-            self.unconfigured[names[k]] += int(counts[k])
-        keep = mine[codes]
-        if not keep.all():
-            raw, sensor, codes = raw[keep], sensor[keep], codes[keep]
-            lines, positions = (None if lines is None else lines[keep]), positions[keep]
-        if len(raw) == 0:
-            return
-        raw = raw.reset_index(drop=True)
-        if comma_decimal:
-            for c in levels:
-                raw[c] = raw[c].astype("str").str.replace(",", ".", regex=False)
-        tp = rd.parse_timestamps(raw["timestamp"], naive_time=self.naive_time, tz=self.tz)
-        lv, lbad = rd.level_values(raw, levels)
-        naive = tp.status == rd.NAIVE
-        if naive.any():
-            rec = self.naive_by_file.setdefault(str(path), [None, 0])
-            if rec[0] is None:
-                i = int(np.flatnonzero(naive)[0])
-                rec[0] = (self._where(path, lines, i, sensor, raw), raw["timestamp"].iloc[i])
-            rec[1] += int(naive.sum())
-        time_bad = ~np.isin(tp.status, (rd.OK, rd.AMBIGUOUS, rd.NAIVE))
-        bad = (time_bad | lbad | (sensor == "")) & ~naive
-        if bad.any():
-            self._bad(raw, tp, levels, bad, path, lines, sensor)
-        good = ~bad & ~naive
-        if not good.any():
-            return
-        utc = tp.utc
-        inside = np.ones(len(raw), bool)
-        if self.start is not None:
-            inside &= (utc == rd.NAT) | (utc >= (self.start - _MARGIN).value)
-        if self.end is not None:
-            inside &= (utc == rd.NAT) | (utc < (self.end + _MARGIN).value)
-        good &= inside
-        order = (np.int64(file_idx) << _ORDER_SHIFT) + positions.astype(np.int64)
-        cols = {"order": order, "utc": utc}
-        if (tp.status == rd.AMBIGUOUS).any():   # kept only where needed: they cost memory
-            cols.update(early=tp.early, late=tp.late, wall=tp.wall)
-        frame = pd.DataFrame(cols).join(lv.reset_index(drop=True))
-        for k in np.unique(codes[good]):
-            name = names[k]
-            if name:
-                self.parts[name].append(frame[good & (codes == k)])
-
-    def _where(self, path, lines, i, sensor, raw) -> InputError:
-        if lines is not None:
-            return InputError("", path=path, line=int(lines[i]))
-        return InputError("", path=path, key=f"sensor {sensor[i]} at {raw['timestamp'].iloc[i]}")
-
-    def _bad(self, raw, tp, levels, bad, path, lines, sensor) -> None:
-        idx = np.flatnonzero(bad)
-        rec = self.bad_by_file.setdefault(str(path), [[], 0])   # [first few errors, count]
-        for s, n in Counter(sensor[idx]).items():
-            if s:
-                self.bad_by_sensor[s] += n
-        self.bad_total += len(idx)
-        rec[1] += len(idx)
-        for i in idx[:max(0, BAD_ROW_EXAMPLES - len(rec[0]))]:   # the rest are only counted
-            reason = None
-            if tp.status[i] not in (rd.OK, rd.AMBIGUOUS):
-                reason = rd.describe_time(raw["timestamp"].iloc[i], int(tp.status[i]), self.tz)
-            if reason is None and sensor[i] == "":
-                reason = "sensor is missing"
-            if reason is None:
-                for c in levels:
-                    reason = rd.describe_level(raw[c].iloc[i], c)
-                    if reason:
-                        break
-            w = self._where(path, lines, int(i), sensor, raw)
-            err = InputError(reason or "bad row", path=w.path, line=w.line, key=w.key)
-            rec[0].append(err)
-            if len(self.bad_examples) < BAD_ROW_EXAMPLES:
-                self.bad_examples.append(err)
-
-    def file_errors(self) -> list[InputError]:
-        """Problems that no option skips: unreadable files, missing columns, naive times."""
-        out = list(self.problems)
-        for first, n in self.naive_by_file.values():
-            where, text = first
-            more = f" ({n - 1} more rows like it)" if n > 1 else ""
-            out.append(InputError(
-                f"timestamp {str(text)!r} has no UTC offset{more}; add Z or an offset in the "
-                "export, or set naive_time = \"local\" or \"utc\" in [readings] of the site file",
-                path=where.path, line=where.line, key=where.key))
-        return out
-
-    def bad_row_errors(self) -> list[InputError]:
-        """One problem per file with bad rows: the first, then where the next few are."""
-        out = []
-        for named, count in self.bad_by_file.values():
-            first, rest = named[0], count - 1
-            if rest:
-                spots = [str(e.line) if e.line is not None else e.key
-                         for e in named[1:BAD_ROW_EXAMPLES]]
-                label = "lines" if first.line is not None else "rows"
-                extra = f" and {rest - len(spots):,} more" if rest > len(spots) else ""
-                tail = (f" (and {rest:,} more bad row{'s' if rest > 1 else ''}: {label} "
-                        f"{', '.join(spots)}{extra}; pass --skip-bad-rows to drop them)")
-            else:
-                tail = " (pass --skip-bad-rows to drop bad rows)"
-            out.append(InputError(first.message + tail, path=first.path, line=first.line,
-                                  key=first.key))
-        return out
 
 
 def _sniff_sep(path: Path) -> str:
@@ -237,7 +90,7 @@ def _mapping_hint(cols: dict[str, str], have: list[str]) -> str:
     return f"; add to [readings] in the site file: columns = {{ {body} }}"
 
 
-def _read_csv(col: _Collector, site: Site, path: Path, file_idx: int) -> tuple[str, ...]:
+def _read_csv(col: Collector, site: Site, path: Path, file_idx: int) -> tuple[str, ...]:
     sep = _sniff_sep(path)
     comp = "gzip" if _is_gzip(path) else None
     try:
@@ -259,7 +112,7 @@ def _read_csv(col: _Collector, site: Site, path: Path, file_idx: int) -> tuple[s
     return levels
 
 
-def _read_parquet(col: _Collector, site: Site, path: Path, file_idx: int) -> tuple[str, ...]:
+def _read_parquet(col: Collector, site: Site, path: Path, file_idx: int) -> tuple[str, ...]:
     import pyarrow as pa
     import pyarrow.compute as pc
     import pyarrow.parquet as pq
@@ -373,7 +226,7 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
             _LAST = None    # the window is what the command wanted: let the memory go
     else:
         _LAST = None
-        col = _Collector(site, start, end)
+        col = Collector(site, start, end)
         for i, path in enumerate(files):
             if progress is not None:
                 progress(f"reading {path.name} ({i + 1} of {len(files)})")
@@ -388,7 +241,7 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
 
 # The last whole read (no window) is kept for one more call: commands first find the data's
 # range, then read their window, and the files need not be parsed twice.
-_LAST: tuple[tuple, _Collector] | None = None
+_LAST: tuple[tuple, Collector] | None = None
 
 
 def _cache_key(site: Site, files: list[Path]) -> tuple:
@@ -407,7 +260,7 @@ def forget_cached_read() -> None:
     _LAST = None
 
 
-def _read_file(col: _Collector, site: Site, path: Path, i: int) -> None:
+def _read_file(col: Collector, site: Site, path: Path, i: int) -> None:
     try:
         name = path.name.lower()
         if name.endswith(PARQUET_SUFFIXES):
@@ -425,7 +278,7 @@ def _read_file(col: _Collector, site: Site, path: Path, i: int) -> None:
                                        path=path))
 
 
-def _assemble(col: _Collector, site: Site, files, start, end, skip: bool,
+def _assemble(col: Collector, site: Site, files, start, end, skip: bool,
               keep_parts: bool = False) -> rd.Readings:
     by_sensor, health, warns = {}, {}, []
     max_gap = site.readings.max_gap
