@@ -348,3 +348,17 @@ def test_a_whole_read_is_reused_for_the_next_window_and_changes_are_seen(tmp_pat
     both(n=120).to_csv(tmp_path / "readings" / "r.csv", index=False)
     rf.read_readings(site, keep=True)
     assert len(reads) == 6 and rf.read_readings(site).health["S1"].count == 120   # changed
+
+
+def test_parquet_epoch_seconds_and_text_timestamps(tmp_path):
+    t = pd.date_range("2026-03-02T00:00:00Z", periods=30, freq="1min")
+    epoch = (t - pd.Timestamp("1970-01-01", tz="UTC")) // pd.Timedelta("1s")
+    pq.write_table(pa.table({"timestamp": pa.array(np.asarray(epoch), pa.int64()),
+                             "sensor": ["S1"] * 30, "x_rms": [1.0] * 30}),
+                   tmp_path / "readings" / "a.parquet")
+    text = t.tz_convert("Europe/Oslo").strftime("%Y-%m-%dT%H:%M:%S%z")   # "+0100" offsets
+    pq.write_table(pa.table({"timestamp": list(text), "sensor": ["S2"] * 30, "x_rms": [2.0] * 30}),
+                   tmp_path / "readings" / "b.parquet")
+    r = load_readings(load_site(site_file(tmp_path)))
+    for s in ("S1", "S2"):
+        assert r.by_sensor[s]["timestamp"].tolist() == list(t), s
