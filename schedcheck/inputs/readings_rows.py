@@ -154,7 +154,8 @@ class Collector:
             if rest:
                 spots = [str(e.line) if e.line is not None else e.key
                          for e in named[1:BAD_ROW_EXAMPLES]]
-                label = "lines" if first.line is not None else "rows"
+                label = "line" if first.line is not None else "row"
+                label += "s" if len(spots) > 1 else ""
                 extra = f" and {rest - len(spots):,} more" if rest > len(spots) else ""
                 tail = (f" (and {rest:,} more bad row{'s' if rest > 1 else ''}: {label} "
                         f"{', '.join(spots)}{extra}; pass --skip-bad-rows to drop them)")
