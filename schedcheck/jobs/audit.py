@@ -74,7 +74,7 @@ def clip_readings(readings, start: pd.Timestamp, end: pd.Timestamp, max_gap: pd.
         h = dataclasses.replace(readings.health[sensor], first=None, last=None,
                                 median_interval=None, count=len(clipped))
         rd.measure_gaps(h, np.asarray(to_ns(clipped["timestamp"]), dtype=np.int64), start, end,
-                 max_gap)
+                        max_gap)
         health[sensor] = h
     for sensor, h in readings.health.items():
         if sensor not in health:
@@ -139,7 +139,8 @@ def audit_result(
     for unit in site.units:
         say(f"classifying run states of {unit.id}")
         states.update(classify_unit(unit, readings.by_sensor, start, end,
-                                    site.readings.max_gap, site.run_state))
+                                    site.readings.max_gap, site.run_state,
+                                    level_unit=site.readings.unit))
     load_warnings = _window_warnings(readings, start, end, site.timezone)
     say("expanding the intended schedule")
     schedules = _load_schedules(site, first, last)
