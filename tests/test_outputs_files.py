@@ -10,7 +10,7 @@ import pytest
 
 from schedcheck.audit import run_audit
 from schedcheck.outputs.files import finding_uid, write_audit_files
-from schedcheck.outputs.minimal_report import write_minimal_report
+from schedcheck.outputs.report import write_report
 from schedcheck.site import (
     Component,
     EnergySettings,
@@ -169,9 +169,9 @@ def test_schedule_csv_and_findings_csv(result, tmp_path):
     assert f["cost"].iloc[0] == pytest.approx(148.48)
 
 
-def test_minimal_report_escapes_names(result, tmp_path):
+def test_report_escapes_names(result, tmp_path):
     write_audit_files(result, tmp_path)
-    html = write_minimal_report(tmp_path).read_text()
+    html = write_report(tmp_path).read_text()
     assert "Pier &lt;b&gt;House&lt;/b&gt; &amp; annex" in html
     assert "<b>House" not in html
     assert "&lt;check the time program&gt;" in html

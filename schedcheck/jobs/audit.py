@@ -235,13 +235,7 @@ def _bad_rows(bad) -> dict:
 
 
 def write_report_file(outdir: Path) -> Path:
-    """The full report when its module is present, else the minimal one."""
-    try:
-        from schedcheck.outputs.report import write_report
-    except ImportError:
-        write_report = None
-    if write_report is not None:
-        return Path(write_report(outdir))
-    from schedcheck.outputs.minimal_report import write_minimal_report
+    """The self-contained report, drawn from the files just written to ``outdir``."""
+    from schedcheck.outputs.report import write_report
 
-    return write_minimal_report(outdir)
+    return Path(write_report(outdir))
