@@ -163,7 +163,10 @@ def clock_offset(ctx: Context) -> list[Found]:
             continue
         flagged_before = True
         shifted_days = [d for d in after_all if shifted(d)]
-        zone = _zones(ctx, shifted_days, int(abs(delta) * NS_PER_MIN))
+        # Once the shift is established, the controller keeps the wrong clock every working
+        # day until the next change, including days whose optimal start wandered past the
+        # tolerance: the edges of all of them are explained by it (one cause, one finding).
+        zone = _zones(ctx, after_all, int(abs(delta) * NS_PER_MIN))
         zones.append(zone)
         running = (ctx.run - ctx.scheduled) & zone
         hours = running.hours()

@@ -141,6 +141,16 @@ def test_every_planted_fault_is_found_with_its_kind_and_date(demo):
             assert set(dates) <= set(mine), (f["component"], f["kind"], sorted(set(mine)))
 
 
+def test_no_finding_without_a_planted_cause(demo):
+    # one cause, one finding: every finding on the classified data is a planted fault of that
+    # component (kind and date), never a side effect such as the missed hour of a shifted clock
+    planted = {(f["component"], f["kind"]) for f in demo["truth"].faults}
+    found = demo["findings"]
+    extra = found[[(c, k) not in planted for c, k in zip(found["component"], found["kind"],
+                                                          strict=True)]]
+    assert extra.empty, extra[["component", "kind", "start", "detail"]].to_string()
+
+
 def test_clean_units_have_no_findings_and_no_off_schedule_running(demo):
     truth = demo["truth"]
     comps = components(demo)
