@@ -168,13 +168,16 @@ SPEED_RANGE = (0.0, 1.2)          # exclusive low, inclusive high [-]
 EXPONENT_RANGE = (1.5, 3.5)       # inclusive [-]
 
 
-def load_site(path: str | Path) -> Site:
+def load_site(path: str | Path, *, require_readings: bool = True) -> Site:
     """Read and validate a site file; every problem found is reported at once.
 
     Parameters
     ----------
     path : str or Path
         The site file (TOML). Relative paths inside it are relative to its folder.
+    require_readings : bool
+        When False, readings patterns that match no file are accepted (commands that do not
+        read readings).
 
     Returns
     -------
@@ -189,4 +192,4 @@ def load_site(path: str | Path) -> Site:
     """
     from schedcheck.inputs.site_file import read_site_file
 
-    return read_site_file(path)
+    return read_site_file(path, require_readings=require_readings)

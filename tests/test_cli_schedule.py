@@ -202,3 +202,15 @@ def test_spring_gap_warning_goes_to_stderr(site, capsys):
                        "2026-03-29", "--format", "json")
     assert rc == 0 and json.loads(out) is not None
     assert err.startswith("warning: AHU-1: ") and "'Night purge'" in err and "negative" in err
+
+
+def test_schedule_works_before_any_readings_exist_but_check_does_not(site, capsys):
+    # a site being set up: calendars written, no readings exported yet
+    (site.parent / "readings" / "r.csv").unlink()
+    rc, out, err = run(capsys, site, "--unit", "AHU-1", "--from", "2026-03-31", "--to",
+                       "2026-03-31", "--format", "json")
+    assert rc == 0, err
+    rows = json.loads(out)
+    assert {r["kind"] for r in rows} >= {"occupied", "allowance"}
+    assert main(["check", str(site)]) == 2
+    assert "matches no file" in capsys.readouterr().err

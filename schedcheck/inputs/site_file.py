@@ -44,13 +44,16 @@ _COMPONENT = ("id", "role", "sensor", "power_kw", "speed", "threshold")
 
 
 
-def read_site_file(path: str | Path) -> Site:
+def read_site_file(path: str | Path, *, require_readings: bool = True) -> Site:
     """Read and validate a site file; every problem found is reported at once.
 
     Parameters
     ----------
     path : str or Path
         The site file (TOML). Relative paths inside it are relative to its folder.
+    require_readings : bool
+        When False, readings patterns that match no file yet are not a problem (for commands
+        that do not read readings, such as ``schedcheck schedule`` on a site being set up).
 
     Returns
     -------
@@ -84,7 +87,7 @@ def read_site_file(path: str | Path) -> Site:
         msg = re.sub(r"\s*\(at line \d+, column \d+\)", "", msg) or "not valid TOML"
         err = InputError(f"not valid TOML: {msg}", path=path, line=line)
         raise InputProblems([err]) from None
-    v = _Validator(path, text)
+    v = _Validator(path, text, require_readings=require_readings)
     site = v.site(data)
     if v.problems:
         raise InputProblems(v.problems)
@@ -128,8 +131,10 @@ def _is_number(x) -> bool:
 class _Validator:
     """Walks the parsed TOML, collecting every problem (never stops at the first)."""
 
-    def __init__(self, path: Path, text: str | None = None) -> None:
+    def __init__(self, path: Path, text: str | None = None, *,
+                 require_readings: bool = True) -> None:
         self.path = path
+        self.require_readings = require_readings
         self.base = path.parent
         self.problems: list = []
         self.where = key_lines(text) if text else {}
@@ -292,7 +297,7 @@ class _Validator:
             if not files:
                 self.err(key, "is empty: give at least one file or glob pattern")
             for i, (pat, hits) in enumerate(resolve_patterns(self.base, tuple(files)), 1):
-                if not hits:
+                if not hits and self.require_readings:
                     k = key if len(files) == 1 else f"{key}[{i}]"
                     where = Path(pat).expanduser()
                     where = where if where.is_absolute() else self.base / where

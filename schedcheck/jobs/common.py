@@ -18,9 +18,12 @@ from schedcheck.site import Site, load_site
 from schedcheck.window import whole_days_covered
 
 
-def open_site(path: str | Path) -> Site:
-    """Load and validate a site file (every problem at once, as :class:`InputProblems`)."""
-    return load_site(path)
+def open_site(path: str | Path, *, require_readings: bool = True) -> Site:
+    """Load and validate a site file (every problem at once, as :class:`InputProblems`).
+
+    ``require_readings=False`` accepts readings patterns that match no file yet.
+    """
+    return load_site(path, require_readings=require_readings)
 
 
 def load_readings(site: Site, start: pd.Timestamp | None = None,
