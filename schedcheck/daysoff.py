@@ -109,7 +109,7 @@ def closure_days(
     """The closure dates of ``closed`` (inclusive ranges) that fall on ``first..last``."""
     rows = []
     for a, b in closed:
-        name = "closed" if a == b else f"closed {a.isoformat()} to {b.isoformat()}"
+        name = "site closure" if a == b else f"site closure {a.isoformat()} to {b.isoformat()}"
         day = max(a, first)
         while day <= min(b, last):
             rows.append((day, name, "closure"))

@@ -260,8 +260,13 @@ def _day_finding(ctx: Context, label: tuple, part: Intervals) -> Found:
     when = span_text(s, e, ctx.tz)
     if label[0] == "holiday":
         name, kind = ctx.days_off[label[1]]
-        what = "a public holiday" if kind == "holiday" else "a closure day"
-        detail = (f"Ran {hours:.1f} h{runs} on {name} ({label[1].day} {label[1]:%b %Y}, {what}) "
+        date = f"{label[1].day} {label[1]:%b %Y}"
+        if kind == "holiday":
+            on = f"on {name} ({date}, a public holiday)"
+        else:
+            extra = "" if name == "site closure" else f" ({name})"
+            on = f"on {date}, a closure day of the site{extra},"
+        detail = (f"Ran {hours:.1f} h{runs} {on} "
                   f"{when}{{energy}}; check that the "
                   + ("holiday calendar is loaded in the controller." if kind == "holiday" else
                      "closure dates are entered in the controller's holiday calendar."))

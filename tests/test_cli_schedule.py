@@ -123,7 +123,7 @@ def test_json_has_exactly_the_agreed_shape(site, capsys):
         ("occupied", "2026-03-31T08:00:00+02:00", "2026-03-31T16:00:00+02:00", "Opening hours"),
         ("allowance", "2026-03-31T16:00:00+02:00", "2026-03-31T16:30:00+02:00",
          "late stop 30min"),
-        ("holiday", "2026-04-01", "", "closed"),
+        ("holiday", "2026-04-01", "", "site closure"),
         ("allowed", "2026-04-01T03:00:00+02:00", "2026-04-01T05:00:00+02:00", "Night purge"),
         ("holiday", "2026-04-02", "", "Maundy Thursday"),
         ("allowed", "2026-04-02T03:00:00+02:00", "2026-04-02T05:00:00+02:00", "Night purge"),

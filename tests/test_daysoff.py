@@ -70,7 +70,7 @@ def test_closures_expand_inclusive_ranges_and_clip_to_window():
     frame = closure_days(closed, D(2026, 7, 20), D(2026, 12, 31))
     assert frame["date"].tolist()[0] == D(2026, 7, 20)
     assert len(frame) == 12 + 1
-    assert frame["name"].iloc[-1] == "closed" and set(frame["kind"]) == {"closure"}
+    assert frame["name"].iloc[-1] == "site closure" and set(frame["kind"]) == {"closure"}
 
 
 def test_days_off_merges_and_sorts_with_both_kinds_on_one_date():

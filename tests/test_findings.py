@@ -210,7 +210,7 @@ def test_closure_days_give_one_holiday_finding_per_date():
     assert list(found["kind"]) == ["holiday"] * 5
     assert list(found["date"]) == [d.isoformat() for d in closed]
     assert found["hours"].tolist() == pytest.approx([11.0] * 5)
-    assert "a closure day" in found["detail"].iloc[0]
+    assert "a closure day of the site" in found["detail"].iloc[0]
 
 
 # -- continuous ---------------------------------------------------------------------------------
