@@ -114,16 +114,16 @@ class FindingSettings:
     """Optional ``[findings]`` table: finding rules (defaults documented in findings.py).
 
     As for RunStateSettings, allowed keys come from these fields; None means the documented
-    default.
+    default. A field's ``metadata["min"]`` sets the smallest value the site file may give.
     """
 
     min_off_schedule: pd.Timedelta | None = None   # off-schedule running this long = finding
     min_missed: pd.Timedelta | None = None         # occupied time off before it is a finding
     continuous: pd.Timedelta | None = None         # running without a stop this long = continuous
-    max_starts_per_day: int | None = None          # more starts a day = short cycling
+    max_starts_per_day: int | None = field(default=None, metadata={"min": 1})  # short cycling
     max_pause: pd.Timedelta | None = None          # shorter stops do not end an episode
     min_overrun: pd.Timedelta | None = None        # shorter early starts / late stops are ignored
-    repeat_days: int | None = None                 # overrun days in one ISO week = a finding
+    repeat_days: int | None = field(default=None, metadata={"min": 1})  # overrun days a week
 
 
 @dataclass(frozen=True)

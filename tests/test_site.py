@@ -320,6 +320,10 @@ def test_run_state_and_findings_keys_come_from_the_dataclasses(tmp_path):
     out = problems(tmp_path, bad)
     assert any(': run_state.min_runn: unknown key; did you mean "min_run"' in o for o in out)
     assert any(": findings.max_starts_per_day: must be a whole number" in o for o in out)
+    # a rule that needs at least one day or start says so in the site file, not at audit time
+    out = problems(tmp_path, BASE + "\n[findings]\nrepeat_days = 0\nmax_starts_per_day = 0\n")
+    assert any(": findings.repeat_days: " in o and "0" in o for o in out)
+    assert any(": findings.max_starts_per_day: " in o for o in out)
 
 
 def test_every_problem_is_reported_in_one_run(tmp_path):

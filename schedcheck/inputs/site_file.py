@@ -528,6 +528,7 @@ class _Validator:
 
         hints = typing.get_type_hints(cls)
         fields = [f.name for f in dataclasses.fields(cls)]
+        lows = {f.name: f.metadata.get("min", 0) for f in dataclasses.fields(cls)}
         t = self.table(data, name, name, fields)
         values = {}
         for f in fields:
@@ -540,9 +541,9 @@ class _Validator:
             elif kind is bool:
                 val = self.boolean(t, f, key, None)
             elif kind is int:
-                val = self.number(t, f, key, lo=0, integer=True)
+                val = self.number(t, f, key, lo=int(lows[f]), integer=True)
             elif kind is float:
-                val = self.number(t, f, key, lo=0.0)
+                val = self.number(t, f, key, lo=float(lows[f]))
             elif kind is str:
                 val = self.string(t, f, key)
             else:  # pragma: no cover - a field type the validator does not know yet
