@@ -328,7 +328,7 @@ def test_x_wr_timezone_rules_follow_that_zone_wall_clock():
     assert "X-WR-TIMEZONE 'Mars/Base'" in str(check_calendar(bad, path="g.ics")[0])
 
 
-def test_windows_zone_name_is_understood():
+def test_descriptive_cldr_zone_name_is_understood():
     c = cal("DTSTART;TZID=W. Europe Standard Time:20260302T070000\n"
             "DTEND;TZID=W. Europe Standard Time:20260302T170000")
     res = expand_calendar(c, OSLO, D(2026, 3, 2), D(2026, 3, 2))

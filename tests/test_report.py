@@ -18,7 +18,7 @@ HOSTILE_SITE = '<script>alert("site")</script> & Sons'
 HOSTILE_UNIT = "<img src=x onerror=alert(1)>"
 HOSTILE_COMP = 'fan"><b>'
 HOSTILE_SENSOR = "S-1' onmouseover='alert(2)"
-HOSTILE_HOLIDAY = 'Tom & Jerry\'s <iframe src="https://evil.invalid"></iframe> day'
+HOSTILE_HOLIDAY = 'Ebb & Flow\'s <iframe src="https://evil.invalid"></iframe> day'
 HOSTILE_EVENT = "<svg onload=alert(3)>Opening & \"late\" hours"
 
 
@@ -159,7 +159,7 @@ def test_hostile_names_are_escaped(tmp_path):
     assert "&lt;script&gt;alert(&#34;site&#34;)&lt;/script&gt; &amp; Sons" in page
     assert "&lt;img src=x onerror=alert(1)&gt;" in page
     assert "S-1&#39; onmouseover=&#39;alert(2)" in page
-    assert "Tom &amp; Jerry&#39;s &lt;iframe" in page
+    assert "Ebb &amp; Flow&#39;s &lt;iframe" in page
     assert "&lt;svg onload=alert(3)&gt;Opening &amp; &#34;late&#34; hours" in page
 
 
