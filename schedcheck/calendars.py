@@ -7,7 +7,7 @@ overrides including ``RANGE=THISANDFUTURE``), using the recurring-ical-events li
 
 Time rules
 ----------
-- A DATE-TIME with ``TZID`` is read in that zone (an IANA name, a CLDR-mapped descriptive name, or any
+- A DATE-TIME with ``TZID`` is read in that zone (an IANA name, a CLDR-mapped descriptive name, any
   name defined by a VTIMEZONE in the same file); one ending in ``Z`` is UTC; a *floating* one
   (no zone) is read in the site's zone. A calendar with ``X-WR-TIMEZONE`` (written by some
   calendar programs) is first converted to that zone, as those programs mean it: floating
