@@ -149,7 +149,7 @@ def _charts(data: SavedAudit, comp: dict, days_off: pd.DataFrame) -> None:
             np.asarray(hist["counts"], dtype=float), np.asarray(hist["edges"], dtype=float),
             th.get("level"), th.get("on_level"), th.get("off_level"),
             f"{comp['id']}: vibration levels seen", source=th.get("source"),
-            unit=data.summary["site"].get("reading_unit") or ""))
+            unit=data.summary["site"].get("reading_unit") or "", floor=th.get("floor")))
 
 
 def _findings(data: SavedAudit, comps: dict[str, dict]) -> list[dict]:
