@@ -83,31 +83,6 @@ def clip_readings(readings, start: pd.Timestamp, end: pd.Timestamp, max_gap: pd.
     return dataclasses.replace(readings, by_sensor=by_sensor, health=health, start=start, end=end)
 
 
-def _load_schedules(site: Site, first: dt.date, last: dt.date) -> dict[str, object]:
-    from schedcheck.inputs.calendar_files import read_checked_calendar
-    from schedcheck.schedule import expand_unit_schedule
-
-    cache: dict[Path, object] = {}
-
-    def cals(paths) -> list:
-        out = []
-        for p in paths:
-            if p not in cache:
-                cache[p] = read_checked_calendar(p)
-            out.append((p, cache[p]))
-        return out
-
-    out = {}
-    for unit in site.units:
-        s = unit.schedule
-        out[unit.id] = expand_unit_schedule(
-            cals(s.occupied), cals(s.allowed), site.timezone, first, last,
-            early_start=s.early_start, late_stop=s.late_stop, holidays=site.holidays,
-            unit=unit.id, site_path=site.path,
-        )
-    return out
-
-
 def audit_result(
     site: Site,
     first: dt.date | None = None,
@@ -121,6 +96,7 @@ def audit_result(
     parameters are as there.
     """
     from schedcheck.jobs.common import load_readings
+    from schedcheck.jobs.schedule import unit_schedules
     from schedcheck.runstate import classify_unit
 
     say = progress or (lambda _msg: None)
@@ -143,7 +119,7 @@ def audit_result(
                                     level_unit=site.readings.unit))
     load_warnings = _window_warnings(readings, start, end, site.timezone)
     say("expanding the intended schedule")
-    schedules = _load_schedules(site, first, last)
+    schedules = unit_schedules(site, first, last)
     say("comparing and pricing")
     bad = {"count": int(getattr(readings, "bad_rows_count", 0) or 0),
            "examples": list(getattr(readings, "bad_rows_examples", []) or [])[:20]}
