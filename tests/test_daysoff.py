@@ -18,25 +18,49 @@ def working_day_holidays(frame) -> list[dt.date]:
     return sorted({d for d in frame["date"] if d.weekday() < 5})
 
 
-# Norway 2026: the public holidays (helligdager) of the Act on public holidays and days of rest
-# (helligdagsfredloven) plus 1 and 17 May under "Lov om 1. og 17. mai som høgtidsdager"; Easter
-# Sunday is 5 April 2026. Dates written from memory of the act's list: New Year's Day,
-# Maundy Thursday, Good Friday, Easter Sunday and Monday, 1 May, Ascension Day, 17 May,
-# Whit Sunday and Monday, Christmas Day, Boxing Day. Working days (Mon-Fri) among them:
+# Norway 2026. Checked against the text of the Act on public holidays and holiday peace
+# (lov 24. februar 1995 nr. 12 om helligdager og helligdagsfred, section 2), which lists as
+# helligdager, besides ordinary Sundays: New Year's Day (1 January), Maundy Thursday ("last
+# Thursday before Easter Sunday"), Good Friday ("last Friday before Easter Sunday"), Easter
+# Sunday, Easter Monday, Ascension Day ("sixth Thursday after Easter Sunday"), Whit Sunday
+# ("seventh Sunday after Easter Sunday"), Whit Monday, 25 and 26 December; 1 and 17 May are
+# public high days (hoytidsdager) under their own act (lov om 1. og 17. mai som hoytidsdager),
+# as a national news report listing the twelve days confirms. Easter Sunday 2026 is 5 April
+# (a published 2026 holiday list for Norway and a 2026 US calendar agree). Applying the act's
+# rules: 2 Apr, 3 Apr, 5 Apr, 6 Apr, 14 May (the sixth Thursday after 5 Apr), 24 and 25 May; a
+# published 2026 list for Norway gives the same dates.
+NORWAY_2026_ALL = [D(2026, 1, 1), D(2026, 4, 2), D(2026, 4, 3), D(2026, 4, 5), D(2026, 4, 6),
+                   D(2026, 5, 1), D(2026, 5, 14), D(2026, 5, 17), D(2026, 5, 24),
+                   D(2026, 5, 25), D(2026, 12, 25), D(2026, 12, 26)]
 NORWAY_2026_WORKING_DAYS = [D(2026, 1, 1), D(2026, 4, 2), D(2026, 4, 3), D(2026, 4, 6),
                             D(2026, 5, 1), D(2026, 5, 14), D(2026, 5, 25), D(2026, 12, 25)]
 
-# England and Wales 2026 bank holidays as published by the UK government (gov.uk/bank-holidays),
-# written from memory: 1 Jan, Good Friday 3 Apr, Easter Monday 6 Apr, Early May 4 May, Spring
-# 25 May, Summer 31 Aug, Christmas 25 Dec, Boxing Day (substitute day) Monday 28 Dec.
+# England and Wales 2026 bank holidays. The GOV.UK list itself was not found in the stored
+# material we could search, so this is checked two ways: (1) the statute, Banking and Financial
+# Dealings Act 1971, Schedule 1 paragraph 1 (official legislation text): Easter Monday (6 Apr),
+# the last Monday in May (25 May), the last Monday in August (31 Aug), "26th December, if it be
+# not a Sunday" (Saturday 26 Dec); Good Friday (3 Apr) and Christmas Day are common-law
+# holidays; (2) for the days set each year by royal proclamation - New Year's Day (1 Jan),
+# the early May bank holiday (4 May) and Boxing Day's substitute day (Monday 28 Dec) - press
+# reports quoting the GOV.UK 2026 list (secondary sources, not the list itself).
+ENGLAND_2026_ALL = [D(2026, 1, 1), D(2026, 4, 3), D(2026, 4, 6), D(2026, 5, 4), D(2026, 5, 25),
+                    D(2026, 8, 31), D(2026, 12, 25), D(2026, 12, 26), D(2026, 12, 28)]
 ENGLAND_2026 = [D(2026, 1, 1), D(2026, 4, 3), D(2026, 4, 6), D(2026, 5, 4), D(2026, 5, 25),
                 D(2026, 8, 31), D(2026, 12, 25), D(2026, 12, 28)]
 
-# US federal holidays 2026 under 5 U.S.C. 6103, with the observed day for one on a weekend
-# (Independence Day, Saturday 4 July, is observed Friday 3 July), from memory of the OPM list.
+# US federal holidays 2026 under 5 U.S.C. 6103(a), with the observed day for one on a weekend
+# (a Saturday holiday is observed the Friday before: Independence Day, Saturday 4 July, is
+# observed Friday 3 July). Checked against the 2026 federal holiday lists published by the US
+# federal courts (Court of Appeals for the Eleventh Circuit; Bankruptcy Court for the Western
+# District of New York), which give exactly these eleven weekdays, and against the statute's
+# rules as quoted by a federal court (third Monday in January and February, last Monday in May,
+# first Monday in September, second Monday in October, fourth Thursday in November; the
+# Juneteenth Act of 2021 added June 19). The OPM page itself was not found in the stored
+# material we could search.
 US_FEDERAL_2026 = [D(2026, 1, 1), D(2026, 1, 19), D(2026, 2, 16), D(2026, 5, 25),
                    D(2026, 6, 19), D(2026, 7, 3), D(2026, 9, 7), D(2026, 10, 12),
                    D(2026, 11, 11), D(2026, 11, 26), D(2026, 12, 25)]
+US_FEDERAL_2026_ALL = sorted(US_FEDERAL_2026 + [D(2026, 7, 4)])
 
 
 @pytest.mark.parametrize("country,subdivision,expected", [
@@ -49,6 +73,18 @@ def test_2026_public_holidays_match_official_lists_on_working_days(country, subd
     got = public_holidays(country, *YEAR, subdivision=subdivision)
     assert working_day_holidays(got) == expected
     assert set(got["kind"]) == {"holiday"}
+
+
+@pytest.mark.parametrize("country,subdivision,expected", [
+    ("NO", None, NORWAY_2026_ALL),
+    ("GB", "ENG", ENGLAND_2026_ALL),
+    ("US", None, US_FEDERAL_2026_ALL),
+])
+def test_2026_public_holidays_match_official_lists_including_weekend_days(country, subdivision,
+                                                                         expected):
+    # the same sources as above; weekend days matter for a site that runs on Saturdays
+    got = public_holidays(country, *YEAR, subdivision=subdivision)
+    assert sorted(set(got["date"])) == expected
 
 
 def test_names_are_pinned_to_one_language():
