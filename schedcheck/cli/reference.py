@@ -12,8 +12,9 @@ import os
 
 HEADER = """# Command reference
 
-Generated from the commands' own `--help` by `python -m schedcheck.cli.reference > docs/cli.md`;
-do not edit by hand. Dates are local dates of the site (`YYYY-MM-DD`), both ends inclusive.
+Generated from the commands' own `--help` by `python -m schedcheck.cli.reference > docs/cli.md`
+(typer {typer_version}); do not edit by hand. Dates are local dates of the site (`YYYY-MM-DD`),
+both ends inclusive.
 Exit status: 0 success (findings are not errors), 2 bad input or usage (one line `error: ...`
 on stderr), 1 an unexpected internal error.
 """
@@ -45,8 +46,15 @@ def command_names() -> list[str]:
     return sorted(get_command(app).commands)  # type: ignore[attr-defined]
 
 
+def typer_version() -> str:
+    """major.minor of the installed typer (help layout differs between its releases)."""
+    from importlib.metadata import version
+
+    return ".".join(version("typer").split(".")[:2])
+
+
 def reference() -> str:
-    parts = [HEADER, "```text\n" + _help([]) + "```\n"]
+    parts = [HEADER.format(typer_version=typer_version()), "```text\n" + _help([]) + "```\n"]
     for name in command_names():
         parts.append(f"## schedcheck {name}\n\n```text\n{_help([name])}```\n")
     return "\n".join(parts)
