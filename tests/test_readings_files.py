@@ -362,3 +362,26 @@ def test_parquet_epoch_seconds_and_text_timestamps(tmp_path):
     r = load_readings(load_site(site_file(tmp_path)))
     for s in ("S1", "S2"):
         assert r.by_sensor[s]["timestamp"].tolist() == list(t), s
+
+
+def test_a_single_axis_sensor_in_a_shared_file_leaves_its_other_columns_empty(tmp_path):
+    # a gateway export with a three-axis and a one-axis sensor in one file writes empty cells
+    # for the axes the second does not have: absent for it, not bad rows
+    s1 = minutes("S1")
+    s2 = minutes("S2", seed=1).assign(x_rms="", y_rms="", z_rms=0.7)
+    s1["z_rms"] = 0.5
+    pd.concat([s1, s2]).sort_values("timestamp", kind="stable").to_csv(
+        tmp_path / "readings" / "r.csv", index=False)
+    r = load_readings(load_site(site_file(tmp_path)))
+    assert list(r.by_sensor["S2"].columns) == ["timestamp", "z_rms"]
+    assert list(r.by_sensor["S1"].columns) == ["timestamp", "x_rms", "y_rms", "z_rms"]
+    assert len(r.by_sensor["S2"]) == 60 and r.bad_rows_count == 0 and not r.warnings
+    # a blank cell of a sensor that does report the axis is still a bad row, named by line
+    s1 = s1.astype({"x_rms": object})
+    s1.loc[5, "x_rms"] = ""
+    pd.concat([s1, s2]).to_csv(tmp_path / "readings" / "r.csv", index=False)
+    rf.forget_cached_read()
+    with pytest.raises(InputProblems) as exc:
+        load_readings(load_site(site_file(tmp_path)))
+    (msg,) = errors_of(exc.value)
+    assert msg.startswith(f"{tmp_path / 'readings' / 'r.csv'}:7: level x_rms is missing")

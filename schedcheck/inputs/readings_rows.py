@@ -21,6 +21,34 @@ MARGIN = pd.Timedelta("1D")   # rows kept outside the window while placing autum
 ORDER_SHIFT = 40              # read order = file index << 40 | row position
 
 
+def _absent_levels(raw: pd.DataFrame, levels: tuple[str, ...], codes: np.ndarray,
+                   n_names: int) -> dict[str, list[int]]:
+    """Level column -> sensor codes that leave it empty on every one of their rows here.
+
+    A gateway that carries sensors with different axes in one file writes empty cells for the
+    axes a sensor does not have. Such a column is absent for that sensor, not a bad value on
+    each row, provided the sensor fills at least one RMS column on some row here (a sensor
+    with every level empty keeps its rows bad).
+    """
+    empty = {}
+    for c in levels:
+        col = raw[c]
+        e = col.isna().to_numpy().copy()
+        if not pd.api.types.is_numeric_dtype(col):
+            e |= col.astype("str").str.strip().to_numpy() == ""
+        empty[c] = np.bincount(codes[~e], minlength=n_names) == 0
+    rms = [c for c in levels if c in rd.RMS_COLUMNS]
+    fills_rms = np.zeros(n_names, bool)
+    for c in rms:
+        fills_rms |= ~empty[c]
+    out = {}
+    for c in levels:
+        k = np.flatnonzero(empty[c] & fills_rms)
+        if k.size:
+            out[c] = k.tolist()
+    return out
+
+
 class Collector:
     """Accumulates rows of every file, bad rows and file-level problems."""
 
@@ -73,6 +101,12 @@ class Collector:
                 raw[c] = raw[c].astype("str").str.replace(",", ".", regex=False)
         tp = rd.parse_timestamps(raw["timestamp"], naive_time=self.naive_time, tz=self.tz)
         lv, lbad = rd.level_values(raw, levels)
+        absent = _absent_levels(raw, levels, codes, len(names))
+        if absent:   # a sensor with fewer axes in a shared file: its empty columns are not data
+            lbad = np.zeros(len(raw), bool)
+            for c in levels:
+                cbad = ~np.isfinite(lv[c].to_numpy()) | (lv[c].to_numpy() < 0)
+                lbad |= cbad & ~np.isin(codes, absent.get(c, []))
         naive = tp.status == rd.NAIVE
         if naive.any():
             rec = self.naive_by_file.setdefault(str(path), [None, 0])
@@ -83,7 +117,7 @@ class Collector:
         time_bad = ~np.isin(tp.status, (rd.OK, rd.AMBIGUOUS, rd.NAIVE))
         bad = (time_bad | lbad | (sensor == "")) & ~naive
         if bad.any():
-            self._bad(raw, tp, levels, bad, path, lines, sensor)
+            self._bad(raw, tp, levels, bad, path, lines, sensor, absent, codes)
         good = ~bad & ~naive
         if not good.any():
             return
@@ -102,14 +136,16 @@ class Collector:
         for k in np.unique(codes[good]):
             name = names[k]
             if name:
-                self.parts[name].append(frame[good & (codes == k)])
+                gone = [c for c in levels if k in absent.get(c, ())]
+                part = frame[good & (codes == k)]
+                self.parts[name].append(part.drop(columns=gone) if gone else part)
 
     def _where(self, path, lines, i, sensor, raw) -> InputError:
         if lines is not None:
             return InputError("", path=path, line=int(lines[i]))
         return InputError("", path=path, key=f"sensor {sensor[i]} at {raw['timestamp'].iloc[i]}")
 
-    def _bad(self, raw, tp, levels, bad, path, lines, sensor) -> None:
+    def _bad(self, raw, tp, levels, bad, path, lines, sensor, absent=None, codes=None) -> None:
         idx = np.flatnonzero(bad)
         rec = self.bad_by_file.setdefault(str(path), [[], 0])   # [first few errors, count]
         for s, n in Counter(sensor[idx]).items():
@@ -125,6 +161,8 @@ class Collector:
                 reason = "sensor is missing"
             if reason is None:
                 for c in levels:
+                    if absent and codes[i] in absent.get(c, ()):
+                        continue
                     reason = rd.describe_level(raw[c].iloc[i], c)
                     if reason:
                         break
