@@ -222,6 +222,17 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
     p = parts.sort_values("order", kind="stable").reset_index(drop=True)
     utc = p["utc"].to_numpy(np.int64).copy()
     amb = utc == NAT
+    fold_dupes = 0
+    if amb.any() and "early" in p.columns:
+        # an exact duplicate row of the repeated hour right after itself in read order is one
+        # reading sent twice, not a late packet of the other pass: only its first copy is placed
+        rows = p.loc[amb, ["wall", *columns]]
+        twice = rows.eq(rows.shift()).all(axis=1).to_numpy()
+        if twice.any():
+            fold_dupes = int(twice.sum())
+            p = p.drop(index=p.index[amb][twice]).reset_index(drop=True)
+            utc = p["utc"].to_numpy(np.int64).copy()
+            amb = utc == NAT
     if amb.any() and "early" in p.columns:
         chosen = resolve_folds(p["early"].to_numpy()[amb], p["late"].to_numpy()[amb],
                                p["wall"].to_numpy()[amb], utc[~amb])
@@ -230,9 +241,12 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
         if lost:
             health.ambiguous_dropped = lost
             day = pd.Timestamp(int(p["early"].to_numpy()[amb][chosen == NAT][0]), tz="UTC")
+            where = ("that hour is counted as no data" if lost == int(amb.sum()) else
+                     "they are left out, and a silence they leave longer than max_gap is "
+                     "counted as no data")
             warnings.append(f"sensor {sensor}: {lost} readings in the repeated autumn hour "
                             f"({day:%Y-%m-%d}) are not in time order and cannot be placed; "
-                            "that hour is counted as no data")
+                            + where)
     keep = utc != NAT
     if start is not None:
         keep &= utc >= start.value
@@ -246,7 +260,7 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
     frame = pd.DataFrame({"timestamp": utc}).join(levels)
     frame = frame.sort_values("timestamp", kind="stable")
     exact = frame.duplicated(keep="first")
-    health.duplicates_exact = int(exact.sum())
+    health.duplicates_exact = int(exact.sum()) + fold_dupes
     frame = frame[~exact.to_numpy()]
     same = frame["timestamp"].duplicated(keep=False).to_numpy()
     if same.any():

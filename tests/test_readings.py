@@ -274,3 +274,21 @@ def test_fold_placing_is_exact_or_no_data_never_wrong(seed):
     assert got <= want and len(want - got) == h.ambiguous_dropped
     if not moved and loss <= 0.01:
         assert got == want
+
+
+def test_a_fold_reading_sent_twice_is_a_duplicate_not_a_lost_pair():
+    # New York fall-back 2026-11-01 (01:00-02:00 EDT then EST; IANA tz database): a gateway
+    # that sends one second-pass reading twice in a row. Before: both copies were dropped as
+    # "late packets" with a warning that the hour was no data.
+    truth = pd.date_range(pd.Timestamp("2026-11-01 00:00", tz="America/New_York"),
+                          periods=240, freq="1min")
+    local = truth.strftime("%Y-%m-%d %H:%M:%S").tolist()
+    parts = fold_parts(local, tz="America/New_York")
+    parts["x_rms"] = np.linspace(0.1, 0.5, len(parts))
+    dup = local.index("2026-11-01 01:55:00", 150)          # second pass (index 175)
+    parts = pd.concat([parts.iloc[:dup + 1], parts.iloc[[dup]], parts.iloc[dup + 1:]])
+    parts["order"] = np.arange(len(parts))
+    frame, health, warnings = rd.clean_sensor(parts, sensor="S", columns=("x_rms",), start=None,
+                                              end=None, max_gap=pd.Timedelta("5min"))
+    assert frame["timestamp"].tolist() == truth.tz_convert("UTC").tolist()
+    assert health.ambiguous_dropped == 0 and health.duplicates_exact == 1 and not warnings
