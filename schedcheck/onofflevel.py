@@ -184,6 +184,30 @@ def _display_histogram(L: np.ndarray, marks: list[float]) -> tuple[np.ndarray, n
     return counts, edges
 
 
+def _configured_warnings(configured: float, b: float, med: list[float], n_below: int,
+                         n_above: int) -> list[str]:
+    """Warnings for a level set in the site file that lies outside the readings' level groups
+    (below the stopped machine's noise, or above its running level)."""
+    groups = ", ".join(f"{10**m:.3g}" for m in med)
+    if len(med) >= 2 and b < med[0]:
+        return [f"the configured threshold {configured:g} is below the lowest level group "
+                f"(median {10**med[0]:.3g}, the stopped machine's noise), so most stopped "
+                f"readings count as running; the level groups have medians {groups}: set "
+                "`threshold` between the stopped and the running group"]
+    if len(med) >= 2 and b > med[-1]:
+        return [f"the configured threshold {configured:g} is above the highest level group "
+                f"(median {10**med[-1]:.3g}), so most running readings count as off; the "
+                f"level groups have medians {groups}: set `threshold` between the stopped "
+                "and the running group"]
+    if n_below == 0:
+        return [f"every reading is above the configured threshold {configured:g}: counted as "
+                "running all the time; check `threshold` if this machine does stop"]
+    if n_above == 0:
+        return [f"no reading is above the configured threshold {configured:g}: never counted "
+                "as running; check `threshold` if this machine does run"]
+    return []
+
+
 def choose_threshold(
     L: np.ndarray,
     *,
@@ -305,6 +329,8 @@ def choose_threshold(
         b = th.valley_level(L, lo_med, hi_med)
     on, off = _band(b, lo_med, hi_med)
     below, above = L[L <= b], L[L > b]
+    if configured is not None:
+        warn += _configured_warnings(configured, b, med, below.size, above.size)
     sep = min(th.ashman_d(below, above), SEPARATION_CAP)
     eff = th.otsu_effectiveness(L, b) if below.size and above.size else np.nan
     c, e = _display_histogram(L, [on, off, F])

@@ -226,3 +226,22 @@ def test_from_after_the_data_names_the_option(site, tmp_path, capsys):
     code, _, err = run(["audit", str(folder / "site.toml"), "--from", "2026-12-01",
                         "--out", str(tmp_path / "late")], capsys)
     assert code == 2 and err.startswith("error: --from: 2026-12-01 is after the last whole day")
+
+
+def test_a_threshold_below_the_noise_is_warned_on_the_terminal(site, tmp_path, capsys):
+    # a `threshold` typed below the stopped fan's noise makes every minute running; the audit
+    # still runs, but the terminal says why the component's off-schedule hours are so large
+    folder, _ = site
+    bad = tmp_path / "low"
+    bad.mkdir()
+    text = SITE.replace('sensor = "HX-0701"', 'sensor = "HX-0701"\nthreshold = 0.0001')
+    (bad / "site.toml").write_text(text.replace('"readings/*.csv"',
+                                                f'"{folder.as_posix()}/readings/*.csv"'))
+    (bad / "office.ics").write_bytes(CAL.encode())
+    code, stdout, err = run(["audit", str(bad / "site.toml"), "--out", str(bad / "out")], capsys)
+    assert code == 0, err
+    s = json.loads((bad / "out" / "summary.json").read_text())
+    sup = next(c for c in s["components"] if c["id"] == "AHU-7/supply")
+    assert sup["hours"]["running"] == sup["hours"]["period"]
+    assert any("below the lowest level group" in w for w in sup["warnings"])
+    assert "warning: AHU-7/supply: the configured threshold 0.0001 is below" in stdout

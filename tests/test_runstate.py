@@ -229,6 +229,24 @@ def test_configured_threshold_wins():
     assert synth.score_states(truth, cs.intervals, T0, end)["known_share_correct"] > 0.995
 
 
+def test_configured_threshold_outside_the_level_groups_warns():
+    # a level typed below the stopped machine's noise (or above its running level) silently
+    # turned every stopped minute into running (or every running one into off)
+    end = T0 + pd.Timedelta("7D")
+    rng = np.random.default_rng(14)
+    truth = synth.weekday_truth(T0, end, TZ, rng)
+    r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=T0, end=end)
+    low = runstate.classify_component(comp(threshold=0.0001), r, T0, end, GAP)
+    assert low.run_share > 0.9
+    assert len(low.threshold.warnings) == 1
+    assert "below the lowest level group" in low.threshold.warnings[0]
+    high = runstate.classify_component(comp(threshold=5.0), r, T0, end, GAP)
+    assert high.run_share == 0.0
+    assert "above the highest level group" in high.threshold.warnings[0]
+    good = runstate.classify_component(comp(threshold=0.3), r, T0, end, GAP)
+    assert good.threshold.warnings == ()
+
+
 def test_three_groups_without_siblings_warns_and_points_at_threshold():
     rng = np.random.default_rng(15)
     end = T0 + pd.Timedelta("14D")

@@ -81,10 +81,14 @@ def audit(
                         progress=_progress if interactive() else None)
     console = Console(width=None if sys.stdout.isatty() else 120, highlight=False)
     console.print(summary_table(result))
-    for w in result.warnings[:10]:
+    # the site's warnings, then each component's run-state warnings (a level that does not
+    # split its readings changes every figure of that component)
+    warnings = list(result.warnings) + [f"{c.key}: {w}" for c in result.components
+                                        for w in c.state_warnings]
+    for w in warnings[:10]:
         console.print(f"warning: {w}", markup=False, soft_wrap=True)
-    if len(result.warnings) > 10:
-        console.print(f"... and {len(result.warnings) - 10} more warnings in summary.json")
+    if len(warnings) > 10:
+        console.print(f"... and {len(warnings) - 10} more warnings in summary.json")
     console.print(f"{len(result.findings)} finding(s). Files written to {result.outdir}:",
                   markup=False, soft_wrap=True)
     for name in ("report.html", "summary.json", "daily.csv", "runs.csv", "findings.csv",
