@@ -149,6 +149,38 @@ def test_missing_file(tmp_path):
         load_site(tmp_path / "nope.toml")
 
 
+def test_site_file_saved_with_a_byte_order_mark_and_crlf_is_read(tmp_path):
+    # Windows editors save "UTF-8" with a byte order mark and CRLF line ends
+    p = write(tmp_path)
+    p.write_bytes(b"\xef\xbb\xbf" + BASE.replace("\n", "\r\n").encode())
+    assert load_site(p).name == "Harbour Lane Test Building"
+    # a key problem in such a file still names the right line
+    bad = BASE.replace('early_start = "2h"', 'earlystart = "2h"')
+    p.write_bytes(b"\xef\xbb\xbf" + bad.replace("\n", "\r\n").encode())
+    with pytest.raises(InputProblems) as exc:
+        load_site(p)
+    row = bad.splitlines().index('earlystart = "2h"') + 1
+    assert str(exc.value.problems[0]).startswith(f"{p}:{row}: schedule.earlystart:")
+
+
+def test_site_file_not_utf8_names_the_line(tmp_path):
+    p = write(tmp_path)
+    text = BASE.replace("Harbour Lane Test Building", "Harbour L\u00e5ne")
+    p.write_bytes(text.encode("latin-1"))
+    with pytest.raises(InputProblems) as exc:
+        load_site(p)
+    (msg,) = [str(e) for e in exc.value.problems]
+    row = text.splitlines().index('name = "Harbour L\u00e5ne"') + 1
+    assert msg == f"{p}:{row}: not UTF-8 text (byte 0xe5); save the site file as UTF-8"
+
+
+def test_site_file_that_is_a_folder(tmp_path):
+    with pytest.raises(InputProblems) as exc:
+        load_site(tmp_path)
+    want = f"{tmp_path}: is a folder; give the site file (TOML) inside it"
+    assert str(exc.value.problems[0]) == want
+
+
 def test_unknown_key_gets_a_did_you_mean_hint(tmp_path):
     one(tmp_path, BASE.replace('early_start = "2h"', 'earlystart = "2h"'),
         "schedule.earlystart", 'did you mean "early_start"')

@@ -71,11 +71,23 @@ def read_site_file(path: str | Path, *, require_readings: bool = True) -> Site:
 
     path = Path(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        raw = path.read_bytes()
     except FileNotFoundError:
         raise InputProblems([InputError("the site file does not exist", path=path)]) from None
-    except (OSError, UnicodeDecodeError) as e:
-        raise InputProblems([InputError(f"cannot read the site file ({e})", path=path)]) from None
+    except IsADirectoryError:
+        raise InputProblems([InputError("is a folder; give the site file (TOML) inside it",
+                                        path=path)]) from None
+    except OSError as e:
+        raise InputProblems([InputError(f"cannot read the site file ({e.strerror or e})",
+                                        path=path)]) from None
+    try:
+        # utf-8-sig: editors on Windows often start UTF-8 files with a byte order mark
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError as e:
+        line = raw[:e.start].count(b"\n") + 1
+        raise InputProblems([InputError(
+            f"not UTF-8 text (byte 0x{raw[e.start]:02x}); save the site file as UTF-8",
+            path=path, line=line)]) from None
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as e:
