@@ -113,7 +113,9 @@ def span_text(s: int, e: int, tz: str) -> str:
     a, b = local(s, tz), local(e, tz)
     if a.date() == b.date() or (b - a <= pd.Timedelta("24h") and b.hour == 0 and b.minute == 0
                                 and (b - pd.Timedelta("1ns")).date() == a.date()):
-        return f"from {a:%H:%M} to {b:%H:%M}"
+        # a span that ends at the midnight after its date ends at "midnight", not "00:00"
+        end = "midnight" if b.date() != a.date() else f"{b:%H:%M}"
+        return f"from {a:%H:%M} to {end}"
     return f"from {a:%a} {a:%H:%M} to {b:%a} {b:%H:%M}"
 
 

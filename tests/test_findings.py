@@ -295,6 +295,21 @@ def test_trip_in_occupied_hours_is_missed_without_energy():
     assert "from 10:42 to 14:57" in row["detail"]
 
 
+def test_missed_whole_day_reads_to_midnight_not_00_00():
+    # an all-day occupied event (a calendar day 00:00-24:00) with the unit off all day: the
+    # sentence said "from 00:00 to 00:00"
+    sched = pd.concat([office_schedule("2026-03-02", "2026-03-08", off={dt.date(2026, 3, 4)}),
+                       pd.DataFrame({"start": [loc("2026-03-04 00:00")],
+                                     "end": [loc("2026-03-05 00:00")],
+                                     "kind": ["occupied"], "source": ["all-day.ics"]})])
+    sched = sched.sort_values("start").reset_index(drop=True)
+    runs = daily_runs("2026-03-02", "2026-03-06", skip={dt.date(2026, 3, 4)})
+    found = run(states_frame(runs, "2026-03-02", "2026-03-08"), sched, "2026-03-02",
+                "2026-03-08")
+    row = assert_one(found, "missed", "2026-03-04", hours=24)
+    assert "on Wed 4 Mar 2026 from 00:00 to midnight," in row["detail"]
+
+
 def test_no_data_is_not_counted_as_missed():
     runs = sorted(daily_runs("2026-03-02", "2026-03-06", skip={dt.date(2026, 3, 4)})
                   + [("2026-03-04 06:00", "2026-03-04 10:00"),
