@@ -84,12 +84,20 @@ class UnitSchedule:
         return Intervals.from_frame(self.intervals[self.intervals["kind"] == kind])
 
 
-def _expand_all(calendars: CalendarList, tz, first, last, max_days) -> tuple[pd.DataFrame, list]:
+def _expand_all(calendars: CalendarList, tz, first, last, max_days,
+                occupied: bool = False) -> tuple[pd.DataFrame, list]:
     frames, warnings = [], []
     for path, cal in calendars:
         result = expand_calendar(cal, tz, first, last, path=path, max_days=max_days)
         frames.append(result.events)
         warnings.extend(result.warnings)
+        if occupied:
+            # a calendar program's "free" flag often marks a closure or a reminder; here every
+            # event is a period the unit must run, so say so rather than guess
+            warnings.extend(
+                f"{label}: is marked free (TRANSP:TRANSPARENT) but counts as occupied time, "
+                "like every event of an occupied calendar; if it marks a closure, put its "
+                "dates in [holidays] closed or cancel it" for label in result.free)
     frames = [f for f in frames if len(f)]
     if not frames:
         return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "source": [],
@@ -223,7 +231,7 @@ def expand_unit_schedule(
     off_dates = set(padded_off["date"]) if len(padded_off) else set()
 
     max_days = MAX_WINDOW_DAYS + 2 * pad
-    occ_events, warnings = _expand_all(occupied, tz, p_first, p_last, max_days)
+    occ_events, warnings = _expand_all(occupied, tz, p_first, p_last, max_days, occupied=True)
     alw_events, w2 = _expand_all(allowed, tz, p_first, p_last, max_days)
     warnings += w2
 

@@ -261,3 +261,19 @@ def test_long_event_starting_before_the_window_is_judged_by_its_real_start():
     # Easter Sunday 5th and Monday 6th are cut out whole; the 4th and 7th stay
     assert rows(s) == [("04-04 00:00", "04-05 00:00", "occupied", "Spring term"),
                        ("04-07 00:00", "04-08 00:00", "occupied", "Spring term")]
+
+
+def test_an_event_marked_free_is_occupied_with_a_warning_in_occupied_calendars_only():
+    # calendar programs write TRANSP:TRANSPARENT (RFC 5545 3.8.2.7, "free") for all-day notes
+    # such as "Building closed"; it stays occupied time (our rule), but the user is told
+    closed = ("SUMMARY:Building closed\nDTSTART;VALUE=DATE:20260302\nDTEND;VALUE=DATE:20260303\n"
+              "TRANSP:TRANSPARENT")
+    s = expand([cal(WEEKDAYS, closed)])
+    assert rows(s, "occupied") == [("03-02 00:00", "03-03 00:00", "occupied",
+                                    "Offices; Building closed")]
+    (w,) = s.warnings
+    assert w.startswith("occ.ics: event 'Building closed' (ev1@example.org): is marked free")
+    assert "[holidays] closed" in w
+    assert not expand([cal(WEEKDAYS)], allowed=[cal(closed)]).warnings
+    busy = closed.replace("TRANSPARENT", "OPAQUE")
+    assert not expand([cal(WEEKDAYS, busy)]).warnings
