@@ -140,6 +140,9 @@ def read_saved_audit(outdir: str | Path) -> SavedAudit:
                       schedule=frames["schedule.csv"])
 
 
+SCHEMA = 1   # the summary.json layout written by outputs/files.py
+
+
 def read_summary(path: Path) -> dict:
     """Read and check ``summary.json`` (the fields the report relies on)."""
     if not path.is_file():
@@ -153,6 +156,10 @@ def read_summary(path: Path) -> dict:
                          line=e.lineno) from None
     if not isinstance(data, dict):
         raise InputError("must hold a JSON object", path=path)
+    if data.get("schema") != SCHEMA:
+        # another layout (a later version's) would be drawn wrong without a word
+        raise InputError(f"{data.get('schema')!r} is not a layout this version reads ({SCHEMA}); "
+                         "audit the site again with this version", path=path, key="schema")
     for key, kind in (("site", dict), ("period", dict), ("components", list)):
         if not isinstance(data.get(key), kind):
             raise InputError(f"missing or not a{'n object' if kind is dict else ' list'}",
