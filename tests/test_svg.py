@@ -111,6 +111,24 @@ def test_daily_bars_heights_match_the_hours():
     assert "bar-missed" not in text
 
 
+def test_a_whole_missed_day_fits_above_the_date_labels():
+    # a 24 h missed day (an all-day occupied event, unit off) was drawn 24 h deep into room
+    # sized for 12 h, through the date labels
+    daily = pd.DataFrame({"date": [dt.date(2026, 8, 13), dt.date(2026, 8, 14)],
+                          "in_schedule_h": [11.0, 0.0], "in_allowance_h": [0.5, 0.0],
+                          "off_schedule_h": [0.0, 0.0], "missed_h": [0.0, 24.0]})
+    text = svg.daily_bars_svg(daily, first=dt.date(2026, 8, 13), last=dt.date(2026, 8, 14),
+                              title="t", pid="b")
+    k = 24 * svg.HOUR_PX * 0.6 / 24.0
+    (h,) = _rect_heights(text, "bar-missed")
+    assert h / k == pytest.approx(24.0, abs=0.02)
+    m = re.search(r'<path class="bar-missed"[^>]*\sd="M[\d.]+ ([\d.]+)', text)
+    bottom = float(m.group(1)) + h
+    labels = [float(y) for y in re.findall(r'<text[^>]*\sy="([\d.]+)"[^>]*>[^<]*(?:Aug|13|14)',
+                                           text)]
+    assert labels and min(labels) - 10 > bottom   # 10 px font: the label's top below the bar
+
+
 def test_titles_are_escaped():
     text = svg.daily_bars_svg(pd.DataFrame(columns=["date", "in_schedule_h", "in_allowance_h",
                                                     "off_schedule_h", "missed_h"]),

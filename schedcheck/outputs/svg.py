@@ -294,7 +294,9 @@ def daily_bars_svg(daily: pd.DataFrame, *, first: dt.date, last: dt.date, title:
     top = max(24.0, float((col["in_schedule_h"] + col["in_allowance_h"]
                            + col["off_schedule_h"]).max(initial=0)))
     missed_max = float(col["missed_h"].max(initial=0))
-    below = min(ph * 0.5, missed_max / top * ph) if missed_max > 0 else 0.0
+    # room below the axis for the longest missed bar at the same scale (a whole missed day
+    # is as long as a whole day running), so no bar runs into the date labels
+    below = missed_max / top * ph
     k = ph / top
     base_y = TOP + ph
     width = max(LEFT + ndays * cw + 8, MIN_W)
