@@ -318,8 +318,12 @@ def expand_calendar(
             raise InputError(f"cannot be expanded: {exc}", path=path,
                              key=event_label(core)) from None
     warnings = [f"{where}{note}" for note in notes]
-    if not cal.walk("VEVENT"):
+    vevents = cal.walk("VEVENT")
+    if not vevents:
         warnings.append(f"{where}the calendar holds no events (VEVENT)")
+    elif all(str(v.get("STATUS", "")).upper() == "CANCELLED" for v in vevents):
+        warnings.append(f"{where}every event of the calendar is cancelled (STATUS:CANCELLED), "
+                        "so it gives no periods")
     for (label, why), when in dropped.items():
         n = len(when)
         at = when[0].isoformat() + (f" and {n - 1} more" if n > 1 else "")

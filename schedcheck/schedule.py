@@ -46,6 +46,10 @@ _ZERO = pd.Timedelta(0)
 KINDS = ("occupied", "allowance", "allowed")
 INTERVAL_COLUMNS = ["start", "end", "kind", "source"]
 
+# a window of a week or more with no occupied period at all is worth a word (common practice,
+# no source: a building in use is occupied some time every week)
+EMPTY_WARN_DAYS = 7
+
 CalendarList = Sequence[tuple[str | Path, icalendar.Calendar]]
 
 
@@ -248,6 +252,11 @@ def expand_unit_schedule(
             allow_c, allowance, _allowance_labels(allowance, occ, early, late))),
         _frame(alw_c, "allowed", _label_merged(alw_c, _clip_pieces(alw_events, w0, w1))),
     ]
+    if occupied and not len(occ_c) and (last - first).days + 1 >= EMPTY_WARN_DAYS:
+        names = ", ".join(Path(str(p)).name for p, _ in occupied)
+        warnings.append(f"no occupied period from {first} to {last} in {names} (after public "
+                        "holidays and closures): all running in the window counts as "
+                        "off-schedule")
     intervals = pd.concat(frames, ignore_index=True)
     intervals = intervals.sort_values("start", kind="stable").reset_index(drop=True)
     intervals = intervals[INTERVAL_COLUMNS]

@@ -354,6 +354,23 @@ def test_calendar_without_events_is_a_warning():
                                                      "(VEVENT)"]
 
 
+def test_calendar_whose_every_event_is_cancelled_is_a_warning():
+    # a calendar program's export of a series someone cancelled: no periods, and say so
+    c = cal("DTSTART;TZID=Europe/Oslo:20260302T070000\nDTEND;TZID=Europe/Oslo:20260302T170000\n"
+            "RRULE:FREQ=DAILY\nSTATUS:CANCELLED")
+    res = expand_calendar(c, OSLO, D(2026, 3, 1), D(2026, 3, 31), path="gone.ics")
+    assert len(res.events) == 0
+    assert res.warnings == ["gone.ics: every event of the calendar is cancelled "
+                            "(STATUS:CANCELLED), so it gives no periods"]
+    # one cancelled occurrence of a live series is ordinary: no warning
+    c = cal("DTSTART;TZID=Europe/Oslo:20260302T070000\nDTEND;TZID=Europe/Oslo:20260302T170000\n"
+            "RRULE:FREQ=DAILY", "UID:ev0@example.org\nRECURRENCE-ID;TZID=Europe/Oslo:"
+            "20260303T070000\nDTSTART;TZID=Europe/Oslo:20260303T070000\n"
+            "DTEND;TZID=Europe/Oslo:20260303T170000\nSTATUS:CANCELLED")
+    res = expand_calendar(c, OSLO, D(2026, 3, 1), D(2026, 3, 31), path="live.ics")
+    assert len(res.events) == 29 and res.warnings == []   # 2-31 March less the 3rd
+
+
 def test_mistyped_tzid_gets_a_suggestion():
     c = cal("SUMMARY:Cleaners\nDTSTART;TZID=Europe/Olso:20260302T180000\n"
             "DTEND;TZID=Europe/Olso:20260302T200000")

@@ -277,3 +277,21 @@ def test_an_event_marked_free_is_occupied_with_a_warning_in_occupied_calendars_o
     assert not expand([cal(WEEKDAYS)], allowed=[cal(closed)]).warnings
     busy = closed.replace("TRANSPARENT", "OPAQUE")
     assert not expand([cal(WEEKDAYS, busy)]).warnings
+
+
+def test_a_week_without_any_occupied_period_is_a_warning():
+    # a calendar whose series ended last year leaves the unit with no occupied time at all:
+    # every running minute becomes off-schedule, so the schedule says why
+    old = cal("SUMMARY:Offices\nDTSTART;TZID=Europe/Oslo:20250106T070000\n"
+              "DTEND;TZID=Europe/Oslo:20250106T170000\n"
+              "RRULE:FREQ=WEEKLY;BYDAY=MO,TU,WE,TH,FR;UNTIL=20251219T235959Z")
+    s = expand([old], first=D(2026, 3, 2), last=D(2026, 3, 8))
+    assert len(s.intervals) == 0
+    assert s.warnings == ["no occupied period from 2026-03-02 to 2026-03-08 in occ.ics (after "
+                          "public holidays and closures): all running in the window counts as "
+                          "off-schedule"]
+    # a weekend on its own is unoccupied in most buildings: no warning for a short window
+    weekend = expand([cal(WEEKDAYS)], first=D(2026, 3, 7), last=D(2026, 3, 8))
+    assert len(weekend.intervals) == 0 and weekend.warnings == []
+    # a week with occupied time: no warning
+    assert expand([cal(WEEKDAYS)], first=D(2026, 3, 2), last=D(2026, 3, 8)).warnings == []
