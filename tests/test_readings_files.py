@@ -385,3 +385,25 @@ def test_a_single_axis_sensor_in_a_shared_file_leaves_its_other_columns_empty(tm
         load_readings(load_site(site_file(tmp_path)))
     (msg,) = errors_of(exc.value)
     assert msg.startswith(f"{tmp_path / 'readings' / 'r.csv'}:7: level x_rms is missing")
+
+
+def test_a_window_far_from_the_autumn_fold_neither_reads_nor_warns_about_it(tmp_path):
+    # EU summer time ends 2026-10-25 at 01:00 UTC (Directive 2000/84/EC, article 3). A read of
+    # a window in September kept the fold's rows (no single instant to judge them by), could
+    # not place them without neighbours and warned that 120 readings of the hour were lost.
+    sept = pd.date_range("2026-09-01T00:00:00Z", periods=600, freq="1min")
+    fold = pd.date_range("2026-10-24T23:00:00Z", "2026-10-25T03:00:00Z", freq="1min",
+                         inclusive="left")
+    truth = sept.append(fold)
+    d = pd.DataFrame({"timestamp": truth.tz_convert("Europe/Oslo").strftime("%Y-%m-%d %H:%M:%S"),
+                      "sensor": "S1", "x_rms": 1.0})
+    d.to_csv(tmp_path / "readings" / "r.csv", index=False)
+    site = load_site(site_file(tmp_path, sensors=("S1",), extra='naive_time = "local"'))
+    r = load_readings(site, pd.Timestamp("2026-09-01T00:00Z"), pd.Timestamp("2026-09-02T00:00Z"))
+    assert r.by_sensor["S1"]["timestamp"].tolist() == sept.tolist()
+    assert r.health["S1"].ambiguous_dropped == 0 and not r.warnings
+    # a window holding the fold still places every row
+    rf.forget_cached_read()
+    r = load_readings(site, pd.Timestamp("2026-10-24T22:00Z"), pd.Timestamp("2026-10-25T23:00Z"))
+    assert r.by_sensor["S1"]["timestamp"].tolist() == fold.tolist()
+    assert r.health["S1"].ambiguous_dropped == 0

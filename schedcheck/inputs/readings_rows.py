@@ -122,11 +122,16 @@ class Collector:
         if not good.any():
             return
         utc = tp.utc
+        # rows of a repeated autumn hour have two candidate instants: they are near the window
+        # when either is (a fold far outside it is not placed, so it cannot warn)
+        amb = tp.status == rd.AMBIGUOUS
+        lo = np.where(amb, tp.late, utc)
+        hi = np.where(amb, tp.early, utc)
         inside = np.ones(len(raw), bool)
         if self.start is not None:
-            inside &= (utc == rd.NAT) | (utc >= (self.start - MARGIN).value)
+            inside &= (lo == rd.NAT) | (lo >= (self.start - MARGIN).value)
         if self.end is not None:
-            inside &= (utc == rd.NAT) | (utc < (self.end + MARGIN).value)
+            inside &= (hi == rd.NAT) | (hi < (self.end + MARGIN).value)
         good &= inside
         order = (np.int64(file_idx) << ORDER_SHIFT) + positions.astype(np.int64)
         cols = {"order": order, "utc": utc}
