@@ -189,3 +189,22 @@ def test_a_sensor_that_starts_late_shows_the_silence_as_a_gap(tmp_path):
     h11, h12 = report.health
     assert (h11.gaps, h11.gap_hours) == (0, 0.0)
     assert h12.gaps == 1 and h12.gap_hours == pytest.approx(2.0)   # 00:00 to 02:00 UTC
+
+
+def test_schedule_warnings_show_in_check(tmp_path, capsys):
+    # a calendar whose only series is cancelled is valid iCalendar, yet the audit would find
+    # no occupied time at all: check says so before anyone runs the audit
+    p = make(tmp_path)
+    (tmp_path / "hours.ics").write_text(CAL.replace("SUMMARY:Office hours\r\n",
+                                                    "SUMMARY:Office hours\r\nSTATUS:CANCELLED\r\n"),
+                                        newline="")
+    code, out, err = run(capsys, p)
+    assert code == 0, err
+    assert f"warning: AHU-1: {tmp_path / 'hours.ics'}: every event of the calendar is cancelled" \
+        in err
+    report = check_site(p)
+    assert report.problems == [] and len(report.warnings) == 1
+    # a calendar that cannot be read is one problem, not also a schedule problem
+    (tmp_path / "hours.ics").write_text("Mon-Fri 07:00-17:00\n")
+    code, out, err = run(capsys, p)
+    assert code == 2 and len(error_lines(err)) == 1

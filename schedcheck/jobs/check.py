@@ -122,7 +122,8 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
         return report
     report.site = site
     report.calendars = site_calendars(site)
-    report.problems.extend(check_calendars(site, report.calendars))
+    calendar_problems = check_calendars(site, report.calendars)
+    report.problems.extend(calendar_problems)
     skip = skip_bad_rows or site.readings.skip_bad_rows
     try:
         # read with skipping so that the health table is complete; bad rows become problems
@@ -143,4 +144,22 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
     else:
         report.problems.extend(readings.bad_rows_problems)
         report.warnings.extend(w for w in readings.warnings if not w.startswith("skipped "))
+    if not calendar_problems:
+        report.warnings.extend(_schedule_warnings(site, readings, report))
     return report
+
+
+def _schedule_warnings(site: Site, readings, report: CheckReport) -> list[str]:
+    """The schedule's warnings (empty or cancelled calendars, events left out, no occupied
+    period) over the days the data covers, as the audit will show them."""
+    from schedcheck.jobs.common import data_span
+    from schedcheck.jobs.schedule import unit_schedules
+    from schedcheck.window import whole_days_covered
+
+    try:
+        first, last = whole_days_covered(*data_span(readings), site.timezone)
+        schedules = unit_schedules(site, first, last)
+    except InputError as e:
+        report.problems.extend(_problems(e))
+        return []
+    return [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings]
