@@ -70,8 +70,10 @@ def level_values(raw: pd.DataFrame, columns: tuple[str, ...]) -> tuple[pd.DataFr
         if pd.api.types.is_numeric_dtype(col):
             v = col.to_numpy(dtype=float, na_value=np.nan)
         else:
-            try:  # fast path: Arrow's number parser, all or nothing
-                v = pc.cast(arrow_text(col), pa.float64()).fill_null(np.nan).to_numpy(
+            try:  # fast path: Arrow's number parser, all or nothing; empty cells are null
+                text = arrow_text(col)
+                text = pc.if_else(pc.equal(text, ""), pa.scalar(None, text.type), text)
+                v = pc.cast(text, pa.float64()).fill_null(np.nan).to_numpy(
                     zero_copy_only=False)
             except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
                 v = pd.to_numeric(col, errors="coerce").to_numpy(dtype=float, na_value=np.nan)

@@ -11,6 +11,7 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+import pyarrow.compute as pc
 
 from schedcheck import readings as rd
 from schedcheck.errors import InputError
@@ -33,9 +34,11 @@ def _absent_levels(raw: pd.DataFrame, levels: tuple[str, ...], codes: np.ndarray
     empty = {}
     for c in levels:
         col = raw[c]
-        e = col.isna().to_numpy().copy()
-        if not pd.api.types.is_numeric_dtype(col):
-            e |= col.astype("str").str.strip().to_numpy() == ""
+        if pd.api.types.is_numeric_dtype(col):
+            e = col.isna().to_numpy()
+        else:
+            e = np.asarray(pc.fill_null(pc.equal(rd.arrow_text(col), ""), True).to_numpy(
+                zero_copy_only=False), dtype=bool)
         empty[c] = np.bincount(codes[~e], minlength=n_names) == 0
     rms = [c for c in levels if c in rd.RMS_COLUMNS]
     fills_rms = np.zeros(n_names, bool)
