@@ -284,6 +284,23 @@ def test_read_calendar_errors_name_the_file(tmp_path):
         read_calendar(tmp_path / "latin1.ics")
 
 
+def test_calendar_cut_short_names_the_unclosed_line(tmp_path):
+    # a download cut off before END:VCALENDAR said only "holds no VCALENDAR"
+    from schedcheck.inputs.calendar_files import read_calendar
+
+    whole = ("BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//t//EN\r\nBEGIN:VEVENT\r\nUID:a\r\n"
+             "DTSTART:20260302T070000\r\nDTEND:20260302T080000\r\nEND:VEVENT\r\n"
+             "END:VCALENDAR\r\n")
+    (tmp_path / "cut.ics").write_text(whole.removesuffix("END:VCALENDAR\r\n"), encoding="utf-8")
+    with pytest.raises(InputError) as exc:
+        read_calendar(tmp_path / "cut.ics")
+    assert str(exc.value) == (f"{tmp_path / 'cut.ics'}:1: BEGIN:VCALENDAR is never closed "
+                              "(no END:VCALENDAR); is the file cut short?")
+    (tmp_path / "cut2.ics").write_text(whole[:whole.index("END:VEVENT")], encoding="utf-8")
+    with pytest.raises(InputError, match=r"cut2\.ics:4: BEGIN:VEVENT is never closed"):
+        read_calendar(tmp_path / "cut2.ics")
+
+
 def test_read_calendar_merges_several_vcalendars(tmp_path):
     from schedcheck.inputs.calendar_files import read_calendar
 

@@ -51,7 +51,8 @@ def read_calendar(path: str | Path) -> icalendar.Calendar:
         raise InputError(f"is not a valid iCalendar file: {exc}", path=path) from None
     cals = [c for c in cals if c.name == "VCALENDAR"]
     if not cals:
-        raise InputError("holds no VCALENDAR", path=path)
+        line, what = _unbalanced(text)
+        raise InputError(what or "holds no VCALENDAR", path=path, line=line)
     if len(cals) == 1:
         return cals[0]
     merged = icalendar.Calendar()
@@ -61,6 +62,29 @@ def read_calendar(path: str | Path) -> icalendar.Calendar:
         for sub in c.subcomponents:
             merged.add_component(sub)
     return merged
+
+
+def _unbalanced(text: str) -> tuple[int | None, str | None]:
+    """The first BEGIN/END that does not pair up (a file cut short, a line deleted by hand):
+    its 1-based line and what is wrong, or (None, None)."""
+    stack: list[tuple[str, int]] = []
+    for i, raw in enumerate(text.splitlines(), start=1):
+        line = raw.strip().upper()
+        if line.startswith("BEGIN:"):
+            stack.append((line[6:], i))
+        elif line.startswith("END:"):
+            name = line[4:]
+            if not stack:
+                return i, f"END:{name} without a BEGIN:{name} before it"
+            if stack[-1][0] != name:
+                open_name, at = stack[-1]
+                return i, (f"END:{name} while BEGIN:{open_name} from line {at} is still open "
+                           f"(is an END:{open_name} missing?)")
+            stack.pop()
+    if stack:
+        name, at = stack[-1]
+        return at, (f"BEGIN:{name} is never closed (no END:{name}); is the file cut short?")
+    return None, None
 
 
 def _event_lines(path: Path) -> dict[str, int]:
