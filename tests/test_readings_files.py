@@ -71,6 +71,17 @@ def test_csv_gzip_and_glob_give_the_same_readings(tmp_path):
     assert r.health["S1"].median_interval == pd.Timedelta("1min")
 
 
+def test_gzip_file_cut_short_is_one_plain_error(tmp_path):
+    data = both(n=2000)
+    whole = gzip.compress(data.to_csv(index=False).encode())
+    (tmp_path / "readings" / "cut.csv.gz").write_bytes(whole[: len(whole) // 2])
+    with pytest.raises(InputProblems) as exc:
+        load_readings(load_site(site_file(tmp_path)))
+    assert errors_of(exc.value) == [f"{tmp_path / 'readings' / 'cut.csv.gz'}: the compressed "
+                                    "data ends early: the file is cut short (copy or download "
+                                    "it again)"]
+
+
 def test_column_mapping_semicolons_and_decimal_commas(tmp_path):
     d = minutes("S1")
     export = pd.DataFrame({"Time": d["timestamp"], "Device": d["sensor"],

@@ -273,7 +273,10 @@ def _read_file(col: Collector, site: Site, path: Path, i: int) -> None:
                              path=path)
     except InputError as e:
         col.problems.append(e)
-    except (UnicodeDecodeError, EOFError, OSError, pd.errors.ParserError) as e:
+    except EOFError:
+        col.problems.append(InputError("the compressed data ends early: the file is cut short "
+                                       "(copy or download it again)", path=path))
+    except (UnicodeDecodeError, OSError, pd.errors.ParserError) as e:
         col.problems.append(InputError(f"cannot read the file ({type(e).__name__}: {e})",
                                        path=path))
 
