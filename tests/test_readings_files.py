@@ -82,6 +82,21 @@ def test_gzip_file_cut_short_is_one_plain_error(tmp_path):
                                     "it again)"]
 
 
+def test_every_row_bad_names_the_bad_rows_not_only_the_missing_sensors(tmp_path):
+    # epoch milliseconds: every row is bad; the commands that first find the data's range
+    # (states, check, schedule) skip bad rows and said only "no readings for any sensor"
+    d = both()
+    d["timestamp"] = pd.to_datetime(d["timestamp"]).dt.as_unit("ms").astype("int64")
+    d.to_csv(tmp_path / "readings" / "ms.csv", index=False)
+    site = load_site(site_file(tmp_path))
+    with pytest.raises(InputProblems) as exc:
+        data_time_range(site)
+    (msg,) = errors_of(exc.value)
+    assert "no readings for any configured sensor (S1, S2); 120 bad rows were skipped, the " \
+           f"first: {tmp_path / 'readings' / 'ms.csv'}:2: timestamp '1772409600000'" in msg
+    assert "milliseconds?" in msg
+
+
 def test_column_mapping_semicolons_and_decimal_commas(tmp_path):
     d = minutes("S1")
     export = pd.DataFrame({"Time": d["timestamp"], "Device": d["sensor"],

@@ -324,6 +324,10 @@ def _assemble(col: Collector, site: Site, files, start, end, skip: bool,
                 if start is not None and end is not None else "")
         seen = (f"; the files hold other sensors: {', '.join(sorted(col.unconfigured)[:8])}"
                 if col.unconfigured else "")
+        if col.bad_total and col.bad_examples:
+            # every row was unreadable: that, not a missing sensor, is what to fix
+            rows = "1 bad row was" if col.bad_total == 1 else f"{col.bad_total:,} bad rows were"
+            seen += f"; {rows} skipped, the first: {col.bad_examples[0]}"
         raise InputProblems([InputError(
             f"no readings for any configured sensor ({', '.join(col.owner)}){span}{seen}",
             path=site.path, key="readings.files")])
