@@ -285,7 +285,10 @@ def test_cli_default_period_is_the_job_default():
         (["--change", "2026-02-02", "--before", "3"], "--before"),
         (["--change", "2026-02-02", "--after", "0"], "--after"),
         (["--change", "2026-02-02", "--format", "xml"], "--format"),
-        (["--change", "2025-06-01"], "no readings"),
+        # a change date outside the readings names --change and the days the readings cover
+        (["--change", "2025-06-01"], "error: --change: no day of readings before 2025-06-01 "
+                                     "(the readings cover 2026-01-12 to 2026-02-22)"),
+        (["--change", "2026-02-23"], "error: --change: no day of readings from 2026-02-23"),
         (["--change", "2026-01-13"], "too few days"),
     ],
 )

@@ -258,7 +258,7 @@ def compare_site(
     CompareResult
     """
     from schedcheck.jobs.audit import audit_result
-    from schedcheck.jobs.common import open_site
+    from schedcheck.jobs.common import data_time_range, open_site
 
     for name, n in (("--before", before), ("--after", after)):
         if int(n) != n or n < MIN_DAYS:
@@ -266,6 +266,15 @@ def compare_site(
                              key=name)
     before, after = int(before), int(after)
     site = open_site(site_path)
+    # a change date outside the readings otherwise failed as "no readings for any sensor"
+    # between two UTC instants, which did not point at --change (the files are read once:
+    # the windowed read below reuses this whole read)
+    d0, d1 = data_time_range(site)
+    if not d0 < change <= d1:
+        side = "before" if change <= d0 else "from"
+        raise InputError(f"no day of readings {side} {change} (the readings cover {d0} to "
+                         f"{d1}); choose a date after the first day and on or before the last",
+                         key="--change")
     first = change - dt.timedelta(days=before)
     last = change + dt.timedelta(days=after - 1)
     result = audit_result(site, first, last, skip_bad_rows=skip_bad_rows, progress=progress)
