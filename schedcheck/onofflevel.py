@@ -304,7 +304,14 @@ def choose_threshold(
         p_low, n_low = _moving_share(low, sibling_moving)
         three = (f"three level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}, "
                  f"{10**med[2]:.3g})")
-        if med[1] <= F:
+        src = "learned"
+        if med[2] <= F:
+            # the scatter of a stopped machine's background can split into groups too
+            b, src, lo_med, hi_med = F, "floor", med[2], np.nan
+            reason = f"{three} all lie below the floor level {floor:g}: never running"
+            warn.append("never running by the floor level; set `threshold` if this machine "
+                        "does run")
+        elif med[1] <= F:
             b, lo_med, hi_med = hi_b, med[1], med[2]
             reason = (f"{three}; the middle group lies below the floor level {floor:g}: "
                       "counted as off")
@@ -324,7 +331,6 @@ def choose_threshold(
             warn.append(f"{three}: cannot tell whether the middle group is running or vibration "
                         f"carried from a neighbour ({why}); counted as running. If it is carried, "
                         f"set `threshold` to about {10 ** ((med[1] + med[2]) / 2):.3g}")
-        src = "learned"
     if src == "learned":
         b = th.valley_level(L, lo_med, hi_med)
     on, off = _band(b, lo_med, hi_med)

@@ -395,3 +395,33 @@ def test_a_stuck_sensor_is_named():
     r = pd.DataFrame({"timestamp": ts, "z_rms": 0.0})
     cs = runstate.classify_component(comp(), r, T0, end, GAP)
     assert cs.run_share == 0.0 and any("stuck" in w for w in cs.threshold.warnings)
+
+
+def test_three_level_groups_all_below_the_floor_are_never_running():
+    # three groups of background levels, all far below the 0.2 mm/s floor (a stopped machine
+    # whose sensor steps between ranges): before, the level went between the top two groups
+    # and the top background group counted as running
+    from schedcheck.onofflevel import choose_threshold
+
+    rng = np.random.default_rng(3)
+    L = np.concatenate([rng.normal(np.log10(m), 0.01, 500) for m in (0.02, 0.03, 0.04)])
+    t = choose_threshold(L, configured=None, floor=0.2)
+    assert len(t.groups) == 3 and t.source == "floor" and t.level == pytest.approx(0.2)
+    assert "never running" in t.reason
+
+
+@pytest.mark.parametrize("seed", range(12))
+def test_one_day_of_running_or_stopped_stays_one_group(seed):
+    # one day (New York spring change, 23 h, about 1,380 readings) of a single-axis sensor:
+    # sampling noise in 128 histogram bins made dips as deep as a real valley, so a fan that
+    # ran all day was cut into two or three groups and shown stopping for 3 to 7 hours
+    t0 = pd.Timestamp("2026-03-08 00:00", tz="America/New_York").tz_convert("UTC")
+    end = pd.Timestamp("2026-03-09 00:00", tz="America/New_York").tz_convert("UTC")
+    for runs, state in (([(t0, end)], "run"), ([], "off")):
+        rng = np.random.default_rng(seed)
+        truth = synth.truth_from_runs(runs, t0, end)
+        r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=t0, end=end,
+                                         axes="z", peaks=False)
+        cs = runstate.classify_component(comp(role="return_fan"), r, t0, end, GAP)
+        assert len(cs.threshold.groups) == 1 and cs.threshold.source == "floor"
+        assert set(cs.intervals["state"]) == {state}
