@@ -97,3 +97,20 @@ def test_valley_level_finds_the_lowest_point_between_groups():
     # no empty stretch: the sparsest place (a normal dip at 0.6 between two bumps)
     w = _mix(rng, [(0.0, 0.2, 20000), (1.0, 0.2, 20000)])
     assert th.valley_level(w, 0.0, 1.0) == pytest.approx(0.5, abs=0.05)
+
+
+@pytest.mark.parametrize("seed", range(20))
+def test_one_normal_group_of_a_day_of_readings_is_not_split(seed):
+    # 1,400 draws of one normal group (a day of one-a-minute levels): before, thinly filled
+    # 128-bin histograms let about half of such samples pass the valley test
+    v = np.random.default_rng(seed).normal(0.0, 0.1, 1400)
+    assert th.level_groups(v).count == 1
+
+
+def test_a_falling_tail_is_no_valley():
+    # cut a normal group far out in its upper tail: the tail falls steadily to the far median,
+    # which is the lowest point between the medians but no dip (ratio 1, not a small number)
+    v = np.random.default_rng(0).normal(0.0, 1.0, 200_000)
+    b = 1.5
+    left, right = float(np.median(v[v <= b])), float(np.median(v[v > b]))
+    assert th.valley_ratio(v, b, left, right) > th.MAX_VALLEY
