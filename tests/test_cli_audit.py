@@ -245,3 +245,28 @@ def test_a_threshold_below_the_noise_is_warned_on_the_terminal(site, tmp_path, c
     assert sup["hours"]["running"] == sup["hours"]["period"]
     assert any("below the lowest level group" in w for w in sup["warnings"])
     assert "warning: AHU-7/supply: the configured threshold 0.0001 is below" in stdout
+
+
+def test_one_reading_with_a_reset_clock_is_named_not_blamed_on_to(site, tmp_path, capsys):
+    # a sensor whose clock reset to 2000-01-01 for one reading stretched the default window
+    # over 26 years and failed as "--to: the window ... is 9,570 days long" with no --to given
+    folder, _ = site
+    stray = tmp_path / "stray"
+    (stray / "readings").mkdir(parents=True)
+    (stray / "site.toml").write_text(SITE)
+    (stray / "office.ics").write_bytes(CAL.encode())
+    text = (folder / "readings" / "annex.csv").read_text()
+    first_row = text.splitlines()[1].split(",")
+    stray_row = ",".join(["2000-01-01T00:00:07Z", "HX-0702", *first_row[2:]])
+    (stray / "readings" / "annex.csv").write_text(text + stray_row + "\n")
+    want = (f"error: {stray / 'site.toml'}: readings.files: the readings span 2000-01-01 to "
+            "2026-11-04 (9,805 days; one window covers at most 1,100): the earliest is sensor "
+            "HX-0702 at 2000-01-01 00:00:07Z")
+    for args in (["audit", "--out", str(stray / "out")], ["states"], ["schedule"], ["check"]):
+        code, _, err = run([args[0], str(stray / "site.toml"), *args[1:]], capsys)
+        assert code == 2 and err.startswith(want), (args, err)
+        assert "--to:" not in err and "remove a stray time stamp" in err
+    # with the window given, the stray reading is simply outside it
+    code, _, err = run(["audit", str(stray / "site.toml"), "--from", str(FIRST), "--to",
+                        str(LAST), "--out", str(stray / "out")], capsys)
+    assert code == 0, err

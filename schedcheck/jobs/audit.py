@@ -38,11 +38,10 @@ def audit_window(site: Site, first: dt.date | None, last: dt.date | None, readin
     ``readings`` (all readings of the site, unwindowed) saves reading the files again.
     """
     if first is None or last is None:
-        from schedcheck.jobs.common import data_span, data_time_range
-        from schedcheck.window import whole_days_covered
+        from schedcheck.jobs.common import data_days, data_time_range
 
         if readings is not None:
-            d0, d1 = whole_days_covered(*data_span(readings), site.timezone)
+            d0, d1 = data_days(readings, site)
         else:
             d0, d1 = data_time_range(site)
         if first is not None and first > d1:

@@ -152,12 +152,11 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
 def _schedule_warnings(site: Site, readings, report: CheckReport) -> list[str]:
     """The schedule's warnings (empty or cancelled calendars, events left out, no occupied
     period) over the days the data covers, as the audit will show them."""
-    from schedcheck.jobs.common import data_span
+    from schedcheck.jobs.common import data_days
     from schedcheck.jobs.schedule import unit_schedules
-    from schedcheck.window import whole_days_covered
 
     try:
-        first, last = whole_days_covered(*data_span(readings), site.timezone)
+        first, last = data_days(readings, site)
         schedules = unit_schedules(site, first, last)
     except InputError as e:
         report.problems.extend(_problems(e))

@@ -59,7 +59,36 @@ def data_span(readings: Readings) -> tuple[pd.Timestamp, pd.Timestamp]:
     return min(firsts), max(lasts)
 
 
-def data_time_range(site: Site) -> tuple[dt.date, dt.date]:
+class DataSpanError(InputError):
+    """The readings span more days than one window may cover (often one stray time stamp)."""
+
+
+def data_days(readings: Readings, site: Site, *, limit: bool = True) -> tuple[dt.date, dt.date]:
+    """The local dates wholly covered by ``readings`` (both inclusive).
+
+    With ``limit``, a span longer than one window may be (usually one reading with a reset
+    sensor clock, years away from the rest) is a :class:`DataSpanError` that names the
+    earliest and latest readings, rather than a complaint about a --to nobody gave.
+    """
+    from schedcheck.calendars import MAX_WINDOW_DAYS
+
+    first, last = data_span(readings)
+    d0, d1 = whole_days_covered(first, last, site.timezone)
+    days = (d1 - d0).days + 1
+    if limit and days > MAX_WINDOW_DAYS:
+        health = readings.health
+        s0 = min((h for h in health.values() if h.first is not None), key=lambda h: h.first)
+        s1 = max((h for h in health.values() if h.last is not None), key=lambda h: h.last)
+        raise DataSpanError(
+            f"the readings span {d0} to {d1} ({days:,} days; one window covers at most "
+            f"{MAX_WINDOW_DAYS:,}): the earliest is sensor {s0.sensor} at "
+            f"{first:%Y-%m-%d %H:%M:%S}Z, the latest sensor {s1.sensor} at "
+            f"{last:%Y-%m-%d %H:%M:%S}Z; remove a stray time stamp (a reset sensor clock?) or "
+            "give --from and --to", path=site.path, key="readings.files")
+    return d0, d1
+
+
+def data_time_range(site: Site, *, limit: bool = True) -> tuple[dt.date, dt.date]:
     """The default audit window: the local dates wholly covered by the data (both inclusive).
 
     Data that starts within a minute after local midnight still counts the day as whole
@@ -70,5 +99,4 @@ def data_time_range(site: Site) -> tuple[dt.date, dt.date]:
     from schedcheck.inputs.readings_files import read_readings
 
     # the whole read is kept for the caller's next load_readings of its window
-    first, last = data_span(read_readings(site, skip_bad_rows=True, keep=True))
-    return whole_days_covered(first, last, site.timezone)
+    return data_days(read_readings(site, skip_bad_rows=True, keep=True), site, limit=limit)

@@ -269,7 +269,7 @@ def compare_site(
     # a change date outside the readings otherwise failed as "no readings for any sensor"
     # between two UTC instants, which did not point at --change (the files are read once:
     # the windowed read below reuses this whole read)
-    d0, d1 = data_time_range(site)
+    d0, d1 = data_time_range(site, limit=False)   # the window is the options', not this
     if not d0 < change <= d1:
         side = "before" if change <= d0 else "from"
         raise InputError(f"no day of readings {side} {change} (the readings cover {d0} to "

@@ -85,9 +85,13 @@ def _default_window(site: Site) -> tuple[dt.date, dt.date, str]:
     except ImportError:  # pragma: no cover - the helper is part of the package
         data_time_range = None
     if data_time_range is not None and site.readings.files:
+        from schedcheck.jobs.common import DataSpanError
+
         try:
             first, last = data_time_range(site)
             return first, last, "data"
+        except DataSpanError:
+            raise   # readings exist but span too long: say so, do not show another month
         except InputError:
             pass   # no readings yet: fall back to this month
     today = dt.datetime.now(ZoneInfo(site.timezone)).date()
