@@ -75,7 +75,8 @@ class ReadingsSettings:
     unit: str = "mm/s"                        # label only
     naive_time: str | None = None             # None, "local" or "utc"
     max_gap: pd.Timedelta = pd.Timedelta("5min")
-    columns: dict[str, str] = field(default_factory=dict)   # our name -> name in the file
+    # our name -> name in the files, or names tried in order (exports that differ per gateway)
+    columns: dict[str, str | tuple[str, ...]] = field(default_factory=dict)
     skip_bad_rows: bool = False
 
 

@@ -433,3 +433,26 @@ def test_a_window_far_from_the_autumn_fold_neither_reads_nor_warns_about_it(tmp_
     r = load_readings(site, pd.Timestamp("2026-10-24T22:00Z"), pd.Timestamp("2026-10-25T23:00Z"))
     assert r.by_sensor["S1"]["timestamp"].tolist() == fold.tolist()
     assert r.health["S1"].ambiguous_dropped == 0
+
+
+def test_column_names_listed_in_order_read_two_exports_with_different_names(tmp_path):
+    # a CSV gateway writes Time/Device/VelX; a second one Parquet with ts_utc/node/vx
+    a = minutes("S1").rename(columns={"timestamp": "Time", "sensor": "Device", "x_rms": "VelX"})
+    a.drop(columns="y_rms").to_csv(tmp_path / "readings" / "east.csv", index=False)
+    b = minutes("S2", seed=1)
+    b = pd.DataFrame({"ts_utc": pd.to_datetime(b["timestamp"], utc=True), "node": b["sensor"],
+                      "vx": b["x_rms"]})
+    pq.write_table(pa.Table.from_pandas(b, preserve_index=False),
+                   tmp_path / "readings" / "hall.parquet")
+    cols = ('columns = { timestamp = ["Time", "ts_utc"], sensor = ["Device", "node"], '
+            'x_rms = ["VelX", "vx"] }')
+    r = load_readings(load_site(site_file(tmp_path, extra=cols)))
+    assert r.by_sensor["S1"]["x_rms"].tolist() == a["VelX"].tolist()
+    assert r.by_sensor["S2"]["x_rms"].tolist() == b["vx"].tolist()
+    # a file with none of the names is refused, naming them all
+    rf.forget_cached_read()
+    a.rename(columns={"Time": "When"}).to_csv(tmp_path / "readings" / "east.csv", index=False)
+    with pytest.raises(InputProblems) as exc:
+        load_readings(load_site(site_file(tmp_path, extra=cols)))
+    (msg,) = errors_of(exc.value)
+    assert "east.csv:1: no column 'Time' or 'ts_utc' (mapped from timestamp" in msg

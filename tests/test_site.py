@@ -328,6 +328,23 @@ def test_column_mapping_keys_and_values(tmp_path):
     assert any(": readings.columns.x_rms: column 'Time' is already used" in o for o in out)
 
 
+def test_column_mapping_may_list_names_tried_in_order(tmp_path):
+    # two gateways' exports with different names for the same column
+    text = BASE.replace('max_gap = "4min"', 'max_gap = "4min"\n'
+                        'columns = { timestamp = ["Time", "ts_utc"], sensor = "Device" }')
+    site = load_site(write(tmp_path, text))
+    assert site.readings.columns == {"timestamp": ("Time", "ts_utc"), "sensor": "Device"}
+    bad = BASE.replace('max_gap = "4min"', 'max_gap = "4min"\n'
+                       'columns = { timestamp = ["Time", "ts"], sensor = ["Dev", "ts"], '
+                       'x_rms = ["VX", 3], y_rms = [] }')
+    out = problems(tmp_path, bad)
+    assert any(": readings.columns.sensor: column 'ts' is already used for timestamp" in o
+               for o in out)
+    assert any(": readings.columns.x_rms: must be the column name in the file, or a list" in o
+               for o in out)
+    assert any(": readings.columns.y_rms: must be the column name" in o for o in out)
+
+
 def test_role_must_be_one_of_the_roles(tmp_path):
     one(tmp_path, BASE.replace('role = "heat_wheel"', 'role = "wheel"'),
         "unit[AHU-1].component[wheel].role", "'wheel' is not allowed", "heat_wheel")

@@ -58,16 +58,18 @@ def _mapping(site: Site, have: list[str], path: Path, line: int | None
     cols = site.readings.columns
     mapping: dict[str, str] = {}
     for ours in ("timestamp", "sensor"):
-        theirs = cols.get(ours, ours)
-        if theirs not in have:
+        names = _names(cols.get(ours, ours))
+        theirs = next((n for n in names if n in have), None)
+        if theirs is None:
             via = f" (mapped from {ours} in [readings] columns)" if ours in cols else ""
-            raise InputError(f"no column {theirs!r}{via}; the file has: {', '.join(have)}"
+            wanted = " or ".join(repr(n) for n in names)
+            raise InputError(f"no column {wanted}{via}; the file has: {', '.join(have)}"
                              + _mapping_hint(cols, have), path=path, line=line)
         mapping[ours] = theirs
     levels = []
     for ours in LEVEL_COLUMNS:
-        theirs = cols.get(ours, ours)
-        if theirs in have:
+        theirs = next((n for n in _names(cols.get(ours, ours)) if n in have), None)
+        if theirs is not None:
             mapping[ours] = theirs
             levels.append(ours)
     if not any(c in levels for c in rd.RMS_COLUMNS):
@@ -77,7 +79,12 @@ def _mapping(site: Site, have: list[str], path: Path, line: int | None
     return mapping, tuple(levels)
 
 
-def _mapping_hint(cols: dict[str, str], have: list[str]) -> str:
+def _names(v: str | tuple[str, ...]) -> tuple[str, ...]:
+    """The file column names configured for one of ours, in the order they are tried."""
+    return (v,) if isinstance(v, str) else tuple(v)
+
+
+def _mapping_hint(cols: dict, have: list[str]) -> str:
     """A ``columns = {...}`` line for columns whose names differ from ours only in case."""
     lower = {h.strip().lower(): h for h in have}
     pairs = dict(cols)
@@ -86,7 +93,8 @@ def _mapping_hint(cols: dict[str, str], have: list[str]) -> str:
             pairs[ours] = lower[ours]
     if pairs == cols:
         return ""
-    body = ", ".join(f'{k} = "{v}"' for k, v in pairs.items())
+    body = ", ".join(f"{k} = " + ", ".join(f'"{x}"' for x in _names(v)).join(
+        ("", "") if isinstance(v, str) else ("[", "]")) for k, v in pairs.items())
     return f"; add to [readings] in the site file: columns = {{ {body} }}"
 
 

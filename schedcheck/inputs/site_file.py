@@ -322,7 +322,7 @@ class _Validator:
         unit = self.string(r, "unit", "readings.unit", default="mm/s")
         naive = self.string(r, "naive_time", "readings.naive_time", choices=("local", "utc"))
         max_gap = self.duration(r, "max_gap", "readings.max_gap", pd.Timedelta("5min"), True)
-        columns: dict[str, str] = {}
+        columns: dict[str, str | tuple[str, ...]] = {}
         cols = r.get("columns", {})
         if not isinstance(cols, dict):
             self.err("readings.columns", "must be a table such as { timestamp = \"Time\" }")
@@ -330,15 +330,20 @@ class _Validator:
             seen: dict[str, str] = {}
             for ours, theirs in cols.items():
                 k = f"readings.columns.{ours}"
+                # one name, or a list of names tried in order (files from different exports)
+                names = theirs if isinstance(theirs, list) and theirs else [theirs]
                 if ours not in READING_COLUMNS:
                     self.err(k, "unknown column" + _hint(ours, READING_COLUMNS))
-                elif not isinstance(theirs, str) or not theirs.strip():
-                    self.err(k, f"must be the column name in the file, not {theirs!r}")
-                elif theirs in seen:
-                    self.err(k, f"column {theirs!r} is already used for {seen[theirs]}")
+                elif not all(isinstance(t, str) and t.strip() for t in names):
+                    self.err(k, "must be the column name in the file, or a list of names, not "
+                             f"{theirs!r}")
+                elif any(t in seen for t in names) or len(set(names)) < len(names):
+                    t = next((t for t in names if t in seen), None)
+                    self.err(k, f"column {t!r} is already used for {seen[t]}" if t else
+                             "a name is listed twice")
                 else:
-                    seen[theirs] = ours
-                    columns[ours] = theirs
+                    seen.update((t, ours) for t in names)
+                    columns[ours] = theirs if isinstance(theirs, str) else tuple(names)
         skip = self.boolean(r, "skip_bad_rows", "readings.skip_bad_rows")
         return ReadingsSettings(files=tuple(files or ()), unit=unit, naive_time=naive,
                                 max_gap=max_gap, columns=columns, skip_bad_rows=skip)
