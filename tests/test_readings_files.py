@@ -147,6 +147,13 @@ def test_naive_timestamps_refused_naming_file_and_line(tmp_path):
     assert msg.startswith(f"{tmp_path / 'readings' / 'r.csv'}:2: timestamp "
                           "'2026-03-02T00:00:00' has no UTC offset (59 more rows like it)")
     assert 'naive_time = "local"' in msg
+    # large counts are written with thousands separators, like the other row counts
+    minutes("S1", n=1500).assign(timestamp=lambda f: f["timestamp"].str.rstrip("Z")).to_csv(
+        tmp_path / "readings" / "r.csv", index=False)
+    rf.forget_cached_read()
+    with pytest.raises(InputProblems) as exc:
+        load_readings(load_site(site_file(tmp_path)))
+    assert "(1,499 more rows like it)" in errors_of(exc.value)[0]
 
 
 def test_naive_local_time_through_the_autumn_fold_in_a_file(tmp_path):

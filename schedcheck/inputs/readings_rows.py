@@ -185,7 +185,7 @@ class Collector:
         out = list(self.problems)
         for first, n in self.naive_by_file.values():
             where, text = first
-            more = f" ({n - 1} more rows like it)" if n > 1 else ""
+            more = f" ({n - 1:,} more rows like it)" if n > 1 else ""
             out.append(InputError(
                 f"timestamp {str(text)!r} has no UTC offset{more}; add Z or an offset in the "
                 "export, or set naive_time = \"local\" or \"utc\" in [readings] of the site file",
