@@ -97,6 +97,37 @@ def test_every_row_bad_names_the_bad_rows_not_only_the_missing_sensors(tmp_path)
     assert "milliseconds?" in msg
 
 
+def test_a_level_column_named_twice_in_the_header_is_refused(tmp_path):
+    # pandas reads the first and renames the second 'x_rms.1': one of them was dropped silently
+    d = both()
+    d["z_rms"] = d["y_rms"]
+    d.to_csv(tmp_path / "readings" / "r.csv", index=False)
+    text = (tmp_path / "readings" / "r.csv").read_text().replace("z_rms", "x_rms", 1)
+    (tmp_path / "readings" / "r.csv").write_text(text)
+    with pytest.raises(InputProblems) as exc:
+        load_readings(load_site(site_file(tmp_path)))
+    assert errors_of(exc.value) == [f"{tmp_path / 'readings' / 'r.csv'}:1: column 'x_rms' "
+                                    "appears 2 times in the header (columns 3, 5); rename the "
+                                    "one not meant"]
+    # a repeated column we do not read is no concern
+    d = both()[["timestamp", "sensor", "x_rms"]].assign(a="", b="")
+    d.to_csv(tmp_path / "readings" / "r.csv", index=False, header=False)
+    text = (tmp_path / "readings" / "r.csv").read_text()
+    (tmp_path / "readings" / "r.csv").write_text("timestamp,sensor,x_rms,note,note\n" + text)
+    assert load_readings(load_site(site_file(tmp_path))).health["S1"].count == 60
+
+
+def test_sensor_id_differing_only_in_case_gets_a_hint(tmp_path):
+    d = both()
+    d["sensor"] = d["sensor"].replace({"S1": "s1"})
+    d.to_csv(tmp_path / "readings" / "r.csv", index=False)
+    r = load_readings(load_site(site_file(tmp_path)))
+    assert r.health["S1"].count == 0
+    assert any(w.startswith("sensor S1 (AHU-1/supply) has no readings") and
+               "the files have sensor 's1' (ids must match exactly, case included)" in w
+               for w in r.warnings)
+
+
 def test_column_mapping_semicolons_and_decimal_commas(tmp_path):
     d = minutes("S1")
     export = pd.DataFrame({"Time": d["timestamp"], "Device": d["sensor"],

@@ -106,6 +106,7 @@ def _read_csv(col: Collector, site: Site, path: Path, file_idx: int) -> tuple[st
     except pd.errors.EmptyDataError:
         raise InputError("the file is empty (no header line)", path=path) from None
     mapping, levels = _mapping(site, [str(c) for c in head.columns], path, 1)
+    _refuse_duplicate_columns(path, sep, comp, set(mapping.values()))
     inverse = {v: k for k, v in mapping.items()}
     # Only the needed columns are read (usecols); a blank line stays a row (skip_blank_lines
     # off) so that file line = row index + 2 (header on line 1). Quoted fields holding line
@@ -118,6 +119,20 @@ def _read_csv(col: Collector, site: Site, path: Path, file_idx: int) -> tuple[st
         col.take(chunk.rename(columns=inverse), path, file_idx, levels, lines, lines,
                  comma_decimal=sep == ";")
     return levels
+
+
+def _refuse_duplicate_columns(path: Path, sep: str, comp: str | None, used: set[str]) -> None:
+    """A column we read whose name appears twice in the header: which one is meant is unknown
+    (the parser would silently take the first and rename the other)."""
+    raw = pd.read_csv(path, header=None, nrows=1, sep=sep, compression=comp,
+                      encoding="utf-8-sig", dtype=str, keep_default_na=False)
+    names = [str(x) for x in raw.iloc[0].tolist()] if len(raw) else []
+    for name in names:
+        at = [i + 1 for i, n in enumerate(names) if n == name]
+        if name in used and len(at) > 1:
+            raise InputError(f"column {name!r} appears {len(at)} times in the header (columns "
+                             f"{', '.join(map(str, at))}); rename the one not meant",
+                             path=path, line=1)
 
 
 def _read_parquet(col: Collector, site: Site, path: Path, file_idx: int) -> tuple[str, ...]:
@@ -323,9 +338,12 @@ def _assemble(col: Collector, site: Site, files, start, end, skip: bool,
         h.component = col.owner[s]
         h.bad_rows = col.bad_by_sensor.get(s, 0)
         if h.count == 0:
+            near = [u for u in col.unconfigured if u.strip().casefold() == s.strip().casefold()]
             warns.append(f"sensor {s} ({col.owner[s]}) has no readings"
                          + (" in the window" if start is not None else "")
-                         + "; its time is counted as no data")
+                         + "; its time is counted as no data"
+                         + (f"; the files have sensor {near[0]!r} (ids must match exactly, "
+                            "case included)" if near else ""))
         by_sensor[s], health[s] = frame, h
     if col.owner and all(h.count == 0 for h in health.values()):
         span = (f" between {start:%Y-%m-%d %H:%M}Z and {end:%Y-%m-%d %H:%M}Z"
