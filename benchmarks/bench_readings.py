@@ -1,8 +1,10 @@
 """Speed and memory of reading readings files (``schedcheck.inputs.readings_files``).
 
 Writes invented one-a-minute readings (jitter, three RMS axes) for N sensors over D days as
-gzip CSV, as Parquet in time order (all sensors in every row group: streamed in batches) and
-as Parquet sorted by sensor (read per sensor with a row filter), then reads each through
+gzip CSV, as Parquet in time order (all sensors in every row group: streamed in batches), as
+Parquet sorted by sensor (read per sensor with a row filter) and as plain CSV the way some
+gateways write it (local time without an offset, every other sensor on the z axis only with
+its x and y cells left empty), then reads each through
 ``read_readings``. Each format is read in a fresh process so that the peak resident memory
 (VmHWM, Linux) is that format's alone; importing the libraries takes about 200 MB. No
 target has been set; the figures are for information.
@@ -46,7 +48,8 @@ def write_inputs(folder: Path, sensors: int, days: int) -> dict[str, Path]:
     df = pd.concat(frames).sort_values("timestamp", kind="stable")
     (folder / "weekdays.ics").write_text(CAL, newline="")
     out = {}
-    for name in ("csv", "parquet_time", "parquet_sensor"):
+    names = ("csv", "parquet_time", "parquet_sensor", "csv_local_mixed")
+    for name in names:
         (folder / name).mkdir()
     text = df.assign(timestamp=df["timestamp"].dt.strftime("%Y-%m-%dT%H:%M:%SZ"))
     text.to_csv(folder / "csv" / "r.csv.gz", index=False, float_format="%.3f")
@@ -55,10 +58,17 @@ def write_inputs(folder: Path, sensors: int, days: int) -> dict[str, Path]:
     pq.write_table(pa.Table.from_pandas(df.sort_values(["sensor", "timestamp"]),
                                         preserve_index=False),
                    folder / "parquet_sensor" / "r.parquet", row_group_size=100_000)
-    for name in ("csv", "parquet_time", "parquet_sensor"):
+    mixed = df.assign(timestamp=df["timestamp"].dt.tz_convert("Europe/Oslo")
+                      .dt.strftime("%Y-%m-%d %H:%M:%S"))
+    one_axis = mixed["sensor"].str[-1].astype(int) % 2 == 1
+    mixed[["x_rms", "y_rms"]] = mixed[["x_rms", "y_rms"]].astype(object)
+    mixed.loc[one_axis, ["x_rms", "y_rms"]] = ""
+    mixed.to_csv(folder / "csv_local_mixed" / "r.csv", index=False, float_format="%.3f")
+    for name in names:
         site = folder / f"site_{name}.toml"
+        naive = 'naive_time = "local"\n' if name == "csv_local_mixed" else ""
         site.write_text(f'[site]\nname = "Bench Hall"\ntimezone = "Europe/Oslo"\n[readings]\n'
-                        f'files = ["{name}/*"]\n[schedule]\noccupied = "weekdays.ics"\n'
+                        f'files = ["{name}/*"]\n{naive}[schedule]\noccupied = "weekdays.ics"\n'
                         + "".join(units))
         out[name] = site
     return out
