@@ -161,6 +161,19 @@ def test_table_and_pictures(site, tmp_path, capsys):
     assert "on/off level" in text and "(learned)" in text and "mm/s" in text
 
 
+def test_plot_into_a_file_or_unwritable_place_is_one_error_line(site, tmp_path, capsys):
+    # both ended as "internal error: FileExistsError ..." with exit status 1
+    folder, _ = site
+    taken = tmp_path / "taken.svg"
+    taken.write_text("x")
+    code, _, err = run(["states", str(folder / "site.toml"), "--plot", str(taken)], capsys)
+    assert (code, err) == (2, f"error: {taken}: exists and is not a folder; give another --plot\n")
+    below = taken / "levels"
+    code, _, err = run(["states", str(folder / "site.toml"), "--plot", str(below)], capsys)
+    assert code == 2 and err.startswith(f"error: {below}: cannot write the pictures here (")
+    assert err.count("\n") == 1
+
+
 def test_window_options(site, capsys):
     folder, _ = site
     code, out, err = run(["states", str(folder / "site.toml"), "--from", "2026-09-14",

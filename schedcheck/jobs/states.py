@@ -15,6 +15,7 @@ from pathlib import Path
 
 import pandas as pd
 
+from schedcheck.errors import InputError
 from schedcheck.runstate import ComponentStates, classify_unit
 from schedcheck.site import Site
 from schedcheck.window import day_window
@@ -114,6 +115,8 @@ def site_states(
     from schedcheck.outputs.histogram import histogram_svg, write_histogram
 
     site = open_site(site_path)
+    if plot_dir is not None and Path(plot_dir).exists() and not Path(plot_dir).is_dir():
+        raise InputError("exists and is not a folder; give another --plot", path=plot_dir)
     first, last = audit_window(site, first, last)
     start, end = day_window(first, last, site.timezone)
     readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows)
@@ -129,6 +132,10 @@ def site_states(
             svg = histogram_svg(th.counts, th.edges_log10, th.level, th.on_level, th.off_level,
                                 f"{c.key} ({c.role.replace('_', ' ')}, sensor {c.sensor})",
                                 source=th.source, unit=site.readings.unit, floor=th.floor)
-            pictures.append(write_histogram(Path(plot_dir) / picture_name(c.key), svg))
+            try:
+                pictures.append(write_histogram(Path(plot_dir) / picture_name(c.key), svg))
+            except OSError as e:
+                raise InputError(f"cannot write the pictures here ({e.strerror or e})",
+                                 path=plot_dir) from None
     warnings = [str(w) for w in getattr(readings, "warnings", []) or []]
     return StatesResult(site, first, last, start, end, states, records, warnings, pictures)
