@@ -174,6 +174,16 @@ def test_site_file_not_utf8_names_the_line(tmp_path):
     assert msg == f"{p}:{row}: not UTF-8 text (byte 0xe5); save the site file as UTF-8"
 
 
+def test_a_readings_file_given_as_the_site_file_gets_a_hint(tmp_path):
+    p = tmp_path / "r.csv"
+    p.write_text("timestamp,sensor,x_rms\n2026-03-02T00:00:00Z,S1,0.1\n")
+    with pytest.raises(InputProblems) as exc:
+        load_site(p)
+    msg = str(exc.value.problems[0])
+    assert msg.startswith(f"{p}:1: not valid TOML: ")
+    assert msg.endswith("; commands take the site file (TOML, such as site.toml) first")
+
+
 def test_site_file_that_is_a_folder(tmp_path):
     with pytest.raises(InputProblems) as exc:
         load_site(tmp_path)

@@ -97,7 +97,9 @@ def read_site_file(path: str | Path, *, require_readings: bool = True) -> Site:
         m = re.search(r"\(at line (\d+), column \d+\)", msg)
         line = int(m.group(1)) if m else None
         msg = re.sub(r"\s*\(at line \d+, column \d+\)", "", msg) or "not valid TOML"
-        err = InputError(f"not valid TOML: {msg}", path=path, line=line)
+        hint = ("" if path.suffix.lower() == ".toml" else
+                "; commands take the site file (TOML, such as site.toml) first")
+        err = InputError(f"not valid TOML: {msg}{hint}", path=path, line=line)
         raise InputProblems([err]) from None
     v = _Validator(path, text, require_readings=require_readings)
     site = v.site(data)
