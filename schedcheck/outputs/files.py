@@ -36,7 +36,8 @@ SCHEDULE_COLUMNS = ("unit", "kind", "start", "end", "source")
 
 #: plain words for each finding kind, used in calendar event titles
 KIND_WORDS = {
-    "night": "night running", "weekend": "weekend running", "holiday": "holiday running",
+    "night": "off-schedule running (working day or night)", "weekend": "weekend running",
+    "holiday": "holiday running",
     "continuous": "continuous running", "clock_offset": "clock offset",
     "early_start": "early starts", "late_stop": "late stops", "missed": "missed operation",
     "short_cycling": "short cycling",

@@ -28,7 +28,7 @@ ROLE_LABELS = {"supply_fan": "supply fan", "exhaust_fan": "exhaust fan",
                "return_fan": "return fan", "heat_wheel": "heat wheel", "other": "other"}
 
 KIND_LABELS = {
-    "night": "Night running",
+    "night": "Off-schedule running on a working day or night",
     "weekend": "Weekend running",
     "holiday": "Running on a holiday or closure day",
     "continuous": "Ran 24 h or more without stopping",
