@@ -494,3 +494,18 @@ def test_column_names_listed_in_order_read_two_exports_with_different_names(tmp_
         load_readings(load_site(site_file(tmp_path, extra=cols)))
     (msg,) = errors_of(exc.value)
     assert "east.csv:1: no column 'Time' or 'ts_utc' (mapped from timestamp" in msg
+
+
+def test_an_axis_left_empty_in_one_file_only_is_dropped_with_a_warning(tmp_path):
+    # S1 reports x and y in the first file; in the second its x cells are all empty (the axis
+    # failed): x is not used for S1 at all, and the warning says why
+    first = minutes("S1")
+    second = minutes("S1", start="2026-03-02T01:00:00Z").astype({"x_rms": object})
+    second["x_rms"] = ""
+    first.to_csv(tmp_path / "readings" / "a.csv", index=False)
+    second.to_csv(tmp_path / "readings" / "b.csv", index=False)
+    r = load_readings(load_site(site_file(tmp_path, sensors=("S1",))))
+    assert list(r.by_sensor["S1"].columns) == ["timestamp", "y_rms"]
+    assert len(r.by_sensor["S1"]) == 120 and r.bad_rows_count == 0
+    assert any("sensor S1: level columns x_rms are missing from, or left empty in, some files"
+               in w for w in r.warnings)

@@ -317,8 +317,8 @@ def _assemble(col: Collector, site: Site, files, start, end, skip: bool,
             every = tuple(c for c in LEVEL_COLUMNS if any(c in x for x in sets))
             if cols != every:
                 lost = ", ".join(sorted(set(every) - set(cols)))
-                warns.append(f"sensor {s}: level columns {lost} are missing from some files "
-                             "and are not used")
+                warns.append(f"sensor {s}: level columns {lost} are missing from, or left "
+                             "empty in, some files and are not used")
             if any("early" in p.columns for p in parts):
                 parts = [p if "early" in p.columns else
                          p.assign(early=rd.NAT, late=rd.NAT, wall=rd.NAT) for p in parts]
