@@ -101,14 +101,15 @@ class CalendarExpansion:
         clipping, UTC). Rows are in no particular order and may overlap.
     warnings : list of str
         One line each, naming file and event.
-    free : list of str
-        Events with an occurrence in the window that are marked free (``TRANSP:TRANSPARENT``),
-        named with their file; they are periods like any other (the caller may warn).
+    free : list of (str, int, int)
+        Occurrences marked free (``TRANSP:TRANSPARENT``) that overlap the window: the event
+        named with its file, start and end [ns UTC, unclipped]. They are periods like any
+        other (the caller may warn).
     """
 
     events: pd.DataFrame
     warnings: list[str] = field(default_factory=list)
-    free: list[str] = field(default_factory=list)   # "FILE: event ..." marked TRANSP:TRANSPARENT
+    free: list[tuple[str, int, int]] = field(default_factory=list)
 
 
 def is_open_on_holidays(event: icalendar.cal.Component) -> bool:
@@ -266,7 +267,7 @@ def expand_calendar(
     opens: list[bool] = []
     dropped: dict[tuple[str, str], list] = {}
     meta: dict[int, tuple[bool, str, str, bool]] = {}   # per source component
-    free: dict[str, None] = {}                           # events marked free, in order
+    free: list[tuple[str, int, int]] = []                # occurrences marked free
     generated = 0
     where = f"{path}: " if path is not None else ""
     for series in series_list:
@@ -310,7 +311,7 @@ def expand_calendar(
                 uids.append(uid)
                 opens.append(open_on_holidays)
                 if str(comp.get("TRANSP", "")).strip().upper() == "TRANSPARENT":
-                    free[f"{where}{event_label(comp, override=False)}"] = None
+                    free.append((f"{where}{event_label(comp, override=False)}", s, e))
         except InputError:
             raise
         except Exception as exc:  # noqa: BLE001 - name the event, never a traceback
@@ -337,4 +338,4 @@ def expand_calendar(
         "event_start": from_ns(np.asarray([w[0] for w in whole], dtype="int64")),
         "event_end": from_ns(np.asarray([w[1] for w in whole], dtype="int64")),
     })
-    return CalendarExpansion(events=events, warnings=warnings, free=list(free))
+    return CalendarExpansion(events=events, warnings=warnings, free=free)

@@ -89,19 +89,23 @@ class UnitSchedule:
 
 
 def _expand_all(calendars: CalendarList, tz, first, last, max_days,
-                occupied: bool = False) -> tuple[pd.DataFrame, list]:
+                reach: tuple[int, int] | None = None) -> tuple[pd.DataFrame, list]:
+    """Every calendar's events; with ``reach`` (an occupied calendar), a warning for each event
+    marked free with an occurrence that touches ``[reach[0], reach[1])`` [ns UTC]."""
     frames, warnings = [], []
     for path, cal in calendars:
         result = expand_calendar(cal, tz, first, last, path=path, max_days=max_days)
         frames.append(result.events)
         warnings.extend(result.warnings)
-        if occupied:
+        if reach is not None:
             # a calendar program's "free" flag often marks a closure or a reminder; here every
             # event is a period the unit must run, so say so rather than guess
+            labels = dict.fromkeys(lab for lab, s, e in result.free
+                                   if s < reach[1] and e > reach[0])
             warnings.extend(
                 f"{label}: is marked free (TRANSP:TRANSPARENT) but counts as occupied time, "
                 "like every event of an occupied calendar; if it marks a closure, put its "
-                "dates in [holidays] closed or cancel it" for label in result.free)
+                "dates in [holidays] closed or cancel it" for label in labels)
     frames = [f for f in frames if len(f)]
     if not frames:
         return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "source": [],
@@ -235,7 +239,9 @@ def expand_unit_schedule(
     off_dates = set(padded_off["date"]) if len(padded_off) else set()
 
     max_days = MAX_WINDOW_DAYS + 2 * pad
-    occ_events, warnings = _expand_all(occupied, tz, p_first, p_last, max_days, occupied=True)
+    w0, w1 = day_window(first, last, tz)
+    reach = (int(w0.value - late.value), int(w1.value + early.value))   # with its allowances
+    occ_events, warnings = _expand_all(occupied, tz, p_first, p_last, max_days, reach)
     alw_events, w2 = _expand_all(allowed, tz, p_first, p_last, max_days)
     warnings += w2
 
@@ -244,7 +250,6 @@ def expand_unit_schedule(
     allowance = occ.shift_ends(early.value, late.value).difference(occ)
     allowed_iv = Intervals.from_frame(alw_events).difference(occ).difference(allowance)
 
-    w0, w1 = day_window(first, last, tz)
     occ_c, allow_c, alw_c = occ.clip(w0, w1), allowance.clip(w0, w1), allowed_iv.clip(w0, w1)
     frames = [
         _frame(occ_c, "occupied", _label_merged(occ_c, _clip_pieces(pieces, w0, w1))),

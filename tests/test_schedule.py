@@ -277,6 +277,11 @@ def test_an_event_marked_free_is_occupied_with_a_warning_in_occupied_calendars_o
     assert not expand([cal(WEEKDAYS)], allowed=[cal(closed)]).warnings
     busy = closed.replace("TRANSPARENT", "OPAQUE")
     assert not expand([cal(WEEKDAYS, busy)]).warnings
+    # only events that touch the window (with its allowances) are named: 2 March is two days
+    # before a window of 4-5 March, but inside the padding the schedule expands
+    assert not expand([cal(WEEKDAYS, closed)], first=D(2026, 3, 4), last=D(2026, 3, 5)).warnings
+    assert expand([cal(WEEKDAYS, closed)], first=D(2026, 3, 3), last=D(2026, 3, 3),
+                  late_stop="30min").warnings
 
 
 def test_a_week_without_any_occupied_period_is_a_warning():
