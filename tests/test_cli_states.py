@@ -172,6 +172,12 @@ def test_plot_into_a_file_or_unwritable_place_is_one_error_line(site, tmp_path, 
     code, _, err = run(["states", str(folder / "site.toml"), "--plot", str(below)], capsys)
     assert code == 2 and err.startswith(f"error: {below}: cannot write the pictures here (")
     assert err.count("\n") == 1
+    # a file name that does not exist yet became a folder of that name
+    named = tmp_path / "levels.svg"
+    code, _, err = run(["states", str(folder / "site.toml"), "--plot", str(named)], capsys)
+    assert (code, err) == (2, f"error: {named}: looks like a file name; --plot takes a folder "
+                              "and writes one picture per component into it\n")
+    assert not named.exists()
 
 
 def test_window_options(site, capsys):

@@ -117,6 +117,11 @@ def site_states(
     site = open_site(site_path)
     if plot_dir is not None and Path(plot_dir).exists() and not Path(plot_dir).is_dir():
         raise InputError("exists and is not a folder; give another --plot", path=plot_dir)
+    if plot_dir is not None and not Path(plot_dir).exists() and Path(plot_dir).suffix.lower() in (
+            ".svg", ".png", ".pdf"):
+        # "--plot levels.svg" made a folder called levels.svg
+        raise InputError("looks like a file name; --plot takes a folder and writes one picture "
+                         "per component into it", path=plot_dir)
     first, last = audit_window(site, first, last)
     start, end = day_window(first, last, site.timezone)
     readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows)
