@@ -265,6 +265,31 @@ def test_bad_folder_is_one_line_error(tmp_path, capsys, name, damage, expected):
     assert expected in err
 
 
+@pytest.mark.parametrize(("damage", "expected"), [
+    (lambda s: s["components"][0].update(threshold="high"),
+     "components[0].threshold: must be an object"),
+    (lambda s: s["components"][0]["threshold"].update(histogram={"edges": [1, 2],
+                                                                 "counts": "many"}),
+     "components[0].threshold.histogram.counts: must be a list of numbers"),
+    (lambda s: s["components"][0]["energy"].update(off_schedule_kwh="12 kWh"),
+     "components[0].energy.off_schedule_kwh: '12 kWh' is not a number"),
+    (lambda s: s.update(days_off=[{"unit": "", "date": "24.12.2026", "name": "x"}]),
+     "days_off[0].date: '24.12.2026' is not a date"),
+    (lambda s: s.update(sensors=[1, 2]), "sensors[0]: must be an object"),
+])
+def test_damaged_objects_in_summary_are_one_line_errors(tmp_path, capsys, damage, expected):
+    # each of these ended as "internal error: TypeError/ValueError ..." with exit status 1
+    write_fixture(tmp_path, days=2)
+    path = tmp_path / "summary.json"
+    summary = json.loads(path.read_text(encoding="utf-8"))
+    damage(summary)
+    path.write_text(json.dumps(summary), encoding="utf-8")
+    assert main(["report", str(tmp_path)]) == 2
+    err = capsys.readouterr().err
+    assert err == f"error: {path}: {expected}" + err.split(expected, 1)[1]
+    assert err.count("\n") == 1
+
+
 def test_saved_audit_round_trips_instants(outdir):
     data = read_saved_audit(outdir)
     assert str(data.runs["start"].dtype) == "datetime64[ns, UTC]"

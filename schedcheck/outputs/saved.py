@@ -198,10 +198,50 @@ def read_summary(path: Path) -> dict:
             if not _is_number(value):
                 raise InputError(f"{value!r} is not a number", path=path,
                                  key=f"components[{i}].hours.{hkey}")
+    for i, comp in enumerate(data["components"]):
+        _check_nested(comp, path, f"components[{i}]")
     for key in ("findings", "sensors", "days_off", "units", "warnings"):
         if key in data and not isinstance(data[key], list):
             raise InputError("must be a list", path=path, key=key)
+    for key in ("findings", "sensors", "days_off", "units"):
+        for i, row in enumerate(data.get(key) or []):
+            if not isinstance(row, dict):
+                raise InputError("must be an object", path=path, key=f"{key}[{i}]")
+    for i, row in enumerate(data.get("days_off") or []):
+        try:
+            dt.date.fromisoformat(str(row.get("date")))
+        except ValueError:
+            raise InputError(f"{row.get('date')!r} is not a date (YYYY-MM-DD)", path=path,
+                             key=f"days_off[{i}].date") from None
     return data
+
+
+def _check_nested(comp: dict, path: Path, where: str) -> None:
+    """The objects inside one component that the report reads: right types or absent."""
+    for key in ("energy", "threshold"):
+        value = comp.get(key)
+        if value is not None and not isinstance(value, dict):
+            raise InputError("must be an object", path=path, key=f"{where}.{key}")
+    for ekey, value in (comp.get("energy") or {}).items():
+        if value is not None and not _is_number(value):
+            raise InputError(f"{value!r} is not a number", path=path,
+                             key=f"{where}.energy.{ekey}")
+    th = comp.get("threshold") or {}
+    for tkey in ("level", "on_level", "off_level", "floor", "separation", "effectiveness"):
+        if th.get(tkey) is not None and not _is_number(th[tkey]):
+            raise InputError(f"{th[tkey]!r} is not a number", path=path,
+                             key=f"{where}.threshold.{tkey}")
+    hist = th.get("histogram")
+    if hist is None:
+        return
+    if not isinstance(hist, dict):
+        raise InputError("must be an object", path=path, key=f"{where}.threshold.histogram")
+    for hkey in ("edges", "counts"):
+        values = hist.get(hkey)
+        if values is not None and not (isinstance(values, list)
+                                       and all(_is_number(v) for v in values)):
+            raise InputError("must be a list of numbers", path=path,
+                             key=f"{where}.threshold.histogram.{hkey}")
 
 
 def _is_number(value: object) -> bool:
