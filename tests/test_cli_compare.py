@@ -271,6 +271,16 @@ def test_table_output_reads_plainly(site, capsys):
     assert err == ""
 
 
+def test_changes_that_round_to_zero_read_0_0_not_minus_0_0():
+    # a clean unit's difference of -0.02 h/day with an interval of [-0.04, +0.01] was printed
+    # "-0.0 [-0.0, +0.0]"
+    from schedcheck.cli import compare as cli_compare
+
+    assert cli_compare._interval(-0.04, 0.01) == "[0.0, 0.0]"
+    assert cli_compare._interval(-0.06, 2.6) == "[-0.1, +2.6]"
+    assert cli_compare._signed(-0.02) == "0.0" and cli_compare._signed(1.26) == "+1.3"
+
+
 def test_cli_default_period_is_the_job_default():
     from schedcheck.cli import compare as cli_compare
     from schedcheck.jobs import compare as job_compare

@@ -23,8 +23,14 @@ def _progress(message: str) -> None:
     print(f"... {message}", file=sys.stderr, flush=True)
 
 
+def _signed(x: float) -> str:
+    """A change with its sign, one decimal; what rounds to zero is "0.0", never "-0.0"."""
+    text = f"{x:+.1f}"
+    return "0.0" if text in ("+0.0", "-0.0") else text
+
+
 def _interval(lo: float, hi: float) -> str:
-    return f"[{lo:+.1f}, {hi:+.1f}]"
+    return f"[{_signed(lo)}, {_signed(hi)}]"
 
 
 def _span(p) -> str:
@@ -70,7 +76,7 @@ def compare_table(result) -> object:
         missed = c.figures.get("missed_h_per_day")
         table.add_row(
             c.id, f"{off.before_mean:.1f} to {off.after_mean:.1f}",
-            f"{off.difference:+.1f} {_interval(*off.ci95)}",
+            f"{_signed(off.difference)} {_interval(*off.ci95)}",
             f"{kwh.before_mean:.1f} to {kwh.after_mean:.1f}",
             "-" if missed is None else f"{missed.before_mean:.1f} to {missed.after_mean:.1f}",
             _verdict(off.difference, *off.ci95),
