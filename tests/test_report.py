@@ -250,6 +250,8 @@ def test_cli_report_rerenders_and_prints_path(outdir, capsys):
     ("daily.csv", lambda t: t.replace(",24.0,", ",lots,", 1), "daily.csv:2: period_h: 'lots'"),
     ("runs.csv", lambda t: t.replace(",run,", ",spinning,", 1), "runs.csv:3: state: 'spinning'"),
     ("schedule.csv", lambda t: t.replace("+01:00", "", 1), "schedule.csv:2: start:"),
+    # a damaged year overflowed the nanosecond clock: an internal error before
+    ("runs.csv", lambda t: t.replace(",2026-", ",1026-", 1), "runs.csv:2: start: '1026-"),
     ("findings.csv", lambda t: t.replace("kwh", "energy", 1), "findings.csv:1: header lacks"),
 ])
 def test_bad_folder_is_one_line_error(tmp_path, capsys, name, damage, expected):
@@ -276,6 +278,9 @@ def test_bad_folder_is_one_line_error(tmp_path, capsys, name, damage, expected):
     (lambda s: s.update(days_off=[{"unit": "", "date": "24.12.2026", "name": "x"}]),
      "days_off[0].date: '24.12.2026' is not a date"),
     (lambda s: s.update(sensors=[1, 2]), "sensors[0]: must be an object"),
+    (lambda s: s["components"][0]["threshold"].update(histogram={"edges": [0.0, 1.0],
+                                                                 "counts": [3, 4]}),
+     "components[0].threshold.histogram: has 2 edges for 2 counts"),
 ])
 def test_damaged_objects_in_summary_are_one_line_errors(tmp_path, capsys, damage, expected):
     # each of these ended as "internal error: TypeError/ValueError ..." with exit status 1

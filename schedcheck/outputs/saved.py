@@ -242,6 +242,10 @@ def _check_nested(comp: dict, path: Path, where: str) -> None:
                                        and all(_is_number(v) for v in values)):
             raise InputError("must be a list of numbers", path=path,
                              key=f"{where}.threshold.histogram.{hkey}")
+    edges, counts = hist.get("edges") or [], hist.get("counts") or []
+    if edges and counts and len(edges) != len(counts) + 1:
+        raise InputError(f"has {len(edges)} edges for {len(counts)} counts (one more edge than "
+                         "counts expected)", path=path, key=f"{where}.threshold.histogram")
 
 
 def _is_number(value: object) -> bool:
@@ -303,6 +307,12 @@ def _parse_instants(col: pd.Series, path: Path, name: str, *, blank_ok: bool) ->
     if not has_offset.all():
         i = int(has_offset.index[(~has_offset).to_numpy().argmax()])
         raise InputError(f"{col.iloc[i]!r} has no UTC offset", path=path, line=i + 2, key=name)
+    lo, hi = pd.Timestamp("1900-01-01", tz="UTC"), pd.Timestamp("2200-01-01", tz="UTC")
+    far = parsed.notna() & ((parsed < lo) | (parsed > hi))
+    if far.any():   # a damaged year (1026, 9026) would overflow the nanosecond clock
+        i = int(far.to_numpy().argmax())
+        raise InputError(f"{col.iloc[i]!r} is not between 1900 and 2200", path=path,
+                         line=i + 2, key=name)
     return parsed.dt.as_unit("ns")
 
 
