@@ -314,3 +314,14 @@ def test_night_kind_is_not_called_night_running(outdir, page):
     assert (data.findings["kind"] == "night").any()
     assert "Night running" not in page
     assert "Off-schedule running on a working day or night" in page
+
+
+def test_sensor_counts_have_thousands_separators(tmp_path):
+    # a year of one-a-minute readings has about a thousand duplicates per sensor: the table
+    # showed "1037" next to readings of "520,144"
+    write_fixture(tmp_path, days=5)
+    summary = json.loads((tmp_path / "summary.json").read_text(encoding="utf-8"))
+    summary["sensors"][0]["duplicates"] = 1037
+    (tmp_path / "summary.json").write_text(json.dumps(summary), encoding="utf-8")
+    page = write_report(tmp_path).read_text(encoding="utf-8")
+    assert '<td class="n">1,037</td>' in page
