@@ -243,7 +243,8 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
         if lost:
             health.ambiguous_dropped = lost
             day = pd.Timestamp(int(p["early"].to_numpy()[amb][chosen == NAT][0]), tz="UTC")
-            where = ("that hour is counted as no data" if lost == int(amb.sum()) else
+            where = ("both passes of that hour are counted as no data"
+                     if lost == int(amb.sum()) else
                      "they are left out, and a silence they leave longer than max_gap is "
                      "counted as no data")
             warnings.append(f"sensor {sensor}: {lost} readings in the repeated autumn hour "

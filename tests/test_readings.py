@@ -148,6 +148,7 @@ def test_fold_rows_out_of_order_become_no_data_with_a_warning():
                                               max_gap=pd.Timedelta("5min"))
     assert health.ambiguous_dropped == 120 and len(frame) == 120
     assert len(warnings) == 1 and "cannot be placed" in warnings[0]
+    assert warnings[0].endswith("both passes of that hour are counted as no data")
     # the lost two hours show as one silence (no data), not as made-up readings
     assert health.gaps == 1 and health.gap_hours == pytest.approx(2 + 1 / 60)
 
