@@ -112,6 +112,46 @@ class CalendarExpansion:
     free: list[tuple[str, int, int]] = field(default_factory=list)
 
 
+def _vtimezone_mismatches(cal: icalendar.Calendar, tz: str, first: dt.date,
+                          last: dt.date) -> list[str]:
+    """Notes for VTIMEZONE blocks that mostly agree with the site's zone but not on every day.
+
+    Calendar programs sometimes carry outdated daylight-saving rules in a VTIMEZONE (the US
+    rules before 2007 changed in April and October). RFC 5545 says its own rules apply, so the
+    events are read by them; the user is told on which days that differs from the site's zone.
+    Blocks that disagree on most days (a calendar kept in another zone on purpose) and blocks
+    named with an IANA zone are left alone.
+    """
+    site = zoneinfo.ZoneInfo(tz)
+    iana = zoneinfo.available_timezones()
+    notes = []
+    # judged over the whole years the window touches, so that a short window inside the
+    # stretch of differing days is still told
+    y0, y1 = dt.date(first.year, 1, 1), dt.date(last.year, 12, 31)
+    days = [y0 + dt.timedelta(days=i) for i in range((y1 - y0).days + 1)]
+    for block in cal.walk("VTIMEZONE"):
+        name = str(block.get("TZID", "")).strip()
+        if not name or name in iana:
+            continue
+        try:
+            own = block.to_tz(lookup_tzid=False)   # this block's rules, not a kept one
+            off = [d for d in days
+                   if dt.datetime(d.year, d.month, d.day, 12, tzinfo=own).utcoffset()
+                   != dt.datetime(d.year, d.month, d.day, 12, tzinfo=site).utcoffset()]
+        except Exception:  # noqa: BLE001 - a block the library cannot use is checked elsewhere
+            continue
+        differ = [d for d in off if first <= d <= last]
+        if differ and len(off) <= len(days) // 2:
+            notes.append(
+                f"VTIMEZONE {name!r} gives a different UTC offset from the site's zone {tz} on "
+                f"{len(differ)} day{'s' if len(differ) > 1 else ''} of the window (first "
+                f"{differ[0]}, last {differ[-1]}): its daylight-saving dates differ, as in a "
+                "calendar program with outdated rules. Events written in it are read by its "
+                "own rules (RFC 5545), an hour off the site's clock on those days; check the "
+                "export")
+    return notes
+
+
 def is_open_on_holidays(event: icalendar.cal.Component) -> bool:
     """True when the event's CATEGORIES contain :data:`HOLIDAY_MARKER` (case-insensitive)."""
     cats = event.get("CATEGORIES")
@@ -318,6 +358,7 @@ def expand_calendar(
             core = getattr(series.components[0], "_component", icalendar.Event())
             raise InputError(f"cannot be expanded: {exc}", path=path,
                              key=event_label(core)) from None
+    notes = notes + _vtimezone_mismatches(cal, tz, first, last)
     warnings = [f"{where}{note}" for note in notes]
     vevents = cal.walk("VEVENT")
     if not vevents:

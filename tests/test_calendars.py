@@ -97,6 +97,35 @@ def test_non_iana_tzid_with_vtimezone():
         ("2026-03-29T07:00:00+02:00", "2026-03-29T17:00:00+02:00")]
 
 
+def _us_vtimezone(name: str, spring: str, autumn: str) -> str:
+    """A VTIMEZONE for US Eastern time with the given yearly BYMONTH/BYDAY rules."""
+    return (f"BEGIN:VTIMEZONE\r\nTZID:{name}\r\nBEGIN:STANDARD\r\nDTSTART:19701101T020000\r\n"
+            f"RRULE:FREQ=YEARLY;{autumn}\r\nTZOFFSETFROM:-0400\r\nTZOFFSETTO:-0500\r\n"
+            f"END:STANDARD\r\nBEGIN:DAYLIGHT\r\nDTSTART:19700308T020000\r\n"
+            f"RRULE:FREQ=YEARLY;{spring}\r\nTZOFFSETFROM:-0500\r\nTZOFFSETTO:-0400\r\n"
+            "END:DAYLIGHT\r\nEND:VTIMEZONE\r\n")
+
+
+def test_a_vtimezone_with_outdated_daylight_saving_rules_is_read_by_them_with_a_warning():
+    # US daylight saving time: second Sunday of March to first Sunday of November since 2007
+    # (Energy Policy Act of 2005, section 110), before that first Sunday of April to last
+    # Sunday of October. A calendar program with the old rules in its VTIMEZONE: RFC 5545
+    # says its own rules apply (07:00 "Eastern" is 08:00 EDT on 9 March 2026), and the user is
+    # told the days where that differs from the site's zone.
+    event = ("DTSTART;TZID=Harbor Eastern:20260309T070000\n"
+             "DTEND;TZID=Harbor Eastern:20260309T180000")
+    old = _us_vtimezone("Harbor Eastern", "BYMONTH=4;BYDAY=1SU", "BYMONTH=10;BYDAY=-1SU")
+    res = expand_calendar(cal(event, head=old), NY, D(2026, 3, 9), D(2026, 3, 9))
+    assert local_spans(res, NY) == [("2026-03-09T08:00:00-04:00", "2026-03-09T19:00:00-04:00")]
+    (w,) = res.warnings
+    assert "VTIMEZONE 'Harbor Eastern' gives a different UTC offset from the site's zone " in w
+    assert "on 1 day of the window (first 2026-03-09, last 2026-03-09)" in w
+    # current rules: no warning; a calendar kept in another zone on purpose: no warning
+    new = _us_vtimezone("Harbor Eastern", "BYMONTH=3;BYDAY=2SU", "BYMONTH=11;BYDAY=1SU")
+    assert not expand_calendar(cal(event, head=new), NY, D(2026, 3, 9), D(2026, 3, 9)).warnings
+    assert not expand_calendar(cal(event, head=new), OSLO, D(2026, 3, 9), D(2026, 3, 9)).warnings
+
+
 def test_overlapping_and_midnight_crossing_events_are_kept_as_they_are():
     c = cal("DTSTART;TZID=Europe/Oslo:20260302T220000\nDTEND;TZID=Europe/Oslo:20260303T060000",
             "DTSTART;TZID=Europe/Oslo:20260303T050000\nDTEND;TZID=Europe/Oslo:20260303T090000")
@@ -405,3 +434,30 @@ def test_check_calendar_file_applies_window_caps_by_a_trial_year(tmp_path):
     problems = [str(p) for p in check_calendar_file(path, OSLO)]
     assert len(problems) == 1 and problems[0].startswith(f"{path}:4: event 'Hourly since 1950'")
     assert "move DTSTART closer" in problems[0]
+
+
+def test_two_files_defining_one_custom_tzid_differently_each_keep_their_own(tmp_path):
+    # the icalendar library kept the first VTIMEZONE parsed for a custom TZID for the whole
+    # process: a second file with other daylight-saving rules under the same name was read
+    # with the first file's rules (which one won depended on the order of reading)
+    from schedcheck.inputs.calendar_files import read_calendar
+
+    def write(name, vtz):
+        text = ("BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//t//EN\r\n" + vtz
+                + "BEGIN:VEVENT\r\nUID:a@example.org\r\nSUMMARY:Office hours\r\n"
+                "DTSTART;TZID=Dockside Eastern:20260309T070000\r\n"
+                "DTEND;TZID=Dockside Eastern:20260309T180000\r\nEND:VEVENT\r\nEND:VCALENDAR\r\n")
+        (tmp_path / name).write_text(text, encoding="utf-8")
+        return tmp_path / name
+
+    # rules since 2007 and before 2007 (Energy Policy Act of 2005, section 110)
+    new = write("new.ics", _us_vtimezone("Dockside Eastern", "BYMONTH=3;BYDAY=2SU",
+                                         "BYMONTH=11;BYDAY=1SU"))
+    old = write("old.ics", _us_vtimezone("Dockside Eastern", "BYMONTH=4;BYDAY=1SU",
+                                         "BYMONTH=10;BYDAY=-1SU"))
+    for first, second in ((new, old), (old, new)):
+        a, b = read_calendar(first), read_calendar(second)
+        spans = {p.name: local_spans(expand_calendar(c, NY, D(2026, 3, 9), D(2026, 3, 9)), NY)
+                 for p, c in ((first, a), (second, b))}
+        assert spans["new.ics"] == [("2026-03-09T07:00:00-04:00", "2026-03-09T18:00:00-04:00")]
+        assert spans["old.ics"] == [("2026-03-09T08:00:00-04:00", "2026-03-09T19:00:00-04:00")]

@@ -19,6 +19,35 @@ from schedcheck.errors import InputError, InputProblems
 _UID_LINE = re.compile(r"^UID[;:](?:.*:)?(.*)$", re.IGNORECASE)
 
 
+def _forget_custom_zones(text: str) -> None:
+    """Let this file's VTIMEZONE blocks define their TZIDs, whatever files came before.
+
+    The icalendar library keeps the first VTIMEZONE it parses for a TZID that is not a known
+    zone, for the whole process, and reads every later file's times with it. Two files that
+    define one name differently (exports of different ages) would then share the first one's
+    daylight-saving rules. Times are bound to their zone while parsing, so dropping the kept
+    definitions of the names this file defines, just before it is parsed, gives each file its
+    own.
+    """
+    from icalendar.timezone import tzp
+
+    cache = getattr(tzp, "_TZP__tz_cache", None)   # private; absent in other releases
+    if not isinstance(cache, dict):
+        return
+    clean = getattr(tzp, "clean_timezone_id", lambda x: x)
+    in_block = False
+    for line in text.splitlines():
+        up = line.strip().upper()
+        if up == "BEGIN:VTIMEZONE":
+            in_block = True
+        elif up == "END:VTIMEZONE":
+            in_block = False
+        elif in_block and up.startswith("TZID:"):
+            name = line.strip()[5:]
+            cache.pop(name, None)
+            cache.pop(clean(name), None)
+
+
 def read_calendar(path: str | Path) -> icalendar.Calendar:
     """Parse an iCalendar file (RFC 5545).
 
@@ -45,6 +74,7 @@ def read_calendar(path: str | Path) -> icalendar.Calendar:
                          line=line) from None
     if "BEGIN:VCALENDAR" not in text.upper():
         raise InputError("is not an iCalendar file (no BEGIN:VCALENDAR)", path=path)
+    _forget_custom_zones(text)
     try:
         cals = icalendar.Calendar.from_ical(text, multiple=True)
     except (ValueError, IndexError, KeyError) as exc:
