@@ -249,7 +249,9 @@ def choose_threshold(
     g = groups if groups is not None else th.level_groups(L)
     med = [float(m) for m in g.medians]
     if L.size >= 10 and np.all(L == L[0]):
-        warn.append(f"every reading has the same level ({10 ** L[0]:.3g}): is the sensor stuck "
+        # all zeros are raised to a tenth of the floor by log_levels: say 0, not that stand-in
+        same = "0" if np.isclose(10 ** L[0], floor / 10, rtol=1e-9) else f"{10 ** L[0]:.3g}"
+        warn.append(f"every reading has the same level ({same}): is the sensor stuck "
                     "or disconnected?")
     lo_med = hi_med = np.nan
     if configured is not None:

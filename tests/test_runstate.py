@@ -395,6 +395,12 @@ def test_a_stuck_sensor_is_named():
     r = pd.DataFrame({"timestamp": ts, "z_rms": 0.0})
     cs = runstate.classify_component(comp(), r, T0, end, GAP)
     assert cs.run_share == 0.0 and any("stuck" in w for w in cs.threshold.warnings)
+    # the zeros are named as zeros, not as the stand-in level they are raised to for log10
+    assert any(w.startswith("every reading has the same level (0):")
+               for w in cs.threshold.warnings), cs.threshold.warnings
+    cs = runstate.classify_component(comp(), r.assign(z_rms=0.7), T0, end, GAP)
+    assert any(w.startswith("every reading has the same level (0.7):")
+               for w in cs.threshold.warnings)
 
 
 def test_three_level_groups_all_below_the_floor_are_never_running():
