@@ -184,6 +184,12 @@ def test_a_readings_file_given_as_the_site_file_gets_a_hint(tmp_path):
     assert msg.endswith("; commands take the site file (TOML, such as site.toml) first")
 
 
+def test_calendar_path_that_is_a_folder(tmp_path):
+    (tmp_path / "calendars").mkdir()
+    one(tmp_path, BASE.replace('occupied = "office.ics"', 'occupied = "calendars"'),
+        "schedule.occupied", "'calendars' is a folder; name the calendar file (.ics) in it")
+
+
 def test_site_file_that_is_a_folder(tmp_path):
     with pytest.raises(InputProblems) as exc:
         load_site(tmp_path)

@@ -439,7 +439,10 @@ class _Validator:
         for i, f in enumerate(files, 1):
             p = Path(f).expanduser()
             p = (p if p.is_absolute() else self.base / p).resolve()
-            if not p.is_file():
+            if p.is_dir():
+                k = key if len(files) == 1 else f"{key}[{i}]"
+                self.err(k, f"{f!r} is a folder; name the calendar file (.ics) in it")
+            elif not p.is_file():
                 k = key if len(files) == 1 else f"{key}[{i}]"
                 self.err(k, f"calendar file {f!r} does not exist (relative to "
                          f"{self.base.resolve()})")
