@@ -295,6 +295,12 @@ def test_cli_default_period_is_the_job_default():
         (["--change", "2026-02-02", "--before", "3"], "--before"),
         (["--change", "2026-02-02", "--after", "0"], "--after"),
         (["--change", "2026-02-02", "--format", "xml"], "--format"),
+        # too many days were blamed on a --to nobody gave; a huge number was an OverflowError
+        (["--change", "2026-02-02", "--before", "2000"],
+         "error: --before: --before 2000 and --after 28 make 2,028 days; the most is 1,100"),
+        (["--change", "2026-02-02", "--after", "99999999999999999999"], "error: --after: "),
+        (["--change", "9999-12-30"], "error: --change: 9999-12-30 is out of range; give a date "
+                                     "from 1900-01-01 to 2199-12-31"),
         # a change date outside the readings names --change and the days the readings cover
         (["--change", "2025-06-01"], "error: --change: no day of readings before 2025-06-01 "
                                      "(the readings cover 2026-01-12 to 2026-02-22)"),

@@ -173,6 +173,9 @@ def test_only_from_runs_to_end_of_month(site, capsys):
     (["--unit", "AHU-9"], "AHU-9"),
     (["--from", "2026-03-10", "--to", "2026-03-01"], "before"),
     (["--from", "2026-01-01", "--to", "2029-12-31"], "days long"),
+    # far dates overflowed the nanosecond clock: internal errors with exit status 1
+    (["--from", "9999-12-30", "--to", "9999-12-31"], "--from: 9999-12-30 is out of range"),
+    (["--from", "2026-01-01", "--to", "0001-01-01"], "--to: 0001-01-01 is out of range"),
 ])
 def test_bad_options_are_one_line_errors(site, capsys, args, needle):
     rc, out, err = run(capsys, site, *args)

@@ -13,9 +13,17 @@ def parse_date(text: str | None, option: str) -> dt.date | None:
     if text is None:
         return None
     try:
-        return dt.date.fromisoformat(text.strip())
+        day = dt.date.fromisoformat(text.strip())
     except ValueError:
         raise InputError(f"{text!r} is not a date; write YYYY-MM-DD", key=option) from None
+    if not FIRST_DATE <= day <= LAST_DATE:
+        # far dates overflow the nanosecond clock inside (and no readings come from them)
+        raise InputError(f"{day} is out of range; give a date from {FIRST_DATE} to {LAST_DATE}",
+                         key=option)
+    return day
+
+
+FIRST_DATE, LAST_DATE = dt.date(1900, 1, 1), dt.date(2199, 12, 31)
 
 
 def interactive() -> bool:

@@ -31,6 +31,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from schedcheck.calendars import MAX_WINDOW_DAYS
 from schedcheck.changes import (
     BeforeAfter,
     before_after,
@@ -265,6 +266,10 @@ def compare_site(
             raise InputError(f"must be a whole number of days, at least {MIN_DAYS}; got {n}",
                              key=name)
     before, after = int(before), int(after)
+    if before + after > MAX_WINDOW_DAYS:   # named here: the window check would blame --to
+        raise InputError(f"--before {before} and --after {after} make {before + after:,} days; "
+                         f"the most is {MAX_WINDOW_DAYS:,}",
+                         key="--before" if before >= after else "--after")
     site = open_site(site_path)
     # a change date outside the readings otherwise failed as "no readings for any sensor"
     # between two UTC instants, which did not point at --change (the files are read once:
