@@ -36,7 +36,7 @@ def parse_duration(text: str | int | float) -> pd.Timedelta:
     if isinstance(text, (int, float)):
         if text < 0:
             raise ValueError(f"duration {text!r} is negative")
-        return pd.Timedelta(minutes=float(text))
+        return _timedelta(text, minutes=float(text))
     if not isinstance(text, str):
         raise ValueError(
             f"{text!r} is not a duration; write e.g. '90min', '2h', '1h30min' or 'PT2H'"
@@ -45,12 +45,20 @@ def parse_duration(text: str | int | float) -> pd.Timedelta:
     m = _ISO.match(s.upper()) if s.upper().startswith("P") else None
     if m and any(m.groups()):
         d, h, mi, sec = (float(g) if g else 0.0 for g in m.groups())
-        return pd.Timedelta(days=d, hours=h, minutes=mi, seconds=sec)
+        return _timedelta(text, days=d, hours=h, minutes=mi, seconds=sec)
     m = _SIMPLE.match(s.lower())
     if s and m and any(m.groups()):
         d, h, mi, sec = (float(g) if g else 0.0 for g in m.groups())
-        return pd.Timedelta(days=d, hours=h, minutes=mi, seconds=sec)
+        return _timedelta(text, days=d, hours=h, minutes=mi, seconds=sec)
     raise ValueError(f"{text!r} is not a duration; write e.g. '90min', '2h', '1h30min' or 'PT2H'")
+
+
+def _timedelta(text, **parts: float) -> pd.Timedelta:
+    """``pd.Timedelta(**parts)``, with a plain message when the value is beyond its range."""
+    try:
+        return pd.Timedelta(**parts)
+    except (OverflowError, ValueError):
+        raise ValueError(f"{text!r} is too long for a duration") from None
 
 
 def format_duration(td: pd.Timedelta) -> str:

@@ -33,3 +33,11 @@ def test_refused_forms_say_what_is_accepted(text):
 def test_format_round_trips():
     for text in ["2h", "1h30min", "45s", "0min"]:
         assert format_duration(parse_duration(text)) == text
+
+
+@pytest.mark.parametrize("text", [1e300, "999999999D", "PT99999999999999H"])
+def test_beyond_the_range_of_a_duration_is_a_plain_message(text):
+    # pandas said "Cannot construct Timedelta from {'minutes': 1e+300}" or printed its fields
+    with pytest.raises(ValueError) as exc:
+        parse_duration(text)
+    assert str(exc.value) == f"{text!r} is too long for a duration"

@@ -190,6 +190,16 @@ def test_calendar_path_that_is_a_folder(tmp_path):
         "schedule.occupied", "'calendars' is a folder; name the calendar file (.ics) in it")
 
 
+def test_huge_power_and_threshold_are_out_of_range(tmp_path):
+    # threshold = 1e308 overflowed inside the classifier (an internal error, exit status 1)
+    one(tmp_path, BASE.replace("power_kw = 7.5", "power_kw = 7.5\nthreshold = 1e308", 1),
+        "unit[AHU-1].component[supply].threshold",
+        "1e+308 is out of range: must be > 0 and <= 1e+06")
+    one(tmp_path, BASE.replace("power_kw = 7.5", "power_kw = 1e308", 1),
+        "unit[AHU-1].component[supply].power_kw",
+        "1e+308 is out of range: must be > 0 and <= 100000")
+
+
 def test_site_file_that_is_a_folder(tmp_path):
     with pytest.raises(InputProblems) as exc:
         load_site(tmp_path)

@@ -40,6 +40,8 @@ _HOLIDAYS = ("country", "subdivision", "categories", "closed", "language")
 _SCHEDULE = ("occupied", "allowed", "early_start", "late_stop")
 _ENERGY = ("price", "currency", "co2_per_kwh", "exponent")
 _UNIT = ("id", "name", "schedule", "component")
+MAX_POWER_KW = 100_000.0
+MAX_THRESHOLD = 1e6
 _COMPONENT = ("id", "role", "sensor", "power_kw", "speed", "threshold")
 
 
@@ -533,11 +535,14 @@ class _Validator:
                              f"{sensors[sensor]}; one sensor watches one component")
                 else:
                     sensors[sensor] = f"{uid}/{cid}"
+            # upper bounds keep the arithmetic finite (common practice, no source: fan motors
+            # stay far below 100 MW, and no vibration reading unit reaches a million)
             power = self.number(c, "power_kw", f"{k}.power_kw", required=True, lo=0.0,
-                                lo_open=True)
+                                lo_open=True, hi=MAX_POWER_KW)
             speed = self.number(c, "speed", f"{k}.speed", required=True, lo=lo, hi=hi,
                                 lo_open=True)
-            thr = self.number(c, "threshold", f"{k}.threshold", lo=0.0, lo_open=True)
+            thr = self.number(c, "threshold", f"{k}.threshold", lo=0.0, lo_open=True,
+                              hi=MAX_THRESHOLD)
             out.append(Component(id=cid or "", unit=uid, role=role or "other",
                                  sensor=sensor or "", power_kw=power or 0.0,
                                  speed=speed or 0.0, threshold=thr))
