@@ -200,6 +200,13 @@ def test_huge_power_and_threshold_are_out_of_range(tmp_path):
         "1e+308 is out of range: must be > 0 and <= 100000")
 
 
+def test_allowance_longer_than_a_day_is_refused(tmp_path):
+    # "100000D" overflowed the clock while padding the calendar window (internal error)
+    one(tmp_path, BASE.replace('early_start = "2h"', 'early_start = "100000D"'),
+        "schedule.early_start", "2400000h is longer than the most, 24h")
+    assert load_site(write(tmp_path, BASE.replace('early_start = "2h"', 'early_start = "24h"')))
+
+
 def test_site_file_that_is_a_folder(tmp_path):
     with pytest.raises(InputProblems) as exc:
         load_site(tmp_path)

@@ -40,6 +40,7 @@ _HOLIDAYS = ("country", "subdivision", "categories", "closed", "language")
 _SCHEDULE = ("occupied", "allowed", "early_start", "late_stop")
 _ENERGY = ("price", "currency", "co2_per_kwh", "exponent")
 _UNIT = ("id", "name", "schedule", "component")
+MAX_ALLOWANCE = pd.Timedelta("1D")
 MAX_POWER_KW = 100_000.0
 MAX_THRESHOLD = 1e6
 _COMPONENT = ("id", "role", "sensor", "power_kw", "speed", "threshold")
@@ -245,8 +246,8 @@ class _Validator:
             return default
         return t[name]
 
-    def duration(self, t, name, key, default=None, positive=False):
-        from schedcheck.durations import parse_duration
+    def duration(self, t, name, key, default=None, positive=False, most=None):
+        from schedcheck.durations import format_duration, parse_duration
 
         if name not in t:
             return default
@@ -257,6 +258,10 @@ class _Validator:
             return default
         if positive and d <= pd.Timedelta(0):
             self.err(key, "must be longer than zero")
+            return default
+        if most is not None and d > most:
+            self.err(key, f"{format_duration(d)} is longer than the most, "
+                     f"{format_duration(most)}")
             return default
         return d
 
@@ -455,8 +460,10 @@ class _Validator:
         """Schedule from table ``t`` where given, else from ``base`` (already validated)."""
         occ = self.calendars(t, "occupied", f"{key}.occupied")
         allowed = self.calendars(t, "allowed", f"{key}.allowed")
-        early = self.duration(t, "early_start", f"{key}.early_start")
-        late = self.duration(t, "late_stop", f"{key}.late_stop")
+        # an allowance is hours around an occupied period; one of days overlaps the next day's
+        # (and one of centuries overflowed the clock). At most a day: our own choice
+        early = self.duration(t, "early_start", f"{key}.early_start", most=MAX_ALLOWANCE)
+        late = self.duration(t, "late_stop", f"{key}.late_stop", most=MAX_ALLOWANCE)
         return ScheduleSettings(
             occupied=occ if occ is not None else base.get("occupied", ()),
             allowed=allowed if allowed is not None else base.get("allowed", ()),
