@@ -207,6 +207,12 @@ def test_allowance_longer_than_a_day_is_refused(tmp_path):
     assert load_site(write(tmp_path, BASE.replace('early_start = "2h"', 'early_start = "24h"')))
 
 
+def test_a_numeric_sensor_id_is_asked_for_in_quotes(tmp_path):
+    one(tmp_path, BASE.replace('sensor = "VS-1"', "sensor = 1011"),
+        "unit[AHU-1].component[supply].sensor",
+        'must be a non-empty text, not 1011; write it in quotes: sensor = "1011"')
+
+
 def test_site_file_that_is_a_folder(tmp_path):
     with pytest.raises(InputProblems) as exc:
         load_site(tmp_path)

@@ -209,7 +209,9 @@ class _Validator:
             return default
         x = t[name]
         if not isinstance(x, str) or not x.strip():
-            self.err(key, f"must be a non-empty text, not {x!r}")
+            quote = (f'; write it in quotes: {name} = "{x}"'
+                     if isinstance(x, (int, float)) and not isinstance(x, bool) else "")
+            self.err(key, f"must be a non-empty text, not {x!r}{quote}")
             return default
         if choices is not None and x not in choices:
             self.err(key, f"{x!r} is not allowed" + _hint(x, choices))
