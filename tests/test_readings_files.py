@@ -128,6 +128,23 @@ def test_sensor_id_differing_only_in_case_gets_a_hint(tmp_path):
                for w in r.warnings)
 
 
+def test_csv_not_in_utf8_names_the_line_or_the_utf16_export(tmp_path):
+    # both said "cannot read the file (UnicodeDecodeError: 'utf-8' codec can't decode ...)"
+    text = both().to_csv(index=False)
+    lines = text.splitlines(keepends=True)
+    f = tmp_path / "readings" / "r.csv"
+    f.write_bytes("".join(lines[:4]).encode() + "Caf\u00e9\n".encode("latin-1")
+                  + "".join(lines[4:]).encode())
+    with pytest.raises(InputProblems) as exc:
+        load_readings(load_site(site_file(tmp_path)))
+    assert errors_of(exc.value) == [f"{f}:5: not UTF-8 text (byte 0xe9); save or export the "
+                                    "file as UTF-8"]
+    f.write_bytes(text.encode("utf-16"))
+    with pytest.raises(InputProblems) as exc:
+        load_readings(load_site(site_file(tmp_path)))
+    assert errors_of(exc.value) == [f"{f}: is UTF-16 text; save or export it as UTF-8 CSV"]
+
+
 def test_column_mapping_semicolons_and_decimal_commas(tmp_path):
     d = minutes("S1")
     export = pd.DataFrame({"Time": d["timestamp"], "Device": d["sensor"],

@@ -52,6 +52,25 @@ def _is_gzip(path: Path) -> bool:
         return f.read(2) == b"\x1f\x8b"
 
 
+def _not_utf8(path: Path) -> InputError:
+    """The error for a CSV file that is not UTF-8 text, naming its first bad line."""
+    import gzip
+
+    opener = gzip.open if _is_gzip(path) else open
+    with opener(path, "rb") as f:
+        head = f.read(2)
+        if head in (b"\xff\xfe", b"\xfe\xff"):
+            return InputError("is UTF-16 text; save or export it as UTF-8 CSV", path=path)
+        f.seek(0)
+        for n, raw in enumerate(f, 1):
+            try:
+                raw.decode("utf-8")
+            except UnicodeDecodeError as e:
+                return InputError(f"not UTF-8 text (byte 0x{raw[e.start]:02x}); save or export "
+                                  "the file as UTF-8", path=path, line=n)
+    return InputError("not UTF-8 text; save or export the file as UTF-8", path=path)
+
+
 def _mapping(site: Site, have: list[str], path: Path, line: int | None
              ) -> tuple[dict[str, str], tuple[str, ...]]:
     """our name -> file column, and the level columns present; raises for missing ones."""
@@ -299,7 +318,12 @@ def _read_file(col: Collector, site: Site, path: Path, i: int) -> None:
     except EOFError:
         col.problems.append(InputError("the compressed data ends early: the file is cut short "
                                        "(copy or download it again)", path=path))
-    except (UnicodeDecodeError, OSError, pd.errors.ParserError) as e:
+    except UnicodeDecodeError as e:
+        if path.name.lower().endswith(PARQUET_SUFFIXES):
+            col.problems.append(InputError(f"cannot read the file ({e})", path=path))
+        else:
+            col.problems.append(_not_utf8(path))
+    except (OSError, pd.errors.ParserError) as e:
         col.problems.append(InputError(f"cannot read the file ({type(e).__name__}: {e})",
                                        path=path))
 
