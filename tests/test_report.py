@@ -281,6 +281,12 @@ def test_bad_folder_is_one_line_error(tmp_path, capsys, name, damage, expected):
     (lambda s: s["components"][0]["threshold"].update(histogram={"edges": [0.0, 1.0],
                                                                  "counts": [3, 4]}),
      "components[0].threshold.histogram: has 2 edges for 2 counts"),
+    # 10**317 overflowed while drawing (internal error); a level of 1e308 likewise
+    (lambda s: s["components"][0]["threshold"].update(histogram={"edges": [0.0, 1.0, 317.0],
+                                                                 "counts": [3, 4]}),
+     "components[0].threshold.histogram.edges: edges are log10 levels; one is beyond"),
+    (lambda s: s["components"][0]["threshold"].update(level=1e308),
+     "components[0].threshold.level: 1e+308 is not a reading level (0 to 1e100)"),
 ])
 def test_damaged_objects_in_summary_are_one_line_errors(tmp_path, capsys, damage, expected):
     # each of these ended as "internal error: TypeError/ValueError ..." with exit status 1

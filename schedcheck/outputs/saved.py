@@ -231,6 +231,10 @@ def _check_nested(comp: dict, path: Path, where: str) -> None:
         if th.get(tkey) is not None and not _is_number(th[tkey]):
             raise InputError(f"{th[tkey]!r} is not a number", path=path,
                              key=f"{where}.threshold.{tkey}")
+    for tkey in ("level", "on_level", "off_level", "floor"):
+        if th.get(tkey) is not None and not 0 <= th[tkey] <= 1e100:
+            raise InputError(f"{th[tkey]!r} is not a reading level (0 to 1e100)", path=path,
+                             key=f"{where}.threshold.{tkey}")
     hist = th.get("histogram")
     if hist is None:
         return
@@ -243,6 +247,10 @@ def _check_nested(comp: dict, path: Path, where: str) -> None:
             raise InputError("must be a list of numbers", path=path,
                              key=f"{where}.threshold.histogram.{hkey}")
     edges, counts = hist.get("edges") or [], hist.get("counts") or []
+    if any(e is not None and abs(e) > 100 for e in edges):
+        # log10 of a level: beyond +-100 is no reading, and 10**e overflows when drawn
+        raise InputError("edges are log10 levels; one is beyond -100..100", path=path,
+                         key=f"{where}.threshold.histogram.edges")
     if edges and counts and len(edges) != len(counts) + 1:
         raise InputError(f"has {len(edges)} edges for {len(counts)} counts (one more edge than "
                          "counts expected)", path=path, key=f"{where}.threshold.histogram")
