@@ -351,6 +351,9 @@ def test_bad_durations(tmp_path):
     assert len(out) == 2
     assert ": readings.max_gap: must be longer than zero" in out[0]
     assert ": schedule.late_stop: 'half an hour' is not a duration" in out[1]
+    # a bridge of days would hide a dead sensor's silence as running or off
+    out = problems(tmp_path, BASE.replace('max_gap = "4min"', 'max_gap = "100000D"'))
+    assert len(out) == 1 and ": readings.max_gap: " in out[0] and "longer than the most" in out[0]
 
 
 def test_naive_time_choices(tmp_path):

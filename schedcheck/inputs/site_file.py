@@ -332,7 +332,10 @@ class _Validator:
                                  f"{self.base.resolve()})")
         unit = self.string(r, "unit", "readings.unit", default="mm/s")
         naive = self.string(r, "naive_time", "readings.naive_time", choices=("local", "utc"))
-        max_gap = self.duration(r, "max_gap", "readings.max_gap", pd.Timedelta("5min"), True)
+        # at most a day: a longer bridge would count a dead sensor's days as running or off
+        # instead of no data (common practice, no source)
+        max_gap = self.duration(r, "max_gap", "readings.max_gap", pd.Timedelta("5min"), True,
+                                most=pd.Timedelta("24h"))
         columns: dict[str, str | tuple[str, ...]] = {}
         cols = r.get("columns", {})
         if not isinstance(cols, dict):
