@@ -61,6 +61,18 @@ class InputError(SchedcheckError):
         super().__init__(f"{where}: {self.message}" if where else self.message)
 
 
+class NoReadingsError(InputError):
+    """No readings at all for any configured sensor (in the asked window, if there was one).
+
+    ``nothing_else`` is True when the files held nothing else in that window either (no other
+    sensors, no bad rows): then the window, not the files, is what to look at.
+    """
+
+    def __init__(self, message: str, *, nothing_else: bool = False, **where) -> None:
+        super().__init__(message, **where)
+        self.nothing_else = nothing_else
+
+
 class InputProblems(InputError):
     """Several input problems found in one pass (``schedcheck check`` reports them all).
 

@@ -228,6 +228,18 @@ def test_from_after_the_data_names_the_option(site, tmp_path, capsys):
     assert code == 2 and err.startswith("error: --from: 2026-12-01 is after the last whole day")
 
 
+def test_a_window_without_any_readings_names_the_dates_and_options(site, tmp_path, capsys):
+    # both dates given and no reading of any sensor on those days: the dates are what to fix,
+    # so the one line names --from/--to and the local dates, not UTC instants
+    folder, _ = site
+    for cmd in (["audit", "--out", str(tmp_path / "empty")], ["states"]):
+        code, _, err = run([cmd[0], str(folder / "site.toml"), "--from", "2025-01-05", "--to",
+                            "2025-01-09", *cmd[1:]], capsys)
+        assert code == 2 and err.count("\n") == 1, err
+        assert err.startswith("error: --from/--to: no readings for any configured sensor on "
+                              "2025-01-05 to 2025-01-09 (local dates)"), err
+
+
 def test_a_threshold_below_the_noise_is_warned_on_the_terminal(site, tmp_path, capsys):
     # a `threshold` typed below the stopped fan's noise makes every minute running; the audit
     # still runs, but the terminal says why the component's off-schedule hours are so large

@@ -373,11 +373,20 @@ def test_no_readings_for_any_sensor_is_an_error_one_missing_sensor_a_warning(tmp
     r = load_readings(site)
     assert r.health["S2"].count == 0 and len(r.by_sensor["S2"]) == 0
     assert any("sensor S2 (AHU-2/supply) has no readings" in w for w in r.warnings)
+    from schedcheck.inputs.readings_files import read_readings
+
+    window = pd.Timestamp("2026-04-01T00:00Z"), pd.Timestamp("2026-04-02T00:00Z")
     with pytest.raises(InputProblems) as exc:
-        load_readings(site, pd.Timestamp("2026-04-01T00:00Z"), pd.Timestamp("2026-04-02T00:00Z"))
+        read_readings(site, *window)
     (msg,) = errors_of(exc.value)
     assert msg.startswith(f"{tmp_path / 'site.toml'}: readings.files: no readings for any "
                           "configured sensor (S1, S2) between 2026-04-01 00:00Z")
+    # the commands' loader points at the dates the user gave (local), not the files
+    with pytest.raises(InputError) as exc:
+        load_readings(site, *window)
+    # (00:00Z to 00:00Z is 02:00 to 02:00 in the site's summer time: two local dates)
+    assert str(exc.value).startswith("--from/--to: no readings for any configured sensor on "
+                                     "2026-04-01 to 2026-04-02 (local dates)")
 
 
 def test_unknown_format_and_empty_file(tmp_path):

@@ -17,7 +17,7 @@ import numpy as np
 import pandas as pd
 
 from schedcheck import readings as rd
-from schedcheck.errors import InputError, InputProblems
+from schedcheck.errors import InputError, InputProblems, NoReadingsError
 from schedcheck.inputs.readings_rows import Collector
 from schedcheck.inputs.site_file import resolve_patterns
 from schedcheck.site import LEVEL_COLUMNS, Site
@@ -378,9 +378,9 @@ def _assemble(col: Collector, site: Site, files, start, end, skip: bool,
             # every row was unreadable: that, not a missing sensor, is what to fix
             rows = "1 bad row was" if col.bad_total == 1 else f"{col.bad_total:,} bad rows were"
             seen += f"; {rows} skipped, the first: {col.bad_examples[0]}"
-        raise InputProblems([InputError(
+        raise InputProblems([NoReadingsError(
             f"no readings for any configured sensor ({', '.join(col.owner)}){span}{seen}",
-            path=site.path, key="readings.files")])
+            nothing_else=not seen, path=site.path, key="readings.files")])
     if skip and col.bad_total:
         first = "; ".join(str(e) for e in col.bad_examples[:3])
         warns.append(f"skipped {col.bad_total:,} bad row{'s' if col.bad_total > 1 else ''} "

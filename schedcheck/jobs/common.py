@@ -47,7 +47,19 @@ def load_readings(site: Site, start: pd.Timestamp | None = None,
     if start is not None and end is not None and end <= start:
         raise InputError(f"the window ends ({end}) before it starts ({start})")
     skip = bool(skip_bad_rows or site.readings.skip_bad_rows)
-    return read_readings(site, start, end, skip_bad_rows=skip)
+    try:
+        return read_readings(site, start, end, skip_bad_rows=skip)
+    except InputProblems as e:
+        first = e.problems[0]
+        if start is None or end is None or not getattr(first, "nothing_else", False):
+            raise
+        # the files are fine, the asked days hold nothing: point at the dates, in local time
+        d0 = start.tz_convert(site.timezone).date()
+        d1 = (end - pd.Timedelta(1, "ns")).tz_convert(site.timezone).date()
+        raise InputError(
+            f"no readings for any configured sensor on {d0} to {d1} (local dates); choose days "
+            f"the readings cover (`schedcheck check {site.path}` lists each sensor's first and "
+            "last reading)", key="--from/--to") from None
 
 
 def data_span(readings: Readings) -> tuple[pd.Timestamp, pd.Timestamp]:
