@@ -157,6 +157,10 @@ def run_audit(
             raise ValueError(f"no schedule for unit {unit.id}")
         sched_frame = getattr(sched, "intervals", sched)
         days_off = getattr(sched, "days_off", None)
+        if unit.components and not any(c.is_fan for c in unit.components):
+            all_warnings.append(
+                f"{unit.id}: no fan is monitored (no supply, exhaust or return fan), so off time "
+                "in occupied periods is not checked as missed operation for this unit")
         for comp in unit.components:
             cs = states.get(comp.key)
             if cs is None:

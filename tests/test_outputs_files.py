@@ -199,3 +199,27 @@ def test_findings_ics_without_findings_is_still_a_valid_calendar(tmp_path):
     assert list(cal.walk("VEVENT")) == []
     assert len(cal.walk("VJOURNAL")) == 1
     assert pd.read_csv(files["findings.csv"]).empty
+
+
+def test_unit_without_a_fan_is_told_that_missed_operation_is_not_checked(tmp_path):
+    # a heat wheel need not run through occupied periods, so a unit monitored only by its wheel
+    # has no missed operation at all: the audit says so instead of a silent 0.0
+    import dataclasses
+
+    site = make_site(tmp_path)
+    unit = site.units[0]
+    wheel_only = dataclasses.replace(unit, components=unit.components[1:])
+    site = dataclasses.replace(site, units=(wheel_only,))
+    start, end = day_window(dt.date(2026, 3, 2), dt.date(2026, 3, 2), TZ)
+    off = frame([("2026-03-02 00:00", "2026-03-03 00:00", "off")], "state")
+    occ = frame([("2026-03-02 07:00", "2026-03-02 17:00", "occupied")], "kind")
+    occ["source"] = "office.ics"
+    res = run_audit(site, {"AHU-9/wheel": off}, {"AHU-9": Sched(occ, None)}, start, end,
+                    find=lambda r: None)
+    acc = res.components[0].account
+    assert acc.ns["missed"] == 0 and acc.ns["occupied_off"] == 10 * 3600 * 10**9
+    assert any(w.startswith("AHU-9: no fan is monitored") for w in res.warnings)
+    # a unit with a fan gets no such line
+    res = run_audit(make_site(tmp_path), {"AHU-9/supply": off, "AHU-9/wheel": off},
+                    {"AHU-9": Sched(occ, None)}, start, end, find=lambda r: None)
+    assert not any("no fan is monitored" in w for w in res.warnings)
