@@ -335,3 +335,32 @@ def test_demo_controls_change_is_found_and_the_clean_unit_has_none(tmp_path, cap
     assert comps["AHU-4/supply"]["difference"]["ci95"][0] > 10
     assert comps["AHU-5/supply"]["change_points"] == []
     assert comps["AHU-5/exhaust"]["change_points"] == []
+
+
+def test_few_usable_days_are_flagged_not_reported_as_a_firm_no_change():
+    # two clean days after the change (the rest silent): identical days give a zero-width
+    # interval, which must not read as a firm "no change" without a word
+    import datetime as dt
+
+    import pandas as pd
+
+    from schedcheck.intervals import NS_PER_H
+    from schedcheck.jobs.compare import compare_daily
+
+    dates = [dt.date(2026, 3, 2) + dt.timedelta(days=i) for i in range(21)]
+    change = dt.date(2026, 3, 16)
+    silent = [d >= dt.date(2026, 3, 18) for d in dates]
+    daily = pd.DataFrame({
+        "date": dates,
+        "scheduled_ns": [10 * NS_PER_H if d.weekday() < 5 else 0 for d in dates],
+        "off_schedule_ns": [0] * len(dates),
+        "missed_ns": [0] * len(dates),
+        "running_ns": [10 * NS_PER_H if d.weekday() < 5 and not s else 0
+                       for d, s in zip(dates, silent, strict=True)],
+        "no_data_ns": [24 * NS_PER_H if s else 0 for s in silent],
+        "off_schedule_kwh": [0.0] * len(dates),
+    })
+    _, _, days, notes = compare_daily(daily, change, 14, 7)
+    assert days["after"]["used"] == 2
+    assert any(n.startswith("only 2 usable day(s) after the change") for n in notes), notes
+    assert not any("usable day(s) before" in n for n in notes)

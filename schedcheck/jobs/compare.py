@@ -206,6 +206,9 @@ def compare_daily(
                 "no_data": int(((side == p) & ~usable).sum())} for p in ("before", "after")}
     notes = [f"{days[p]['no_data']} day(s) {p} the change left out: more than "
              f"{max_no_data_h:g} h of no data" for p in ("before", "after") if days[p]["no_data"]]
+    notes += [f"only {days[p]['used']} usable day(s) {p} the change (fewer than {MIN_DAYS}): "
+              "the interval rests on too few days to trust; a period of whole weeks is better"
+              for p in ("before", "after") if 0 < days[p]["used"] < MIN_DAYS]
     figures = {}
     try:
         for name, read in FIGURES.items():
