@@ -76,3 +76,34 @@ __all__ = [
     "hours_of",
     "NS_PER_H",
 ]
+
+
+def weekday_calendar(tz: str, uid: str, summary: str = "Office hours") -> str:
+    """An iCalendar text (CRLF lines): one event Mon-Fri 07:00-18:00 in zone ``tz``, from
+    5 Jan 2026, with UID ``uid@test.invalid`` so each test site's file is its own."""
+    return (
+        "BEGIN:VCALENDAR\r\nVERSION:2.0\r\n"
+        "PRODID:-//test//schedcheck//EN\r\n"
+        "BEGIN:VEVENT\r\n"
+        f"UID:{uid}@test.invalid\r\n"
+        "DTSTAMP:20260101T000000Z\r\n"
+        f"DTSTART;TZID={tz}:20260105T070000\r\n"
+        f"DTEND;TZID={tz}:20260105T180000\r\n"
+        "RRULE:FREQ=WEEKLY;BYDAY=MO,TU,WE,TH,FR\r\n"
+        f"SUMMARY:{summary}\r\n"
+        "END:VEVENT\r\nEND:VCALENDAR\r\n"
+    )
+
+
+def local_to_utc(text: str, tz: str) -> pd.Timestamp:
+    """A naive local time in zone ``tz`` as a UTC instant."""
+    return pd.Timestamp(text).tz_localize(tz).tz_convert("UTC")
+
+
+def run_cli(args, capsys) -> tuple[int, str, str]:
+    """Run ``schedcheck ARGS``; return exit status, stdout and stderr."""
+    from schedcheck.cli import main
+
+    code = main([str(a) for a in args])
+    out = capsys.readouterr()
+    return code, out.out, out.err

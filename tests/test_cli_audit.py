@@ -8,7 +8,7 @@ import pandas as pd
 import pytest
 
 from schedcheck import synth
-from schedcheck.cli import main
+from tests.helpers import local_to_utc, run_cli, weekday_calendar
 
 TZ = "America/New_York"
 FIRST, LAST = dt.date(2026, 10, 28), dt.date(2026, 11, 4)
@@ -51,23 +51,11 @@ power_kw = 4.0
 speed = 0.8
 """
 
-CAL = """BEGIN:VCALENDAR\r
-VERSION:2.0\r
-PRODID:-//test//annex//EN\r
-BEGIN:VEVENT\r
-UID:annex-office@test.invalid\r
-DTSTAMP:20260101T000000Z\r
-DTSTART;TZID=America/New_York:20260105T070000\r
-DTEND;TZID=America/New_York:20260105T180000\r
-RRULE:FREQ=WEEKLY;BYDAY=MO,TU,WE,TH,FR\r
-SUMMARY:Office hours\r
-END:VEVENT\r
-END:VCALENDAR\r
-"""
+CAL = weekday_calendar(TZ, "annex-office")
 
 
-def local(text):
-    return pd.Timestamp(text).tz_localize(TZ).tz_convert("UTC")
+def local(text: str) -> pd.Timestamp:
+    return local_to_utc(text, TZ)
 
 
 @pytest.fixture(scope="module")
@@ -90,10 +78,7 @@ def site(tmp_path_factory):
     return folder, truth
 
 
-def run(args, capsys):
-    code = main(args)
-    out = capsys.readouterr()
-    return code, out.out, out.err
+run = run_cli
 
 
 def test_audit_writes_everything_and_prints_the_table(site, tmp_path, capsys):

@@ -19,6 +19,7 @@ import pytest
 
 from schedcheck import synth
 from schedcheck.cli import main
+from tests.helpers import local_to_utc, run_cli, weekday_calendar
 
 TZ = "Europe/Berlin"
 CHANGE = dt.date(2026, 2, 2)  # a Monday
@@ -88,23 +89,11 @@ power_kw = 5.0
 speed = 0.8
 """
 
-CAL = """BEGIN:VCALENDAR\r
-VERSION:2.0\r
-PRODID:-//test//copperleaf//EN\r
-BEGIN:VEVENT\r
-UID:copperleaf-office@test.invalid\r
-DTSTAMP:20260101T000000Z\r
-DTSTART;TZID=Europe/Berlin:20260105T070000\r
-DTEND;TZID=Europe/Berlin:20260105T180000\r
-RRULE:FREQ=WEEKLY;BYDAY=MO,TU,WE,TH,FR\r
-SUMMARY:Office hours\r
-END:VEVENT\r
-END:VCALENDAR\r
-"""
+CAL = weekday_calendar(TZ, "copperleaf-office")
 
 
 def local(text: str) -> pd.Timestamp:
-    return pd.Timestamp(text).tz_localize(TZ).tz_convert("UTC")
+    return local_to_utc(text, TZ)
 
 
 @pytest.fixture(scope="module")
@@ -146,10 +135,7 @@ def site(tmp_path_factory):
     return folder / "site.toml"
 
 
-def run(args, capsys):
-    code = main(args)
-    out = capsys.readouterr()
-    return code, out.out, out.err
+run = run_cli
 
 
 @pytest.fixture(scope="module")

@@ -9,8 +9,8 @@ import pandas as pd
 import pytest
 
 from schedcheck import synth
-from schedcheck.cli import main
 from schedcheck.outputs.histogram import histogram_svg
+from tests.helpers import local_to_utc, run_cli, weekday_calendar
 
 TZ = "Europe/Berlin"
 FIRST, LAST = dt.date(2026, 9, 7), dt.date(2026, 9, 27)
@@ -65,23 +65,11 @@ speed = 0.7
 threshold = 0.4
 """
 
-CAL = """BEGIN:VCALENDAR\r
-VERSION:2.0\r
-PRODID:-//test//studio//EN\r
-BEGIN:VEVENT\r
-UID:studio@test.invalid\r
-DTSTAMP:20260101T000000Z\r
-DTSTART;TZID=Europe/Berlin:20260105T070000\r
-DTEND;TZID=Europe/Berlin:20260105T180000\r
-RRULE:FREQ=WEEKLY;BYDAY=MO,TU,WE,TH,FR\r
-SUMMARY:Studio hours\r
-END:VEVENT\r
-END:VCALENDAR\r
-"""
+CAL = weekday_calendar(TZ, "studio", "Studio hours")
 
 
-def local(text):
-    return pd.Timestamp(text).tz_localize(TZ).tz_convert("UTC")
+def local(text: str) -> pd.Timestamp:
+    return local_to_utc(text, TZ)
 
 
 @pytest.fixture(scope="module")
@@ -114,10 +102,7 @@ def site(tmp_path_factory):
     return folder, truth
 
 
-def run(args, capsys):
-    code = main(args)
-    out = capsys.readouterr()
-    return code, out.out, out.err
+run = run_cli
 
 
 def test_json_tells_each_level_and_why(site, capsys):
