@@ -4,8 +4,20 @@ from __future__ import annotations
 
 import datetime as dt
 import sys
+from pathlib import Path
+from typing import Annotated
+
+import typer
 
 from schedcheck.errors import InputError
+
+#: the SITE argument every command but ``report`` and ``demo`` takes
+SiteArg = Annotated[Path, typer.Argument(help="The site file (TOML).")]
+
+#: ``--skip-bad-rows`` of the commands that read readings to compute (check words it its own way)
+SkipBadRows = Annotated[bool, typer.Option(
+    "--skip-bad-rows", help="Skip unreadable readings rows (counted) instead of stopping at the "
+    "first.")]
 
 
 def parse_date(text: str | None, option: str) -> dt.date | None:

@@ -9,7 +9,7 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import interactive, parse_date
+from schedcheck.cli._common import SiteArg, SkipBadRows, interactive, parse_date
 
 
 def _progress(message: str) -> None:
@@ -53,16 +53,14 @@ def summary_table(result) -> object:
 
 @app.command()
 def audit(
-    site: Annotated[Path, typer.Argument(help="The site file (TOML).")],
+    site: SiteArg,
     first: Annotated[str | None, typer.Option(
         "--from", help="First local date to audit (YYYY-MM-DD).")] = None,
     last: Annotated[str | None, typer.Option(
         "--to", help="Last local date to audit, inclusive (YYYY-MM-DD).")] = None,
     out: Annotated[Path | None, typer.Option(
         "--out", help="Folder for the audit files [default: ./audit-<site name>].")] = None,
-    skip_bad_rows: Annotated[bool, typer.Option(
-        "--skip-bad-rows", help="Skip unreadable readings rows (counted) instead of stopping "
-        "at the first.")] = False,
+    skip_bad_rows: SkipBadRows = False,
 ) -> int:
     """Compare when each unit ran with when it was meant to, price the difference, and write
     summary.json, daily.csv, runs.csv, findings.csv, findings.ics, schedule.csv and report.html.

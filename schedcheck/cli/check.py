@@ -3,12 +3,12 @@
 from __future__ import annotations
 
 import sys
-from pathlib import Path
 from typing import Annotated
 
 import typer
 
 from schedcheck.cli._app import app
+from schedcheck.cli._common import SiteArg
 
 UNMAPPED_SHOWN = 20   # unmapped sensors named on screen; the rest are counted
 
@@ -51,7 +51,7 @@ def health_table(report) -> object:
 
 @app.command()
 def check(
-    site: Annotated[Path, typer.Argument(help="The site file (TOML).")],
+    site: SiteArg,
     skip_bad_rows: Annotated[bool, typer.Option(
         "--skip-bad-rows", help="Count and list malformed readings rows instead of treating "
         "them as problems.")] = False,

@@ -4,13 +4,12 @@ from __future__ import annotations
 
 import json
 import sys
-from pathlib import Path
 from typing import Annotated
 
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import interactive, parse_date
+from schedcheck.cli._common import SiteArg, SkipBadRows, interactive, parse_date
 from schedcheck.errors import InputError
 
 FORMATS = ("table", "json")
@@ -121,7 +120,7 @@ def _advice(result) -> list[str]:
 
 @app.command()
 def compare(
-    site: Annotated[Path, typer.Argument(help="The site file (TOML).")],
+    site: SiteArg,
     change: Annotated[str, typer.Option(
         "--change", help="Local date of the controls change (YYYY-MM-DD); the 'after' period "
         "starts at its local midnight.")],
@@ -130,9 +129,7 @@ def compare(
     after: Annotated[int, typer.Option(
         "--after", help="Whole days from the change on to compare (at least 7).")] = DEFAULT_DAYS,
     fmt: Annotated[str, typer.Option("--format", help="table or json.")] = "table",
-    skip_bad_rows: Annotated[bool, typer.Option(
-        "--skip-bad-rows", help="Skip unreadable readings rows (counted) instead of stopping "
-        "at the first.")] = False,
+    skip_bad_rows: SkipBadRows = False,
 ) -> int:
     """Check a controls change: off-schedule hours, kWh and missed hours per day before and
     after it, the difference with a 95% interval, and the dates where each component's daily

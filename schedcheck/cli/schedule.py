@@ -6,13 +6,12 @@ import csv
 import io
 import json
 import sys
-from pathlib import Path
 from typing import Annotated
 
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import parse_date
+from schedcheck.cli._common import SiteArg, parse_date
 from schedcheck.errors import InputError
 
 FORMATS = ("table", "json", "csv")
@@ -78,7 +77,7 @@ def schedule_csv(records: list[dict]) -> str:
 
 @app.command()
 def schedule(
-    site: Annotated[Path, typer.Argument(help="The site file (TOML).")],
+    site: SiteArg,
     unit: Annotated[str | None, typer.Option(
         "--unit", help="Only this unit (its id in the site file).")] = None,
     first: Annotated[str | None, typer.Option(

@@ -10,7 +10,7 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import parse_date
+from schedcheck.cli._common import SiteArg, SkipBadRows, parse_date
 from schedcheck.errors import InputError
 
 FORMATS = ("table", "json")
@@ -44,7 +44,7 @@ def states_table(result) -> object:
 
 @app.command()
 def states(
-    site: Annotated[Path, typer.Argument(help="The site file (TOML).")],
+    site: SiteArg,
     first: Annotated[str | None, typer.Option(
         "--from", help="First local date (YYYY-MM-DD).")] = None,
     last: Annotated[str | None, typer.Option(
@@ -53,9 +53,7 @@ def states(
     plot: Annotated[Path | None, typer.Option(
         "--plot", help="Write a level histogram picture (SVG) per component into this folder.")
     ] = None,
-    skip_bad_rows: Annotated[bool, typer.Option(
-        "--skip-bad-rows", help="Skip unreadable readings rows (counted) instead of stopping.")
-    ] = False,
+    skip_bad_rows: SkipBadRows = False,
 ) -> int:
     """Show the on/off level of every component: learned from its own readings, set in the site
     file, or the floor level; how clearly stopped and running readings separate (Ashman's D,
