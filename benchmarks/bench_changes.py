@@ -15,7 +15,7 @@ import tracemalloc
 
 import numpy as np
 
-from schedcheck.changes import (
+from schedcheck.changes.change_points import (
     change_point_ranges,
     mean_shift_penalty,
     pelt_mean_shift,

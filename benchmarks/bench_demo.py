@@ -16,7 +16,7 @@ import tempfile
 import time
 from pathlib import Path
 
-from schedcheck.demo import build_demo, demo_readings
+from schedcheck.demo.build import build_demo, demo_readings
 from schedcheck.outputs.demo_files import write_demo
 
 

@@ -15,7 +15,8 @@ import tracemalloc
 import numpy as np
 import pandas as pd
 
-from schedcheck import runstate, synth
+from schedcheck.demo import synth
+from schedcheck.runstate import classify as runstate
 from schedcheck.site import Component, RunStateSettings, ScheduleSettings, Unit
 
 TARGET_S = 0.5

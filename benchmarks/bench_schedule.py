@@ -19,14 +19,14 @@ import tracemalloc
 import icalendar
 import pandas as pd
 
-from schedcheck.calendars import (
+from schedcheck.errors import InputError
+from schedcheck.schedule.calendars import (
     MAX_OCCURRENCES,
     MAX_RULE_STEPS,
     check_calendar,
     expand_calendar,
 )
-from schedcheck.errors import InputError
-from schedcheck.schedule import expand_unit_schedule
+from schedcheck.schedule.intended import expand_unit_schedule
 from schedcheck.site import HolidaySettings
 
 TARGET_S = 1.0

@@ -5,7 +5,7 @@ import datetime as dt
 import pandas as pd
 import pytest
 
-from schedcheck.accounting import account_component, state_sets, transitions
+from schedcheck.audit.accounting import account_component, state_sets, transitions
 from schedcheck.window import day_window
 
 TZ = "Europe/Oslo"

@@ -7,7 +7,7 @@ import pandas as pd
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from schedcheck.accounting import FIGURES, account_component
+from schedcheck.audit.accounting import FIGURES, account_component
 from schedcheck.intervals import NS_PER_H, from_ns, to_ns
 from schedcheck.window import day_window
 

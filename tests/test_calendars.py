@@ -1,4 +1,4 @@
-"""schedcheck.calendars: time rules, daylight saving, and one hostile calendar per guard rail."""
+"""schedule.calendars: time rules, daylight saving, and one hostile calendar per guard rail."""
 
 from __future__ import annotations
 
@@ -7,9 +7,9 @@ import datetime as dt
 import icalendar
 import pytest
 
-import schedcheck.calendars as calendars
-from schedcheck.calendars import check_calendar, expand_calendar, is_open_on_holidays
+import schedcheck.schedule.calendars as calendars
 from schedcheck.errors import InputError
+from schedcheck.schedule.calendars import check_calendar, expand_calendar, is_open_on_holidays
 
 OSLO = "Europe/Oslo"
 NY = "America/New_York"

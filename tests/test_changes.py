@@ -1,4 +1,4 @@
-"""Tests for schedcheck.changes: PELT mean-shift change points and the before/after comparison.
+"""changes.change_points: PELT mean-shift change points and the before/after comparison.
 
 Validation values come from outside the project, named beside each check:
 - ruptures (PyPI package, Truong, Oudre and Vayatis 2020), ``ruptures.Pelt`` with
@@ -19,7 +19,7 @@ import pytest
 import ruptures as rpt
 from scipy import stats
 
-from schedcheck.changes import (
+from schedcheck.changes.change_points import (
     before_after,
     biweight_cost,
     mean_shift_penalty,
@@ -146,7 +146,7 @@ def test_biweight_cost_is_the_minimum_over_a_dense_grid(seed):
 
 
 def test_batched_suffix_costs_equal_one_by_one():
-    from schedcheck.changes import _biweight_suffixes
+    from schedcheck.changes.change_points import _biweight_suffixes
 
     rng = np.random.default_rng(9)
     z = np.r_[rng.normal(0.0, 1.0, 25), [8.0, 9.5]]

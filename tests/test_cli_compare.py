@@ -1,6 +1,6 @@
 """`schedcheck compare` as a user runs it: a small site of our own, and the demo site.
 
-The small site is written from scratch with the seeded generator (schedcheck.synth): unit
+The small site is written from scratch with the seeded generator (schedcheck.demo.synth): unit
 AHU-A is left running day and night from 13:00 on the change date (a controls change gone
 wrong); unit AHU-B keeps its office pattern, with one Saturday override after the change and a
 five-hour gateway outage before it; unit AHU-C got its sensor only on the change date, so it
@@ -17,8 +17,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from schedcheck import synth
 from schedcheck.cli import main
+from schedcheck.demo import synth
 from tests.helpers import local_to_utc, run_cli, weekday_calendar
 
 TZ = "Europe/Berlin"

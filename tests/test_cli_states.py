@@ -8,7 +8,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from schedcheck import synth
+from schedcheck.demo import synth
 from schedcheck.outputs.histogram import histogram_svg
 from tests.helpers import local_to_utc, run_cli, weekday_calendar
 

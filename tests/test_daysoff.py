@@ -1,4 +1,4 @@
-"""schedcheck.daysoff: public holidays against official 2026 lists, closures, pinned language."""
+"""schedule.daysoff: public holidays against official 2026 lists, closures, pinned language."""
 
 from __future__ import annotations
 
@@ -6,8 +6,8 @@ import datetime as dt
 
 import pytest
 
-from schedcheck.daysoff import closure_days, days_off, pinned_language, public_holidays
 from schedcheck.errors import InputError
+from schedcheck.schedule.daysoff import closure_days, days_off, pinned_language, public_holidays
 from schedcheck.site import HolidaySettings
 
 D = dt.date

@@ -14,9 +14,9 @@ import recurring_ical_events
 from dateutil.easter import easter
 from helpers import assert_tiles_window
 
-from schedcheck import demo as demo_mod
 from schedcheck.cli import main
-from schedcheck.demo_plan import CALENDARS, MACHINES, UNITS
+from schedcheck.demo import build as demo_mod
+from schedcheck.demo.plan import CALENDARS, MACHINES, UNITS
 from schedcheck.durations import parse_duration
 from schedcheck.errors import InputError
 from schedcheck.intervals import Intervals, to_ns

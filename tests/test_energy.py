@@ -10,7 +10,7 @@ import math
 import numpy as np
 import pytest
 
-from schedcheck.energy import DEFAULT_EXPONENT, affinity_power, energy_kwh, price
+from schedcheck.audit.energy import DEFAULT_EXPONENT, affinity_power, energy_kwh, price
 
 
 def test_default_exponent_is_the_cube_law():

@@ -1,4 +1,4 @@
-"""Tests of the finding rules (schedcheck.findings).
+"""Tests of the finding rules (schedcheck.findings.find).
 
 Each test builds true run intervals and a schedule by hand (local times, converted to UTC),
 plants one fault and asserts exactly the expected finding kind, date and hours. Expected values
@@ -17,12 +17,12 @@ from hypothesis import given, settings
 from hypothesis import strategies as hs
 
 from schedcheck.errors import InputError
-from schedcheck.findings import (
+from schedcheck.findings.clock import changes
+from schedcheck.findings.find import (
     DEFAULT_MAX_STARTS_PER_DAY,
     DEFAULT_MIN_OFF_SCHEDULE,
     find_issues,
 )
-from schedcheck.findings_clock import changes
 from schedcheck.intervals import Intervals
 from schedcheck.site import Component, FindingSettings
 
@@ -526,7 +526,7 @@ def test_clock_on_standard_time_all_year_is_one_finding_from_spring_to_autumn():
 # snapshot of this tool's output.
 @pytest.fixture(scope="module")
 def demo_findings(tmp_path_factory):
-    demo_mod = pytest.importorskip("schedcheck.demo")   # the demo generator's module
+    demo_mod = pytest.importorskip("schedcheck.demo.build")   # the demo generator's module
     demo_files = pytest.importorskip("schedcheck.outputs.demo_files")
     from schedcheck.jobs.schedule import unit_schedules
     from schedcheck.site import load_site

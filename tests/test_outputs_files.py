@@ -8,7 +8,7 @@ import icalendar
 import pandas as pd
 import pytest
 
-from schedcheck.audit import run_audit
+from schedcheck.audit.run import run_audit
 from schedcheck.outputs.files import finding_uid, write_audit_files
 from schedcheck.outputs.report import write_report
 from schedcheck.site import (

@@ -4,7 +4,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from schedcheck import readings as rd
+from schedcheck.readings import cleaning as rd
 
 
 def utc(text: str) -> int:

@@ -1,4 +1,4 @@
-"""Validation: the worked examples of RFC 5545, expanded by schedcheck.calendars.
+"""Validation: the worked examples of RFC 5545, expanded by schedcheck.schedule.calendars.
 
 Every expected list below is an outside source: the occurrences listed in RFC 5545 (Internet
 Calendaring and Scheduling Core Object Specification, September 2009). Section 3.8.5.3
@@ -19,8 +19,8 @@ import datetime as dt
 import icalendar
 import pytest
 
-from schedcheck.calendars import expand_calendar
 from schedcheck.errors import InputError
+from schedcheck.schedule.calendars import expand_calendar
 
 NY = "America/New_York"
 
@@ -35,7 +35,7 @@ def _starts(body: str, first: dt.date, last: dt.date) -> list[str]:
     """Local start times ``YYYY-MM-DD HH:MM`` of every occurrence, sorted.
 
     The window is expanded one calendar year at a time, so examples that span more years than
-    the longest audit window (schedcheck.calendars.MAX_WINDOW_DAYS) can be checked whole; the
+    the longest audit window (calendars.MAX_WINDOW_DAYS) can be checked whole; the
     09:00-10:00 occurrences never cross a year boundary, so nothing is clipped or doubled.
     """
     ev = _calendar(body)

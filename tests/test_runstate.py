@@ -4,8 +4,9 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from schedcheck import runstate, synth
+from schedcheck.demo import synth
 from schedcheck.errors import InputError
+from schedcheck.runstate import classify as runstate
 from schedcheck.site import Component, RunStateSettings, ScheduleSettings, Unit
 
 T0 = pd.Timestamp("2026-03-02T00:00Z")
@@ -407,7 +408,7 @@ def test_three_level_groups_all_below_the_floor_are_never_running():
     # three groups of background levels, all far below the 0.2 mm/s floor (a stopped machine
     # whose sensor steps between ranges): before, the level went between the top two groups
     # and the top background group counted as running
-    from schedcheck.onofflevel import choose_threshold
+    from schedcheck.runstate.onofflevel import choose_threshold
 
     rng = np.random.default_rng(3)
     L = np.concatenate([rng.normal(np.log10(m), 0.01, 500) for m in (0.02, 0.03, 0.04)])

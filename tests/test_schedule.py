@@ -1,4 +1,4 @@
-"""schedcheck.schedule: union, days off, allowances, allowed windows, priorities, window edges."""
+"""schedule.intended: union, days off, allowances, allowed windows, priorities, window edges."""
 
 from __future__ import annotations
 
@@ -9,7 +9,7 @@ import pandas as pd
 import pytest
 
 from schedcheck.intervals import Intervals
-from schedcheck.schedule import UnitSchedule, expand_unit_schedule
+from schedcheck.schedule.intended import UnitSchedule, expand_unit_schedule
 from schedcheck.site import HolidaySettings
 
 OSLO = "Europe/Oslo"

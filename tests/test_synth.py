@@ -4,7 +4,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from schedcheck import synth
+from schedcheck.demo import synth
 
 T0 = pd.Timestamp("2026-03-02T00:00Z")
 T1 = pd.Timestamp("2026-03-09T00:00Z")

@@ -4,7 +4,7 @@ import numpy as np
 import pytest
 from skimage.filters import threshold_multiotsu, threshold_otsu
 
-from schedcheck import thresholds as th
+from schedcheck.runstate import thresholds as th
 
 
 def _mix(rng, parts):

@@ -1,7 +1,7 @@
 """Reading iCalendar (.ics) files, with errors that name the file (and line where known).
 
 :func:`read_calendar` parses one file; :func:`check_calendar_file` runs every guard rail of
-:mod:`schedcheck.calendars` on it, plus a trial expansion over one year, and returns the
+:mod:`schedcheck.schedule.calendars` on it, plus a trial expansion over one year, and returns the
 problems instead of raising (``schedcheck check`` reports them all).
 """
 
@@ -13,8 +13,8 @@ from pathlib import Path
 
 import icalendar
 
-from schedcheck.calendars import check_calendar, expand_calendar
 from schedcheck.errors import InputError, InputProblems
+from schedcheck.schedule.calendars import check_calendar, expand_calendar
 
 _UID_LINE = re.compile(r"^UID[;:](?:.*:)?(.*)$", re.IGNORECASE)
 

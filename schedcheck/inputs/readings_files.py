@@ -5,7 +5,7 @@ each hold about one sensor are read one configured sensor at a time with a row f
 memory follows the largest sensor rather than the whole file; Parquet files with the sensors
 mixed in every row group (where a filter would decode every group once per sensor) are
 streamed in batches instead. Rows are turned into clean per-sensor frames by
-:mod:`schedcheck.readings`.
+:mod:`schedcheck.readings.cleaning`.
 """
 
 from __future__ import annotations
@@ -16,10 +16,10 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from schedcheck import readings as rd
 from schedcheck.errors import InputError, InputProblems, NoReadingsError
 from schedcheck.inputs.readings_rows import Collector
 from schedcheck.inputs.site_file import resolve_patterns
+from schedcheck.readings import cleaning as rd
 from schedcheck.site import LEVEL_COLUMNS, Site
 
 CSV_CHUNK_ROWS = 500_000      # rows per CSV chunk: bounds memory (common practice, no source)

@@ -1,7 +1,7 @@
 """Rows of readings files, chunk by chunk, into per-sensor parts: parse, check, count, keep.
 
 Used by :mod:`schedcheck.inputs.readings_files` for every format; the rules themselves are in
-the core (:mod:`schedcheck.readings`, :mod:`schedcheck.timestamps`).
+the core (:mod:`schedcheck.readings.cleaning`, :mod:`schedcheck.readings.timestamps`).
 """
 
 from __future__ import annotations
@@ -13,8 +13,8 @@ import numpy as np
 import pandas as pd
 import pyarrow.compute as pc
 
-from schedcheck import readings as rd
 from schedcheck.errors import InputError
+from schedcheck.readings import cleaning as rd
 from schedcheck.site import Site
 
 BAD_ROW_EXAMPLES = 5          # bad rows named in a message (common practice, no source)

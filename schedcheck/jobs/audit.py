@@ -1,9 +1,9 @@
 """The audit job: site file in, audit files out (``schedcheck audit``).
 
 Opens the site and its readings (:mod:`schedcheck.jobs.common`), reads the calendars, classifies
-run states (:func:`schedcheck.runstate.classify_unit`), expands the intended schedule
-(:func:`schedcheck.schedule.expand_unit_schedule`), runs the core audit
-(:func:`schedcheck.audit.run_audit`) and writes the files (:mod:`schedcheck.outputs.files`) and
+run states (:func:`schedcheck.runstate.classify.classify_unit`), expands the intended schedule
+(:func:`schedcheck.schedule.intended.expand_unit_schedule`), runs the core audit
+(:func:`schedcheck.audit.run.run_audit`) and writes the files (:mod:`schedcheck.outputs.files`) and
 the report. Prints nothing: progress goes to the optional ``progress`` callback.
 """
 
@@ -18,7 +18,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from schedcheck.audit import AuditResult, run_audit
+from schedcheck.audit.run import AuditResult, run_audit
 from schedcheck.errors import InputError
 from schedcheck.intervals import to_ns
 from schedcheck.site import Site
@@ -63,7 +63,7 @@ def clip_readings(readings, start: pd.Timestamp, end: pd.Timestamp, max_gap: pd.
     Counts of duplicates and out-of-order rows stay those of the whole load; first, last,
     count, median interval and gaps are recomputed for the window.
     """
-    from schedcheck import readings as rd
+    from schedcheck.readings import cleaning as rd
 
     by_sensor, health = {}, {}
     for sensor, frame in readings.by_sensor.items():
@@ -96,7 +96,7 @@ def audit_result(
     """
     from schedcheck.jobs.common import load_readings
     from schedcheck.jobs.schedule import unit_schedules
-    from schedcheck.runstate import classify_unit
+    from schedcheck.runstate.classify import classify_unit
 
     say = progress or (lambda _msg: None)
     if first is None or last is None:

@@ -14,7 +14,7 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.errors import InputError, InputProblems
-from schedcheck.readings import SensorHealth
+from schedcheck.readings.cleaning import SensorHealth
 from schedcheck.site import Site
 
 
@@ -75,7 +75,7 @@ def _health_over_span(readings, max_gap) -> list[SensorHealth]:
 
     import numpy as np
 
-    from schedcheck.readings import measure_gaps
+    from schedcheck.readings.cleaning import measure_gaps
 
     firsts = [h.first for h in readings.health.values() if h.first is not None]
     if not firsts:

@@ -13,7 +13,7 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.errors import InputError, InputProblems
-from schedcheck.readings import Readings
+from schedcheck.readings.cleaning import Readings
 from schedcheck.site import Site, load_site
 from schedcheck.window import whole_days_covered
 
@@ -82,7 +82,7 @@ def data_days(readings: Readings, site: Site, *, limit: bool = True) -> tuple[dt
     sensor clock, years away from the rest) is a :class:`DataSpanError` that names the
     earliest and latest readings, rather than a complaint about a --to nobody gave.
     """
-    from schedcheck.calendars import MAX_WINDOW_DAYS
+    from schedcheck.schedule.calendars import MAX_WINDOW_DAYS
 
     first, last = data_span(readings)
     d0, d1 = whole_days_covered(first, last, site.timezone)

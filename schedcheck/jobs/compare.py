@@ -12,7 +12,7 @@ Per component:
   (:func:`schedcheck.changes.before_after`, occupied days compared with occupied days and
   unoccupied days with unoccupied days);
 * the dates where the daily pattern of off-schedule hours changed, found by PELT over the
-  whole window (:func:`schedcheck.changes.pelt_mean_shift` with the capped cost), whatever
+  whole window (PELT with the capped cost), whatever
   date the user gave.
 
 Days with more than ``max_no_data_h`` hours of no data are left out of both and counted, never
@@ -31,8 +31,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from schedcheck.calendars import MAX_WINDOW_DAYS
-from schedcheck.changes import (
+from schedcheck.changes.change_points import (
     BeforeAfter,
     before_after,
     change_point_ranges,
@@ -43,6 +42,7 @@ from schedcheck.changes import (
 )
 from schedcheck.errors import InputError
 from schedcheck.intervals import NS_PER_H
+from schedcheck.schedule.calendars import MAX_WINDOW_DAYS
 from schedcheck.window import local_midnight
 
 #: Default length of each period [days]: four whole weeks, so that both hold the same number of
@@ -180,7 +180,7 @@ def compare_daily(
     Parameters
     ----------
     daily : pandas.DataFrame
-        The audit's daily rows (:mod:`schedcheck.accounting`): ``date``, ``scheduled_ns``,
+        The audit's daily rows (:mod:`schedcheck.audit.accounting`): ``date``, ``scheduled_ns``,
         ``off_schedule_ns``, ``missed_ns``, ``running_ns``, ``no_data_ns``,
         ``off_schedule_kwh``, one row per local date of the window.
     change : datetime.date

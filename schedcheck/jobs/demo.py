@@ -9,7 +9,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from pathlib import Path
 
-from schedcheck.demo import DEFAULT_MONTHS, DEFAULT_SEED, DemoSite, build_demo, demo_readings
+from schedcheck.demo.build import DEFAULT_MONTHS, DEFAULT_SEED, DemoSite, build_demo, demo_readings
 
 
 @dataclass

@@ -16,7 +16,7 @@ import icalendar
 
 from schedcheck.errors import InputError
 from schedcheck.inputs.calendar_files import read_checked_calendar
-from schedcheck.schedule import UnitSchedule, expand_unit_schedule
+from schedcheck.schedule.intended import UnitSchedule, expand_unit_schedule
 from schedcheck.site import Site
 
 

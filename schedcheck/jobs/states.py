@@ -1,7 +1,7 @@
 """The ``states`` job: learned on/off levels per component, how clearly they separate, pictures.
 
 Opens the site, loads the readings of the window (local dates, both inclusive; default the
-whole days covered by the data), classifies every unit (:func:`schedcheck.runstate.classify_unit`)
+whole days covered by the data), classifies every unit (``classify_unit``)
 and returns one record per component. Never prints.
 """
 
@@ -16,7 +16,7 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.errors import InputError
-from schedcheck.runstate import ComponentStates, classify_unit
+from schedcheck.runstate.classify import ComponentStates, classify_unit
 from schedcheck.site import Site
 from schedcheck.window import day_window
 

@@ -31,8 +31,8 @@ import pyarrow as pa
 import pyarrow.csv as pacsv
 import pyarrow.parquet as pq
 
-from schedcheck.demo import DemoSite, machine_truth, observed_truth
-from schedcheck.demo_plan import SITE_NAME, TZ
+from schedcheck.demo.build import DemoSite, machine_truth, observed_truth
+from schedcheck.demo.plan import SITE_NAME, TZ
 from schedcheck.errors import InputError
 from schedcheck.intervals import NS_PER_S, from_ns, to_ns
 

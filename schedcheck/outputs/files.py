@@ -18,8 +18,8 @@ import numpy as np
 import pandas as pd
 
 from schedcheck import __version__ as _version
-from schedcheck.accounting import FIGURES
-from schedcheck.audit import AuditResult
+from schedcheck.audit.accounting import FIGURES
+from schedcheck.audit.run import AuditResult
 from schedcheck.intervals import NS_PER_H, NS_PER_S
 
 HOURS_DECIMALS = 3      # 0.001 h = 3.6 s: finer than the one-minute readings
@@ -270,7 +270,7 @@ def daily_frame(result: AuditResult) -> pd.DataFrame:
 def runs_frame(result: AuditResult) -> pd.DataFrame:
     """The rows of ``runs.csv``: every state interval of every component, in time order."""
     tz = result.site.timezone
-    from schedcheck.accounting import state_frame_from_sets
+    from schedcheck.audit.accounting import state_frame_from_sets
 
     parts = []
     for comp in result.components:

@@ -2,7 +2,7 @@
 
 Everything here is invented for demonstration and testing (no real building, person or
 product). This module holds the plan as data and renders the site file (TOML) and the
-calendars (iCalendar, RFC 5545) as text; :mod:`schedcheck.demo` turns the plan into true run
+calendars (iCalendar, RFC 5545) as text; :mod:`schedcheck.demo.build` turns the plan into true run
 intervals, faults and readings.
 """
 
@@ -15,8 +15,8 @@ import holidays as holidays_lib
 import numpy as np
 import pandas as pd
 
-from schedcheck.calendars import HOLIDAY_MARKER
 from schedcheck.intervals import NS_PER_S, from_ns, to_ns
+from schedcheck.schedule.calendars import HOLIDAY_MARKER
 
 TZ = "Europe/Oslo"
 SITE_NAME = "Lindeskar Learning House"

@@ -1,7 +1,7 @@
 """Before/after comparison of a daily figure around a change date (pure core).
 
 Compares like with like (day type by day type) and gives a Welch-Satterthwaite 95% interval
-for the difference. Re-exported by :mod:`schedcheck.changes`.
+for the difference. Re-exported by :mod:`schedcheck.changes.change_points`.
 
 References
 ----------

@@ -9,7 +9,7 @@ daylight-saving change (2026-03-29) and Easter (5 April 2026).
 ``build_demo(seed, months)`` returns a :class:`DemoSite` held in memory: the site-file text, the
 calendar texts, the true run/off intervals of every component (UTC, minute-exact plus seconds),
 the data gaps, and the planted faults with kind, component, local dates and a sentence.
-``demo_readings(demo)`` turns the truth into readings rows with :mod:`schedcheck.synth`;
+``demo_readings(demo)`` turns the truth into readings rows with :mod:`schedcheck.demo.synth`;
 ``observed_truth(demo)`` is the truth an audit should recover (``no_data`` over the gaps).
 Writing files is done by :mod:`schedcheck.outputs.demo_files`.
 
@@ -37,8 +37,8 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from schedcheck import synth
-from schedcheck.demo_plan import (
+from schedcheck.demo import synth
+from schedcheck.demo.plan import (
     BATTERY_FLAT,
     CALENDARS,
     CONTROLS_CHANGE,
@@ -378,7 +378,7 @@ def _two_digits(v: np.ndarray) -> np.ndarray:
 
 
 def demo_readings(demo: DemoSite) -> dict[str, pd.DataFrame]:
-    """Readings rows per readings file (gateway export), made by :mod:`schedcheck.synth`.
+    """Readings rows per readings file (gateway export), made by :mod:`schedcheck.demo.synth`.
 
     Rows are in file order: sensors interleaved by time, with synth's duplicates, out-of-order
     rows and lost packets. Timestamps are whole seconds. Each sensor reports RMS on its axes

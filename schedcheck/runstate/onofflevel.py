@@ -1,8 +1,8 @@
 """The on/off level of one component: levels per reading, grouping, the learned or floor level.
 
-Part of run-state classification (see :mod:`schedcheck.runstate` for the whole sequence and
+Part of run-state classification (see :mod:`schedcheck.runstate.classify` for the whole sequence and
 ``docs/run-states.md`` for the user's view). The published methods (Otsu, Ashman's D, the
-histogram valley) live in :mod:`schedcheck.thresholds`; this module decides which one applies.
+histogram valley) live in :mod:`.thresholds`; this module decides which one applies.
 
 Defaults (each with its source):
 
@@ -28,9 +28,9 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from schedcheck import thresholds as th
 from schedcheck.errors import InputError
 from schedcheck.intervals import to_ns
+from schedcheck.runstate import thresholds as th
 from schedcheck.site import RunStateSettings
 
 FLOOR_BY_UNIT = {"mm/s": 0.2, "in/s": 0.008, "ips": 0.008, "m/s": 0.0002,

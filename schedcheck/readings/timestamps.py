@@ -1,7 +1,7 @@
 """Timestamps of readings rows to UTC: ISO 8601 with an offset, epoch seconds, typed timestamps,
 and local wall times read through the IANA time zone database (daylight saving handled).
 
-Core code: pandas/Arrow in, numpy out; no file access. Used by :mod:`schedcheck.readings`.
+Core code: pandas/Arrow in, numpy out; no file access. Used by :mod:`schedcheck.readings.cleaning`.
 """
 
 from __future__ import annotations

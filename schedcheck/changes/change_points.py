@@ -10,7 +10,7 @@ pattern shifted, whatever anybody says the change date was).
 * :func:`mean_shift_penalty` is the default penalty: ``(G + 2) * log(n) * sigma^2``, the
   MBIC penalty value (Zhang and Siegmund 2007) with a robust noise estimate from
   :func:`robust_sigma`.
-* :func:`before_after` (in :mod:`schedcheck.before_after`, re-exported here) compares the two
+* :func:`before_after` (from :mod:`schedcheck.changes.before_after`) compares the two
   periods day type by day type and gives a Welch (Satterthwaite) 95% interval.
 
 Series here are plain arrays or pandas Series of one value per local date (for instance
@@ -36,7 +36,7 @@ from collections.abc import Sequence
 import numpy as np
 import pandas as pd
 
-from schedcheck.before_after import BeforeAfter, before_after, default_day_types
+from schedcheck.changes.before_after import BeforeAfter, before_after, default_day_types
 from schedcheck.errors import InputError
 
 __all__ = [

@@ -15,7 +15,7 @@ from zoneinfo import ZoneInfo
 import numpy as np
 import pandas as pd
 
-from schedcheck.findings_rules import NS_PER_MIN, Context, Found, day_text, local_dates, midnight_ns
+from schedcheck.findings.rules import NS_PER_MIN, Context, Found, day_text, local_dates, midnight_ns
 from schedcheck.intervals import Intervals, union_all
 
 # "About an hour": the shift must lie within this of the change (45-75 min for a one-hour

@@ -6,7 +6,7 @@ The writers in :mod:`schedcheck.outputs.files` turn the result into the audit's 
 
 A unit's own state is its state component's (:attr:`schedcheck.site.Unit.state_component`,
 its supply fan where it has one). Energy is priced with the fan affinity law
-(:mod:`schedcheck.energy`) at each component's usual running speed.
+(:mod:`schedcheck.audit.energy`) at each component's usual running speed.
 """
 
 from __future__ import annotations
@@ -18,8 +18,8 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from schedcheck.accounting import ComponentAccount, account_component
-from schedcheck.energy import affinity_power, price
+from schedcheck.audit.accounting import ComponentAccount, account_component
+from schedcheck.audit.energy import affinity_power, price
 from schedcheck.intervals import NS_PER_H, Intervals, to_ns
 from schedcheck.site import Component, Site, Unit
 
@@ -135,7 +135,7 @@ def run_audit(
         Data-health figures, rejected rows and load warnings, carried into the result.
     find : callable, optional
         The finding rules, ``find(result) -> DataFrame``; by default
-        :func:`schedcheck.findings.find_issues` through :func:`collect_findings`.
+        :func:`schedcheck.findings.find.find_issues` through :func:`collect_findings`.
 
     Returns
     -------
@@ -206,9 +206,9 @@ def empty_findings() -> pd.DataFrame:
 
 
 def collect_findings(result: AuditResult) -> pd.DataFrame:
-    """Run the finding rules (:func:`schedcheck.findings.find_issues`) on every component."""
-    from schedcheck.accounting import state_frame_from_sets
-    from schedcheck.findings import find_issues  # written alongside this module
+    """Run the finding rules (:func:`schedcheck.findings.find.find_issues`) on every component."""
+    from schedcheck.audit.accounting import state_frame_from_sets
+    from schedcheck.findings.find import find_issues  # written alongside this module
 
     site = result.site
     frames = []

@@ -5,7 +5,7 @@ schedule and the days off into a table of findings. The rules, in the order they
 (each later rule only sees what the earlier ones left unexplained, so one cause gives one
 finding, not ten symptoms):
 
-1. **clock_offset** (:mod:`schedcheck.findings_clock`). For each daylight-saving change inside
+1. **clock_offset** (:mod:`schedcheck.findings.clock`). For each daylight-saving change inside
    the window, the first start and last stop of each working day (relative to that day's
    occupied period) are compared with the median of up to ``CLOCK_DAYS`` working days before
    the change. When, over the first ``CLOCK_DAYS`` working days after it (at least
@@ -63,9 +63,10 @@ from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 import numpy as np
 import pandas as pd
 
-from schedcheck import findings_clock, findings_rules
 from schedcheck.errors import InputError
-from schedcheck.findings_rules import Context, Params
+from schedcheck.findings import clock as findings_clock
+from schedcheck.findings import rules as findings_rules
+from schedcheck.findings.rules import Context, Params
 from schedcheck.intervals import Intervals, to_ns
 from schedcheck.site import Component, FindingSettings
 

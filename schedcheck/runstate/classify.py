@@ -6,7 +6,7 @@ Steps, for each component (see ``docs/run-states.md`` for the user's view):
    ``sqrt(x_rms^2 + y_rms^2 + z_rms^2)`` [reading unit]; the magnitude of the peak axes is kept
    as supporting evidence (start transients). Grouping works on ``log10(level)``.
 2. **On/off level.** A ``threshold`` set for the component wins (source ``configured``).
-   Otherwise the log levels are grouped (:func:`schedcheck.thresholds.level_groups`: Otsu's
+   Otherwise the log levels are grouped (:func:`schedcheck.runstate.thresholds.level_groups`: Otsu's
    split, Ashman's D, a histogram valley) and the level is learned (source ``learned``: the
    lowest point of the histogram between the off and the running group), or, when they do
    not split into well-separated groups, decided against an absolute floor level
@@ -33,7 +33,7 @@ Defaults (each with its source):
 * ``TRANSIENT_CREST`` = 2.5: steady running fans show crest factors of about 1.4-2 (sine
   sqrt(2); common practice, no source), start transients more.
 * The floor level, hysteresis and carried-vibration defaults are documented in
-  :mod:`schedcheck.onofflevel`.
+  :mod:`schedcheck.runstate.onofflevel`.
 """
 
 from __future__ import annotations
@@ -44,10 +44,10 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from schedcheck import thresholds as th
 from schedcheck.errors import InputError
 from schedcheck.intervals import to_ns
-from schedcheck.onofflevel import (  # noqa: F401 - re-exported: the classifier's public names
+from schedcheck.runstate import thresholds as th
+from schedcheck.runstate.onofflevel import (  # noqa: F401 - re-exported: the classifier's public names
     CARRIED_SHARE,
     FLOOR_BY_UNIT,
     HYSTERESIS,

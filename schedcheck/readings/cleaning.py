@@ -27,7 +27,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from schedcheck.durations import format_duration
-from schedcheck.timestamps import (  # noqa: F401 - re-exported: the readings rules in one place
+from schedcheck.readings.timestamps import (  # noqa: F401 - re-exported: the readings rules in one place
     AMBIGUOUS,
     EMPTY,
     EPOCH_RANGE,

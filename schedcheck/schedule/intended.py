@@ -2,9 +2,9 @@
 
 Steps, for the local dates ``first..last`` of an audit window:
 
-1. The ``occupied`` calendars are expanded (:mod:`schedcheck.calendars`); their events may
+1. The ``occupied`` calendars are expanded (:mod:`schedcheck.schedule.calendars`); their events may
    overlap and come in any order.
-2. Days off (public holidays and closures, :mod:`schedcheck.daysoff`) remove occupied periods.
+2. Days off (public holidays and closures, :mod:`.daysoff`) remove occupied periods.
    The rule: an occurrence belongs to the local date it *starts* on. An occurrence that starts
    on a day off is removed whole, including any part after midnight; an occurrence that starts
    the evening before a day off and runs past midnight into it is kept whole (it is the
@@ -34,11 +34,11 @@ import icalendar
 import numpy as np
 import pandas as pd
 
-from schedcheck.calendars import MAX_WINDOW_DAYS, check_window, expand_calendar
-from schedcheck.daysoff import DAYS_OFF_COLUMNS
-from schedcheck.daysoff import days_off as compute_days_off
 from schedcheck.durations import format_duration
 from schedcheck.intervals import Intervals, from_ns, union_all
+from schedcheck.schedule.calendars import MAX_WINDOW_DAYS, check_window, expand_calendar
+from schedcheck.schedule.daysoff import DAYS_OFF_COLUMNS
+from schedcheck.schedule.daysoff import days_off as compute_days_off
 from schedcheck.site import HolidaySettings
 from schedcheck.window import day_window, local_midnight
 

@@ -22,12 +22,12 @@ Time rules
   An occurrence that ends up with zero or negative length is dropped with a warning naming it.
 - ``STATUS:CANCELLED`` occurrences are not periods (RFC 5545 section 3.8.1.11).
 - An event whose CATEGORIES contain ``OPEN-ON-HOLIDAYS`` (any case) also applies on public
-  holidays and closure dates; see :mod:`schedcheck.schedule`.
+  holidays and closure dates; see :mod:`schedcheck.schedule.intended`.
 
 Guard rails
 -----------
 The library silently drops or reinterprets some faults, and some rules would hang or exhaust
-the machine; :func:`schedcheck.calendar_checks.check_calendar` refuses them all up front,
+the machine; :func:`schedcheck.schedule.guards.check_calendar` refuses them all up front,
 naming file and event: a missing DTSTART, a property that does not parse, a TZID that matches
 no VTIMEZONE and no IANA zone, DTEND before DTSTART, DTEND together with DURATION, DTSTART and
 DTEND of different value types, a negative DURATION, an RRULE without FREQ or with
@@ -50,14 +50,14 @@ import numpy as np
 import pandas as pd
 import recurring_ical_events
 
-from schedcheck.calendar_checks import (
+from schedcheck.errors import InputError, InputProblems
+from schedcheck.intervals import from_ns
+from schedcheck.schedule.guards import (
     as_naive,
     check_calendar,
     event_label,
     rule_dicts,
 )
-from schedcheck.errors import InputError, InputProblems
-from schedcheck.intervals import from_ns
 from schedcheck.window import day_window, local_midnight
 
 HOLIDAY_MARKER = "OPEN-ON-HOLIDAYS"

@@ -1,4 +1,4 @@
-"""The finding rules behind :func:`schedcheck.findings.find_issues` (documented there).
+"""The finding rules behind :func:`schedcheck.findings.find.find_issues` (documented there).
 
 Each rule takes a :class:`Context` (one component's interval sets, int64 ns UTC) and returns a
 list of :class:`Found`. Sentences carry ``{energy}`` where the caller puts the kWh and cost.

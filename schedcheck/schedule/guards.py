@@ -1,8 +1,8 @@
 """Static guard rails for iCalendar events: everything that can be checked without a window.
 
-Used by :mod:`schedcheck.calendars` before every expansion and by ``schedcheck check`` through
+Used by :mod:`.calendars` before every expansion and by ``schedcheck check`` through
 :func:`schedcheck.inputs.calendar_files.check_calendar_file`. The list of rails and their
-reasons is in the docstring of :mod:`schedcheck.calendars` and in docs/calendars.md.
+reasons is in the docstring of :mod:`schedcheck.schedule.calendars` and in docs/calendars.md.
 """
 
 from __future__ import annotations
