@@ -21,6 +21,11 @@ def local_midnight(day: dt.date, tz: str) -> pd.Timestamp:
     )
 
 
+def last_local_date(end: pd.Timestamp, tz: str) -> dt.date:
+    """The local date of the last instant of a window ``[start, end)`` in zone ``tz``."""
+    return (end - pd.Timedelta(1, "ns")).tz_convert(tz).date()
+
+
 def day_window(first: dt.date, last: dt.date, tz: str) -> tuple[pd.Timestamp, pd.Timestamp]:
     """UTC ``[start, end)`` covering local dates ``first`` .. ``last``, both inclusive."""
     if last < first:

@@ -29,10 +29,10 @@ import numpy as np
 import pandas as pd
 
 from schedcheck.intervals import NS_PER_H, Intervals, from_ns, to_ns, union_all
-from schedcheck.window import day_edges
+from schedcheck.runstate.states import STATES
+from schedcheck.schedule.kinds import SCHEDULE_KINDS
+from schedcheck.window import day_edges, last_local_date
 
-STATES = ("run", "off", "no_data")
-SCHEDULE_KINDS = ("occupied", "allowance", "allowed")
 WEEKDAYS = ("Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun")
 
 #: hour figures, in the order they are reported
@@ -244,7 +244,7 @@ def account_component(
 
 def _local_dates(start: pd.Timestamp, end: pd.Timestamp, tz: str) -> tuple[dt.date, dt.date]:
     first = start.tz_convert(tz).date()
-    last = (end - pd.Timedelta(1, "ns")).tz_convert(tz).date()
+    last = last_local_date(end, tz)
     return first, last
 
 

@@ -22,6 +22,7 @@ from schedcheck.audit.accounting import ComponentAccount, account_component
 from schedcheck.audit.energy import affinity_power, price
 from schedcheck.intervals import NS_PER_H, Intervals, to_ns
 from schedcheck.site import Component, Site, Unit
+from schedcheck.window import last_local_date
 
 #: Share of the window without data above which a component's figures get a warning
 #: (common practice, no source: a tenth unknown makes hour totals noticeably low).
@@ -147,7 +148,7 @@ def run_audit(
     if first_date is None:
         first_date = start.tz_convert(tz).date()
     if last_date is None:
-        last_date = (end - pd.Timedelta(1, "ns")).tz_convert(tz).date()
+        last_date = last_local_date(end, tz)
     e = site.energy
     results: list[ComponentResult] = []
     all_warnings = list(warnings or [])

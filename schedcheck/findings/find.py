@@ -66,8 +66,11 @@ import pandas as pd
 from schedcheck.errors import InputError
 from schedcheck.findings import clock as findings_clock
 from schedcheck.findings import rules as findings_rules
+from schedcheck.findings.kinds import KINDS  # noqa: F401 - re-exported
 from schedcheck.findings.rules import Context, Params
 from schedcheck.intervals import Intervals, to_ns
+from schedcheck.runstate.states import STATES
+from schedcheck.schedule.kinds import DAY_OFF_KINDS, SCHEDULE_KINDS
 from schedcheck.site import Component, FindingSettings
 
 # Off-schedule running must persist this long to be a finding on its own. Common practice for
@@ -111,13 +114,8 @@ CLOCK_MIN_DAYS = findings_clock.CLOCK_MIN_DAYS
 # practice, no source.
 CLOCK_SHARE = findings_clock.CLOCK_SHARE
 
-KINDS = ("night", "weekend", "holiday", "continuous", "clock_offset", "early_start", "late_stop",
-         "missed", "short_cycling")
 COLUMNS = ["component", "kind", "start", "end", "date", "hours", "kwh", "cost", "co2_kg",
            "detail"]
-STATES = ("run", "off", "no_data")
-SCHEDULE_KINDS = ("occupied", "allowance", "allowed")
-DAY_OFF_KINDS = ("holiday", "closure")
 
 
 def default_settings() -> dict[str, object]:

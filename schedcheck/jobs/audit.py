@@ -22,7 +22,7 @@ from schedcheck.audit.run import AuditResult, run_audit
 from schedcheck.errors import InputError
 from schedcheck.intervals import to_ns
 from schedcheck.site import Site
-from schedcheck.window import day_window
+from schedcheck.window import day_window, last_local_date
 
 
 def default_outdir(site: Site) -> Path:
@@ -190,8 +190,7 @@ def _window_warnings(readings, start: pd.Timestamp, end: pd.Timestamp, tz: str) 
                    f"reading is at {min(firsts).tz_convert(tz):%Y-%m-%d %H:%M}; the time "
                    "before it is counted as no data")
     if lasts and end - max(lasts) > slack:
-        last_day = (end - pd.Timedelta(1, "ns")).tz_convert(tz)
-        out.append(f"the window ends with {last_day:%Y-%m-%d} but the last "
+        out.append(f"the window ends with {last_local_date(end, tz)} but the last "
                    f"reading is at {max(lasts).tz_convert(tz):%Y-%m-%d %H:%M}; the time "
                    "after it is counted as no data")
     return out

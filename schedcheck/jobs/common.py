@@ -15,7 +15,7 @@ import pandas as pd
 from schedcheck.errors import InputError, InputProblems
 from schedcheck.readings.cleaning import Readings
 from schedcheck.site import Site, load_site
-from schedcheck.window import whole_days_covered
+from schedcheck.window import last_local_date, whole_days_covered
 
 
 def open_site(path: str | Path, *, require_readings: bool = True) -> Site:
@@ -55,7 +55,7 @@ def load_readings(site: Site, start: pd.Timestamp | None = None,
             raise
         # the files are fine, the asked days hold nothing: point at the dates, in local time
         d0 = start.tz_convert(site.timezone).date()
-        d1 = (end - pd.Timedelta(1, "ns")).tz_convert(site.timezone).date()
+        d1 = last_local_date(end, site.timezone)
         raise InputError(
             f"no readings for any configured sensor on {d0} to {d1} (local dates); choose days "
             f"the readings cover (`schedcheck check {site.path}` lists each sensor's first and "

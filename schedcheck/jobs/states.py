@@ -17,10 +17,9 @@ import pandas as pd
 
 from schedcheck.errors import InputError
 from schedcheck.runstate.classify import ComponentStates, classify_unit
+from schedcheck.runstate.onofflevel import SEPARATION_CAP
 from schedcheck.site import Site
 from schedcheck.window import day_window
-
-SEPARATION_CAP = 1000.0   # Ashman's D above this is reported as this (noise-free levels)
 
 
 @dataclass

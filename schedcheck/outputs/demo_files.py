@@ -35,6 +35,7 @@ from schedcheck.demo.build import DemoSite, machine_truth, observed_truth
 from schedcheck.demo.plan import SITE_NAME, TZ
 from schedcheck.errors import InputError
 from schedcheck.intervals import NS_PER_S, from_ns, to_ns
+from schedcheck.outputs.schema import SUMMARY_SCHEMA
 
 README_FIRST_LINE = "INVENTED DEMO DATA written by `schedcheck demo`."
 _TIME_FMT = "%Y-%m-%dT%H:%M:%SZ"
@@ -90,7 +91,7 @@ def _readings_parquet(frame: pd.DataFrame, path: Path) -> None:
 def faults_document(demo: DemoSite) -> dict:
     """The content of ``truth/faults.json`` (plain JSON types; instants as UTC ISO 8601)."""
     return {
-        "schema": 1,
+        "schema": SUMMARY_SCHEMA,
         "note": "Invented demo data: the faults planted by the generator (its saved truth).",
         "site": SITE_NAME,
         "timezone": TZ,

@@ -21,6 +21,7 @@ from schedcheck import __version__ as _version
 from schedcheck.audit.accounting import FIGURES
 from schedcheck.audit.run import AuditResult
 from schedcheck.intervals import NS_PER_H, NS_PER_S
+from schedcheck.outputs.schema import SUMMARY_SCHEMA
 
 HOURS_DECIMALS = 3      # 0.001 h = 3.6 s: finer than the one-minute readings
 ENERGY_DECIMALS = 3     # kWh and kg CO2e
@@ -214,7 +215,7 @@ def summary_dict(result: AuditResult) -> dict:
                                           for c in result.components), ENERGY_DECIMALS)
     total["findings"] = len(result.findings)
     return {
-        "schema": 1,
+        "schema": SUMMARY_SCHEMA,
         "generated": result.generated.tz_convert("UTC").isoformat().replace("+00:00", "Z"),
         "tool_version": _version,
         "site": {"name": site.name, "timezone": tz, "currency": site.energy.currency,

@@ -21,9 +21,9 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.errors import InputError
-
-STATES = ("run", "off", "no_data")
-SCHEDULE_KINDS = ("occupied", "allowance", "allowed")
+from schedcheck.outputs.schema import SUMMARY_SCHEMA as SCHEMA
+from schedcheck.runstate.states import STATES
+from schedcheck.schedule.kinds import SCHEDULE_KINDS
 
 # file name -> (required columns, instant columns, numeric columns, instants may be blank)
 _CSV_SPECS: dict[str, tuple[tuple[str, ...], tuple[str, ...], tuple[str, ...], bool]] = {
@@ -140,7 +140,6 @@ def read_saved_audit(outdir: str | Path) -> SavedAudit:
                       schedule=frames["schedule.csv"])
 
 
-SCHEMA = 1   # the summary.json layout written by outputs/files.py
 
 
 def read_summary(path: Path) -> dict:

@@ -60,6 +60,7 @@ from schedcheck.runstate.onofflevel import (  # noqa: F401 - re-exported: the cl
     log_levels,
     reading_levels,
 )
+from schedcheck.runstate.states import NO_DATA, OFF, RUN
 from schedcheck.site import Component, RunStateSettings, Unit
 
 MIN_RUN = pd.Timedelta("3min")
@@ -151,7 +152,7 @@ def min_dwell(
     return starts, ends, run, segment
 
 
-_CODES = np.array(["off", "run", "no_data"], dtype=object)
+_CODES = np.array([OFF, RUN, NO_DATA], dtype=object)
 
 
 def _state_table(

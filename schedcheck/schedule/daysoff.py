@@ -22,6 +22,7 @@ import holidays as holidays_lib
 import pandas as pd
 
 from schedcheck.errors import InputError
+from schedcheck.schedule.kinds import CLOSURE, HOLIDAY
 from schedcheck.site import HolidaySettings
 
 DAYS_OFF_COLUMNS = ["date", "name", "kind"]
@@ -99,7 +100,7 @@ def public_holidays(
     for day, name in sorted(table.items()):
         if first <= day <= last:
             # the package joins several names of one date with "; "
-            rows.append((day, str(name), "holiday"))
+            rows.append((day, str(name), HOLIDAY))
     return pd.DataFrame(rows, columns=DAYS_OFF_COLUMNS)
 
 
@@ -112,7 +113,7 @@ def closure_days(
         name = "site closure" if a == b else f"site closure {a.isoformat()} to {b.isoformat()}"
         day = max(a, first)
         while day <= min(b, last):
-            rows.append((day, name, "closure"))
+            rows.append((day, name, CLOSURE))
             day += dt.timedelta(days=1)
     return pd.DataFrame(rows, columns=DAYS_OFF_COLUMNS)
 
@@ -149,6 +150,6 @@ def days_off(
         len(p) for p in parts) else pd.DataFrame(columns=DAYS_OFF_COLUMNS)
     if len(frame):
         frame = frame.sort_values(["date", "kind"], kind="stable",
-                                  key=lambda s: s.map({"holiday": 0, "closure": 1})
+                                  key=lambda s: s.map({HOLIDAY: 0, CLOSURE: 1})
                                   if s.name == "kind" else s).reset_index(drop=True)
     return frame
