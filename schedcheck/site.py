@@ -162,11 +162,9 @@ class Site:
 LEVEL_COLUMNS = ("x_rms", "y_rms", "z_rms", "x_peak", "y_peak", "z_peak")
 READING_COLUMNS = ("timestamp", "sensor") + LEVEL_COLUMNS
 
-# Ranges from the project's issue 2 (item 5). The affinity-law exponent is 3 in theory; measured
-# fan systems fall between about 1.5 and 3.5 (common practice, no source; the bounds are the
-# issue's). Speeds above 1.0 cover fans driven past design speed by a drive (up to 20 %).
+# Speeds above 1.0 cover fans driven past design speed by a drive (up to 20 %; common
+# practice, no source).
 SPEED_RANGE = (0.0, 1.2)          # exclusive low, inclusive high [-]
-EXPONENT_RANGE = (1.5, 3.5)       # inclusive [-]
 
 
 def load_site(path: str | Path, *, require_readings: bool = True) -> Site:

@@ -36,6 +36,11 @@ import numpy as np
 #: (U.S. DOE Motor Systems Tip Sheet #11; see the module docstring).
 DEFAULT_EXPONENT = 3.0
 
+#: Accepted exponents, inclusive [-]. The exponent is 3 in theory; measured fan systems fall
+#: between about 1.5 (a VAV system holding static pressure) and 3.5 (common practice, no source).
+#: The site file's validator and :func:`affinity_power` both use this one range.
+EXPONENT_RANGE = (1.5, 3.5)
+
 
 def affinity_power(power_kw, speed, exponent: float = DEFAULT_EXPONENT):
     """Electrical input power of a fan at a fraction of its design speed (fan affinity law).
@@ -65,8 +70,9 @@ def affinity_power(power_kw, speed, exponent: float = DEFAULT_EXPONENT):
         raise ValueError(f"power_kw must be a finite number >= 0, got {power_kw!r}")
     if np.any(~np.isfinite(s)) or np.any(s < 0):
         raise ValueError(f"speed must be a finite fraction >= 0, got {speed!r}")
-    if not (np.isfinite(exponent) and 1.0 <= exponent <= 4.0):
-        raise ValueError(f"exponent must be between 1 and 4, got {exponent!r}")
+    lo, hi = EXPONENT_RANGE
+    if not (np.isfinite(exponent) and lo <= exponent <= hi):
+        raise ValueError(f"exponent must be between {lo:g} and {hi:g}, got {exponent!r}")
     out = p * s**exponent
     return float(out) if out.ndim == 0 else out
 

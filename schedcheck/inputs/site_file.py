@@ -16,9 +16,9 @@ from pathlib import Path
 
 import pandas as pd
 
+from schedcheck.audit.energy import EXPONENT_RANGE
 from schedcheck.inputs.toml_lines import key_lines
 from schedcheck.site import (
-    EXPONENT_RANGE,
     READING_COLUMNS,
     ROLES,
     SPEED_RANGE,
