@@ -19,6 +19,8 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from schedcheck.errors import TableError
+
 NS_PER_S = 1_000_000_000
 NS_PER_H = 3600 * NS_PER_S
 
@@ -232,8 +234,6 @@ def table_ns(frame, name: str, columns: tuple[str, ...]) -> tuple[np.ndarray, np
     lacks one of ``columns``, holds naive or unreadable instants, or has a row that ends before
     it starts.
     """
-    from schedcheck.errors import TableError
-
     if not isinstance(frame, pd.DataFrame):
         raise TableError(f"expected a table, got {type(frame).__name__}", key=name)
     missing = [c for c in columns if c not in frame.columns]
@@ -258,8 +258,6 @@ def check_labels(frame, name: str, column: str, allowed: tuple[str, ...], what: 
 
     ``what`` names the labels in the message (``run states``, ``schedule kinds``).
     """
-    from schedcheck.errors import TableError
-
     labels = frame[column].astype(str).to_numpy() if len(frame) else np.empty(0, dtype=object)
     bad = sorted(set(labels) - set(allowed))
     if bad:
