@@ -92,3 +92,16 @@ class InputProblems(InputError):
         self.path = first.path
         self.line = first.line
         self.key = first.key
+
+
+class TableError(InputError, ValueError):
+    """A table handed to the core breaks its contract (a missing column, an unknown state or
+    kind, naive instants, a row that ends before it starts).
+
+    The core checks a table once, where it enters (:meth:`schedcheck.runstate.states.StateSets
+    .from_table`, :meth:`schedcheck.audit.accounting.ScheduleSets.from_table`). Such a table
+    comes from a caller's data, so this is an :class:`InputError` naming the table and column
+    (``states.state: ...``) and the CLI reports it as bad input; it is also a ``ValueError``,
+    what a library caller expects for an argument of the right type but a wrong value. A
+    separate programmer-error type would split one check into two kinds of failure again.
+    """

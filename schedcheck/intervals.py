@@ -19,6 +19,8 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from schedcheck.errors import TableError
+
 NS_PER_S = 1_000_000_000
 NS_PER_H = 3600 * NS_PER_S
 
@@ -222,3 +224,43 @@ def union_all(sets: Iterable[Intervals]) -> Intervals:
     return Intervals.from_arrays(
         np.concatenate([s.starts for s in sets]), np.concatenate([s.ends for s in sets])
     )
+
+
+def table_ns(frame, name: str, columns: tuple[str, ...]) -> tuple[np.ndarray, np.ndarray]:
+    """The ``start`` and ``end`` columns of a labelled-interval table as int64 ns [UTC].
+
+    The one check of an interval table where it enters the core: a
+    :class:`schedcheck.errors.TableError` names the table (``name``) when it is not a DataFrame,
+    lacks one of ``columns``, holds naive or unreadable instants, or has a row that ends before
+    it starts.
+    """
+    if not isinstance(frame, pd.DataFrame):
+        raise TableError(f"expected a table, got {type(frame).__name__}", key=name)
+    missing = [c for c in columns if c not in frame.columns]
+    if missing:
+        raise TableError(f"missing column(s) {', '.join(missing)}", key=name)
+    out = []
+    for col in ("start", "end"):
+        try:
+            out.append(np.asarray(to_ns(frame[col]), dtype=np.int64))
+        except (ValueError, TypeError) as exc:
+            raise TableError(f"column '{col}' must hold zone-aware instants ({exc})",
+                             key=name) from None
+    s, e = out
+    if len(frame) and bool(np.any(e < s)):
+        row = int(np.flatnonzero(e < s)[0])
+        raise TableError(f"row {row} ends before it starts", key=name)
+    return s, e
+
+
+def check_labels(frame, name: str, column: str, allowed: tuple[str, ...], what: str) -> np.ndarray:
+    """The ``column`` of an interval table as str, refusing any label not in ``allowed``.
+
+    ``what`` names the labels in the message (``run states``, ``schedule kinds``).
+    """
+    labels = frame[column].astype(str).to_numpy() if len(frame) else np.empty(0, dtype=object)
+    bad = sorted(set(labels) - set(allowed))
+    if bad:
+        raise TableError(f"unknown {column} {bad[0]!r}; expected one of {', '.join(allowed)} "
+                         f"(unknown {what}: {', '.join(bad)})", key=f"{name}.{column}")
+    return labels

@@ -11,6 +11,7 @@ import pytest
 from schedcheck.audit.run import run_audit
 from schedcheck.outputs.files import finding_uid, write_audit_files
 from schedcheck.outputs.report import write_report
+from schedcheck.runstate.classify import ComponentStates
 from schedcheck.site import (
     Component,
     EnergySettings,
@@ -48,6 +49,13 @@ def make_site(tmp_path: Path) -> Site:
                 units=(unit,))
 
 
+def audit(site, tables, schedules, start, end, **options):
+    """run_audit on hand-written run-state tables (read once into ComponentStates)."""
+    comps = {c.key: c for u in site.units for c in u.components}
+    states = {k: ComponentStates.from_table(comps[k], f, start, end) for k, f in tables.items()}
+    return run_audit(site, states, schedules, start, end, **options)
+
+
 class Sched:
     def __init__(self, intervals, days_off):
         self.intervals, self.days_off = intervals, days_off
@@ -76,7 +84,7 @@ def result(tmp_path):
                              "start": [t("2026-10-24 08:00")], "end": [t("2026-10-25 12:00")],
                              "detail": ["Ran 28 h over the weekend <check the time program>."]})
 
-    return run_audit(site, {"AHU-9/supply": supply, "AHU-9/wheel": wheel},
+    return audit(site, {"AHU-9/supply": supply, "AHU-9/wheel": wheel},
                      {"AHU-9": Sched(sched, days_off)}, start, end, find=find)
 
 
@@ -192,7 +200,7 @@ def test_findings_ics_without_findings_is_still_a_valid_calendar(tmp_path):
     start, end = day_window(dt.date(2026, 3, 2), dt.date(2026, 3, 2), TZ)
     off = frame([("2026-03-02 00:00", "2026-03-03 00:00", "off")], "state")
     empty = frame([], "kind")
-    res = run_audit(site, {"AHU-9/supply": off, "AHU-9/wheel": off},
+    res = audit(site, {"AHU-9/supply": off, "AHU-9/wheel": off},
                     {"AHU-9": Sched(empty, None)}, start, end, find=lambda r: None)
     files = write_audit_files(res, tmp_path)
     cal = icalendar.Calendar.from_ical(files["findings.ics"].read_bytes())
@@ -214,12 +222,12 @@ def test_unit_without_a_fan_is_told_that_missed_operation_is_not_checked(tmp_pat
     off = frame([("2026-03-02 00:00", "2026-03-03 00:00", "off")], "state")
     occ = frame([("2026-03-02 07:00", "2026-03-02 17:00", "occupied")], "kind")
     occ["source"] = "office.ics"
-    res = run_audit(site, {"AHU-9/wheel": off}, {"AHU-9": Sched(occ, None)}, start, end,
+    res = audit(site, {"AHU-9/wheel": off}, {"AHU-9": Sched(occ, None)}, start, end,
                     find=lambda r: None)
     acc = res.components[0].account
     assert acc.ns["missed"] == 0 and acc.ns["occupied_off"] == 10 * 3600 * 10**9
     assert any(w.startswith("AHU-9: no fan is monitored") for w in res.warnings)
     # a unit with a fan gets no such line
-    res = run_audit(make_site(tmp_path), {"AHU-9/supply": off, "AHU-9/wheel": off},
+    res = audit(make_site(tmp_path), {"AHU-9/supply": off, "AHU-9/wheel": off},
                     {"AHU-9": Sched(occ, None)}, start, end, find=lambda r: None)
     assert not any("no fan is monitored" in w for w in res.warnings)

@@ -16,6 +16,10 @@ A *start* is a change from ``off`` to ``run`` seen in the data and a *stop* one 
 ``off``; a run that begins at the window start or right after a stretch of no data is not
 counted as a start, because the data does not show the machine starting.
 
+Run states arrive as a :class:`schedcheck.runstate.states.StateSets` and the schedule as a
+:class:`ScheduleSets`, the one form both travel in; :func:`account_component` reads tables into
+them first (the one check of a table, raising :class:`schedcheck.errors.TableError`).
+
 Local days come from :func:`schedcheck.window.day_edges`, so days of 23 and 25 hours at
 daylight-saving changes are counted at their true length.
 """
@@ -28,9 +32,10 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from schedcheck.intervals import NS_PER_H, Intervals, from_ns, to_ns, union_all
-from schedcheck.runstate.states import STATES
-from schedcheck.schedule.kinds import SCHEDULE_KINDS
+from schedcheck.errors import TableError
+from schedcheck.intervals import NS_PER_H, Intervals, check_labels, table_ns, to_ns
+from schedcheck.runstate.states import StateSets
+from schedcheck.schedule.kinds import ALLOWANCE, ALLOWED, OCCUPIED, SCHEDULE_KINDS
 from schedcheck.window import day_edges, last_local_date
 
 WEEKDAYS = ("Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun")
@@ -43,22 +48,53 @@ FIGURES = (
 
 
 @dataclass(frozen=True)
-class StateSets:
-    """The run states of one component as three disjoint interval sets tiling the window."""
-
-    run: Intervals
-    off: Intervals
-    no_data: Intervals
-    warnings: tuple[str, ...] = ()
-
-
-@dataclass(frozen=True)
 class ScheduleSets:
-    """The schedule classes of one unit as three disjoint interval sets tiling the window."""
+    """A unit's intended schedule over the window ``[start, end)`` as interval sets [UTC].
 
+    ``occupied``, ``allowance`` and ``allowed`` hold each kind as given (clipped to the window;
+    they may overlap); the findings read them so. The accounting's disjoint classes, by
+    priority occupied > allowance/allowed, are :attr:`allowance_any` and :attr:`unscheduled`.
+    """
+
+    window: Intervals
     occupied: Intervals
-    allowance: Intervals      # early start, late stop and allowed windows
-    unscheduled: Intervals
+    allowance: Intervals      # early start and late stop
+    allowed: Intervals        # allowed windows
+
+    @property
+    def allowance_any(self) -> Intervals:
+        """Allowance and allowed time outside the occupied periods."""
+        return (self.allowance | self.allowed) - self.occupied
+
+    @property
+    def unscheduled(self) -> Intervals:
+        """The rest of the window: neither occupied nor allowed in any way."""
+        return self.window - self.occupied - self.allowance_any
+
+    @classmethod
+    def from_table(cls, schedule: pd.DataFrame, start: pd.Timestamp, end: pd.Timestamp,
+                   *, name: str = "schedule") -> ScheduleSets:
+        """Read an intended-schedule table (``start``, ``end``, ``kind``; tz-aware).
+
+        ``kind`` is ``occupied``, ``allowance`` or ``allowed``; the one check of a schedule
+        table where it enters the core.
+
+        Raises
+        ------
+        TableError
+            A missing column, naive instants or an unknown kind, naming ``name``.
+        """
+        win = Intervals.window(start, end)
+        if isinstance(schedule, pd.DataFrame) and len(schedule) == 0:
+            e = Intervals.empty()
+            return cls(win, e, e, e)
+        s, e = table_ns(schedule, name, ("start", "end", "kind"))
+        kinds = check_labels(schedule, name, "kind", SCHEDULE_KINDS, "schedule kinds")
+
+        def of(kind: str) -> Intervals:
+            return Intervals.from_arrays(s[kinds == kind], e[kinds == kind]) & win
+
+        return cls(win, of(OCCUPIED), of(ALLOWANCE), of(ALLOWED))
 
 
 @dataclass
@@ -66,7 +102,10 @@ class ComponentAccount:
     """Hour figures of one component over the audit window.
 
     ``ns`` holds each figure of :data:`FIGURES` in integer nanoseconds (exact); ``hours()``
-    converts. ``daily`` has one row per local date (see :func:`daily_rows`).
+    converts. ``daily`` has one row per local date (:func:`_daily_frame`), in hours only;
+    the audit's pricing step builds the priced copy (:attr:`ComponentResult.daily
+    <schedcheck.audit.run.ComponentResult>`) and never changes this one. ``states`` and
+    ``schedule`` are the sets counted, which the findings then read.
     """
 
     ns: dict[str, int]
@@ -85,79 +124,13 @@ class ComponentAccount:
 
 
 def state_sets(states: pd.DataFrame, start: pd.Timestamp, end: pd.Timestamp) -> StateSets:
-    """Split a run-state table into disjoint ``run``/``off``/``no_data`` sets tiling the window.
-
-    Parameters
-    ----------
-    states : DataFrame
-        Columns ``start``, ``end`` (tz-aware) and ``state`` (``run``, ``off``, ``no_data``),
-        as returned by the run-state classifier [UTC].
-    start, end : Timestamp
-        The audit window ``[start, end)`` [tz-aware].
-
-    Returns
-    -------
-    StateSets
-        Where the table overlaps itself, ``run`` wins over ``off``; any part of the window the
-        table does not cover is ``no_data``. Either case adds a warning, never a lost minute.
-    """
-    missing = {"start", "end", "state"} - set(states.columns)
-    if missing:
-        raise ValueError(f"run-state table lacks columns {sorted(missing)}")
-    bad = sorted(set(states["state"].astype(str)) - set(STATES))
-    if bad:
-        raise ValueError(f"unknown run states {bad}; expected one of {list(STATES)}")
-    win = Intervals.window(start, end)
-    pick = {s: Intervals.from_frame(states[states["state"] == s]) & win for s in STATES}
-    run = pick["run"]
-    off = pick["off"] - run
-    no_data = win - run - off
-    warnings: list[str] = []
-    declared = (pick["no_data"] - run - off)
-    if no_data.duration_ns() != declared.duration_ns():
-        gap_h = (no_data.duration_ns() - declared.duration_ns()) / NS_PER_H
-        warnings.append(
-            f"run states left {gap_h:.3f} h of the window uncovered; counted as no data"
-        )
-    overlap = (pick["run"] & pick["off"]).duration_ns()
-    if overlap:
-        warnings.append(f"run states overlap for {overlap / NS_PER_H:.3f} h; counted as running")
-    return StateSets(run, off, no_data, tuple(warnings))
+    """Run states read from a table (see :meth:`StateSets.from_table`)."""
+    return StateSets.from_table(states, start, end)
 
 
 def schedule_sets(schedule: pd.DataFrame, start: pd.Timestamp, end: pd.Timestamp) -> ScheduleSets:
-    """Split an intended-schedule table into disjoint schedule classes tiling the window.
-
-    Parameters
-    ----------
-    schedule : DataFrame
-        Columns ``start``, ``end`` (tz-aware) and ``kind`` (``occupied``, ``allowance``,
-        ``allowed``) [UTC].
-    start, end : Timestamp
-        The audit window ``[start, end)`` [tz-aware].
-
-    Returns
-    -------
-    ScheduleSets
-        Priority occupied > allowance/allowed, so every instant is in one class only.
-    """
-    if len(schedule) and not {"start", "end", "kind"} <= set(schedule.columns):
-        raise ValueError("schedule table needs columns start, end, kind")
-    win = Intervals.window(start, end)
-    kinds = schedule["kind"].astype(str) if len(schedule) else pd.Series([], dtype=str)
-    bad = sorted(set(kinds) - set(SCHEDULE_KINDS))
-    if bad:
-        raise ValueError(f"unknown schedule kinds {bad}; expected one of {list(SCHEDULE_KINDS)}")
-
-    def of(*names: str) -> Intervals:
-        if not len(schedule):
-            return Intervals.empty()
-        return Intervals.from_frame(schedule[kinds.isin(names).to_numpy()]) & win
-
-    occupied = of("occupied")
-    allowance = of("allowance", "allowed") - occupied
-    unscheduled = win - occupied - allowance
-    return ScheduleSets(occupied, allowance, unscheduled)
+    """An intended schedule read from a table (see :meth:`ScheduleSets.from_table`)."""
+    return ScheduleSets.from_table(schedule, start, end)
 
 
 def transitions(states: StateSets) -> tuple[np.ndarray, np.ndarray]:
@@ -180,14 +153,36 @@ def account_component(
     counts_missed: bool = True,
     days_off: pd.DataFrame | None = None,
 ) -> ComponentAccount:
+    """Hour figures and daily rows of one component, from tables.
+
+    Reads the tables once (:meth:`StateSets.from_table`, :meth:`ScheduleSets.from_table`) and
+    calls :func:`account`; see there. ``states``: ``start``, ``end``, ``state`` [UTC];
+    ``schedule``: ``start``, ``end``, ``kind`` [UTC].
+    """
+    start, end = _window(start, end)
+    return account(StateSets.from_table(states, start, end),
+                   ScheduleSets.from_table(schedule, start, end), start, end, tz,
+                   counts_missed=counts_missed, days_off=days_off)
+
+
+def account(
+    states: StateSets,
+    schedule: ScheduleSets,
+    start: pd.Timestamp,
+    end: pd.Timestamp,
+    tz: str,
+    *,
+    counts_missed: bool = True,
+    days_off: pd.DataFrame | None = None,
+) -> ComponentAccount:
     """Hour figures and daily rows of one component.
 
     Parameters
     ----------
-    states : DataFrame
-        The component's run states: ``start``, ``end``, ``state`` [UTC].
-    schedule : DataFrame
-        The unit's intended intervals: ``start``, ``end``, ``kind`` [UTC].
+    states : StateSets
+        The component's run states, tiling the window [UTC].
+    schedule : ScheduleSets
+        The unit's intended schedule over the same window [UTC].
     start, end : Timestamp
         The audit window; must fall on local midnights of ``tz`` for whole daily rows [UTC].
     tz : str
@@ -201,19 +196,15 @@ def account_component(
     -------
     ComponentAccount
     """
-    start = pd.Timestamp(start).tz_convert("UTC")
-    end = pd.Timestamp(end).tz_convert("UTC")
-    if end <= start:
-        raise ValueError(f"empty audit window [{start}, {end})")
-    st = state_sets(states, start, end)
-    sc = schedule_sets(schedule, start, end)
-    allowed_any = sc.occupied | sc.allowance
+    start, end = _window(start, end)
+    st, sc = states, schedule
+    allowed_any = sc.occupied | sc.allowance_any
     sets = {
         "period": Intervals.window(start, end),
         "scheduled": sc.occupied,
         "running": st.run,
         "in_schedule": st.run & sc.occupied,
-        "in_allowance": st.run & sc.allowance,
+        "in_allowance": st.run & sc.allowance_any,
         "off_schedule": st.run - allowed_any,
         "off": st.off,
         "no_data": st.no_data,
@@ -240,6 +231,14 @@ def account_component(
         counts_missed=counts_missed,
         warnings=list(st.warnings),
     )
+
+
+def _window(start: pd.Timestamp, end: pd.Timestamp) -> tuple[pd.Timestamp, pd.Timestamp]:
+    start = pd.Timestamp(start).tz_convert("UTC")
+    end = pd.Timestamp(end).tz_convert("UTC")
+    if end <= start:
+        raise TableError(f"empty audit window [{start}, {end})", key="window")
+    return start, end
 
 
 def _local_dates(start: pd.Timestamp, end: pd.Timestamp, tz: str) -> tuple[dt.date, dt.date]:
@@ -296,23 +295,3 @@ def _per_bin_instant(instants: np.ndarray, bins: np.ndarray, n: int, tz: str, *,
         out[uniq] = t[idx]
     idx_local = pd.DatetimeIndex(out.view("datetime64[ns]")).tz_localize("UTC").tz_convert(tz)
     return pd.Series(idx_local)
-
-
-def state_frame_from_sets(states: StateSets) -> pd.DataFrame:
-    """A run-state table (``start``, ``end``, ``state``; UTC) rebuilt from the three sets."""
-    parts = []
-    for name in STATES:
-        s = getattr(states, name)
-        if len(s):
-            f = s.to_frame()
-            f["state"] = name
-            parts.append(f)
-    if not parts:
-        return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "state": []})
-    out = pd.concat(parts, ignore_index=True).sort_values("start", kind="stable")
-    return out.reset_index(drop=True)
-
-
-def combined_intervals(accounts: list[ComponentAccount], name: str) -> Intervals:
-    """Union of one interval set (``off_schedule`` or ``missed_intervals``) over components."""
-    return union_all(getattr(a, name) for a in accounts)

@@ -53,7 +53,7 @@ def affinity_power(power_kw, speed, exponent: float = DEFAULT_EXPONENT):
         Running speed as a fraction of design speed [-]; not negative (above 1 is allowed).
     exponent : float
         Exponent of power against speed [-]; 3 for the cube law, lower for fans under
-        static-pressure control. Between 1 and 4.
+        static-pressure control; inside :data:`EXPONENT_RANGE`.
 
     Returns
     -------
@@ -84,24 +84,33 @@ def energy_kwh(power_kw, hours):
 
 @dataclass(frozen=True)
 class Priced:
-    """Energy with its cost and emissions."""
+    """Energy with its cost and emissions (floats, or arrays of one entry per item)."""
 
-    kwh: float        # [kWh]
-    cost: float       # [currency]
-    co2_kg: float     # [kg CO2e]
+    kwh: float | np.ndarray        # [kWh]
+    cost: float | np.ndarray       # [currency]
+    co2_kg: float | np.ndarray     # [kg CO2e]
 
 
-def price(kwh: float, price_per_kwh: float, co2_per_kwh: float) -> Priced:
-    """Cost and CO2 of an amount of energy.
+def price(kwh, price_per_kwh: float, co2_per_kwh: float) -> Priced:
+    """Cost and CO2 of amounts of energy: the audit's one pricing step, vectorised.
 
     Parameters
     ----------
-    kwh : float
-        Energy [kWh].
+    kwh : float or array_like
+        Energy [kWh]; one entry per item priced (components, days, findings).
     price_per_kwh : float
         Energy price [currency/kWh].
     co2_per_kwh : float
         Emission factor [kg CO2e/kWh].
+
+    Returns
+    -------
+    Priced
+        ``kwh``, ``cost = kwh * price_per_kwh`` and ``co2_kg = kwh * co2_per_kwh``; floats for
+        a scalar ``kwh``, arrays otherwise.
     """
-    kwh = float(kwh)
-    return Priced(kwh=kwh, cost=kwh * float(price_per_kwh), co2_kg=kwh * float(co2_per_kwh))
+    e = np.asarray(kwh, dtype=float)
+    cost, co2 = e * float(price_per_kwh), e * float(co2_per_kwh)
+    if e.ndim == 0:
+        return Priced(kwh=float(e), cost=float(cost), co2_kg=float(co2))
+    return Priced(kwh=e, cost=cost, co2_kg=co2)

@@ -7,26 +7,36 @@ The writers in :mod:`schedcheck.outputs.files` turn the result into the audit's 
 A unit's own state is its state component's (:attr:`schedcheck.site.Unit.state_component`,
 its supply fan where it has one). Energy is priced with the fan affinity law
 (:mod:`schedcheck.audit.energy`) at each component's usual running speed.
+
+Data passes in one form: each component's :class:`ComponentStates` gives its ``sets`` to the
+accounting, each unit's schedule table is read once into a :class:`ScheduleSets`, and the
+findings run on the account's own sets. Pricing is one vectorised step for all components
+(running and off-schedule kWh, cost, CO2, the daily kWh) and one for all findings
+(:func:`price_findings`); nothing priced earlier is changed afterwards.
 """
 
 from __future__ import annotations
 
 import datetime as dt
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
 
-from schedcheck.audit.accounting import ComponentAccount, account_component
+from schedcheck.audit.accounting import ComponentAccount, ScheduleSets, account
 from schedcheck.audit.energy import affinity_power, price
-from schedcheck.intervals import NS_PER_H, Intervals, to_ns
+from schedcheck.errors import TableError
+from schedcheck.findings.find import energy_words, find_in_sets
+from schedcheck.intervals import NS_PER_H, to_ns
+from schedcheck.readings.cleaning import SensorHealth
+from schedcheck.runstate.classify import ComponentStates
+from schedcheck.runstate.onofflevel import Threshold
+from schedcheck.runstate.states import NO_DATA_WARN
+from schedcheck.schedule.intended import UnitSchedule
 from schedcheck.site import Component, Site, Unit
 from schedcheck.window import last_local_date
-
-#: Share of the window without data above which a component's figures get a warning
-#: (common practice, no source: a tenth unknown makes hour totals noticeably low).
-NO_DATA_WARN_SHARE = 0.10
 
 FINDING_COLUMNS = ("component", "kind", "start", "end", "hours", "kwh", "cost", "co2_kg",
                    "detail")
@@ -34,15 +44,20 @@ FINDING_COLUMNS = ("component", "kind", "start", "end", "hours", "kwh", "cost", 
 
 @dataclass
 class ComponentResult:
-    """Everything the audit found for one component."""
+    """Everything the audit found for one component.
+
+    ``account`` holds the hour figures (its ``daily`` table unpriced); ``daily`` is that table
+    with ``off_schedule_kwh`` [kWh] added, built by the audit's pricing step.
+    """
 
     component: Component
     unit: Unit
     account: ComponentAccount
-    states: pd.DataFrame              # start, end, state, level [UTC] as classified
-    threshold: object | None          # runstate threshold record (level, source, ...)
+    states: ComponentStates           # as classified (pieces with their levels)
+    threshold: Threshold | None       # the on/off level and why; None for states from a table
     running_kw: float                 # electrical input while running [kW]
     energy: dict[str, float]          # running_kwh, running_cost, running_co2_kg, off_schedule_*
+    daily: pd.DataFrame               # account.daily + off_schedule_kwh
     state_warnings: list[str] = field(default_factory=list)
 
     @property
@@ -60,14 +75,14 @@ class AuditResult:
     first_date: dt.date               # first local date
     last_date: dt.date                # last local date (inclusive)
     components: list[ComponentResult]
-    schedules: dict[str, object]      # unit id -> UnitSchedule
+    schedules: dict[str, UnitSchedule]  # unit id -> its intended schedule
     findings: pd.DataFrame            # FINDING_COLUMNS, start/end UTC
-    health: dict[str, object] = field(default_factory=dict)    # sensor -> SensorHealth
-    bad_rows: dict = field(default_factory=lambda: {"count": 0, "examples": []})
+    health: dict[str, SensorHealth] = field(default_factory=dict)   # sensor -> data health
+    bad_rows: dict[str, object] = field(default_factory=lambda: {"count": 0, "examples": []})
     warnings: list[str] = field(default_factory=list)
     generated: pd.Timestamp = field(default_factory=lambda: pd.Timestamp.now("UTC").floor("s"))
-    outdir: object | None = None      # set by the job once the files are written (a Path)
-    files: dict = field(default_factory=dict)                  # file name -> Path
+    outdir: Path | None = None        # set by the job once the files are written
+    files: dict[str, Path] = field(default_factory=dict)         # file name -> Path
 
     def component(self, key: str) -> ComponentResult:
         for c in self.components:
@@ -76,45 +91,19 @@ class AuditResult:
         raise KeyError(key)
 
 
-def component_energy(account: ComponentAccount, running_kw: float, price_per_kwh: float,
-                     co2_per_kwh: float) -> dict[str, float]:
-    """kWh, cost and CO2 of running and of off-schedule running.
-
-    Parameters
-    ----------
-    account : ComponentAccount
-        The component's hour figures.
-    running_kw : float
-        Electrical input while running [kW] (affinity law at the usual speed).
-    price_per_kwh : float
-        [currency/kWh].
-    co2_per_kwh : float
-        [kg CO2e/kWh].
-    """
-    h = account.hours()
-    run = price(running_kw * h["running"], price_per_kwh, co2_per_kwh)
-    off = price(running_kw * h["off_schedule"], price_per_kwh, co2_per_kwh)
-    return {
-        "running_kw": running_kw,
-        "running_kwh": run.kwh, "running_cost": run.cost, "running_co2_kg": run.co2_kg,
-        "off_schedule_kwh": off.kwh, "off_schedule_cost": off.cost,
-        "off_schedule_co2_kg": off.co2_kg,
-    }
-
-
 def run_audit(
     site: Site,
-    states: Mapping[str, object],
-    schedules: Mapping[str, object],
+    states: Mapping[str, ComponentStates],
+    schedules: Mapping[str, UnitSchedule],
     start: pd.Timestamp,
     end: pd.Timestamp,
     *,
     first_date: dt.date | None = None,
     last_date: dt.date | None = None,
-    health: Mapping[str, object] | None = None,
-    bad_rows: dict | None = None,
+    health: Mapping[str, SensorHealth] | None = None,
+    bad_rows: dict[str, object] | None = None,
     warnings: list[str] | None = None,
-    find=None,
+    find: Callable[[AuditResult], pd.DataFrame | None] | None = None,
 ) -> AuditResult:
     """Compare run states with the intended schedule for every component of a site.
 
@@ -123,11 +112,12 @@ def run_audit(
     site : Site
         The site settings.
     states : mapping
-        Component key (``UNIT/COMPONENT``) -> ``runstate.ComponentStates`` (or a DataFrame
-        ``start, end, state, level``) covering the window [UTC].
+        Component key (``UNIT/COMPONENT``) -> :class:`ComponentStates` covering the window
+        (from the classifier, or :meth:`ComponentStates.from_table`) [UTC].
     schedules : mapping
-        Unit id -> ``schedule.UnitSchedule`` (``intervals``: start, end, kind, source;
-        ``days_off``: date, name, kind) [UTC].
+        Unit id -> :class:`UnitSchedule` (``intervals``: start, end, kind, source;
+        ``days_off``: date, name, kind) [UTC]; each schedule table is read once here
+        (:meth:`ScheduleSets.from_table`).
     start, end : Timestamp
         The audit window ``[start, end)`` [UTC], on local midnights.
     first_date, last_date : date, optional
@@ -135,8 +125,10 @@ def run_audit(
     health, bad_rows, warnings
         Data-health figures, rejected rows and load warnings, carried into the result.
     find : callable, optional
-        The finding rules, ``find(result) -> DataFrame``; by default
-        :func:`schedcheck.findings.find.find_issues` through :func:`collect_findings`.
+        The finding rules, ``find(result) -> DataFrame`` (``component, kind, start, end`` and
+        optionally ``hours``, ``energy_hours``, ``kwh``, ``cost``, ``co2_kg``, ``detail``, ...);
+        by default :func:`collect_findings`. The findings are then priced with the components
+        in one step (:func:`price_findings`).
 
     Returns
     -------
@@ -150,14 +142,13 @@ def run_audit(
     if last_date is None:
         last_date = last_local_date(end, tz)
     e = site.energy
-    results: list[ComponentResult] = []
     all_warnings = list(warnings or [])
+    found: list[tuple[Component, Unit, ComponentStates, ComponentAccount]] = []
     for unit in site.units:
         sched = schedules.get(unit.id)
         if sched is None:
-            raise ValueError(f"no schedule for unit {unit.id}")
-        sched_frame = getattr(sched, "intervals", sched)
-        days_off = getattr(sched, "days_off", None)
+            raise TableError(f"no schedule for unit {unit.id}", key="schedules")
+        sets = ScheduleSets.from_table(sched.intervals, start, end)
         if unit.components and not any(c.is_fan for c in unit.components):
             all_warnings.append(
                 f"{unit.id}: no fan is monitored (no supply, exhaust or return fan), so off time "
@@ -165,33 +156,46 @@ def run_audit(
         for comp in unit.components:
             cs = states.get(comp.key)
             if cs is None:
-                raise ValueError(f"no run states for component {comp.key}")
-            frame = cs if isinstance(cs, pd.DataFrame) else cs.intervals
-            acc = account_component(frame, sched_frame, start, end, tz,
-                                    counts_missed=comp.is_fan, days_off=days_off)
-            kw = float(affinity_power(comp.power_kw, comp.speed, e.exponent))
-            energy = component_energy(acc, kw, e.price, e.co2_per_kwh)
-            acc.daily["off_schedule_kwh"] = acc.daily["off_schedule_ns"] / NS_PER_H * kw
-            threshold = None if isinstance(cs, pd.DataFrame) else getattr(cs, "threshold", None)
-            sw = [str(w) for w in getattr(cs, "warnings", []) or []]
-            sw += [str(w) for w in getattr(threshold, "warnings", []) or []]
-            for w in acc.warnings:
-                all_warnings.append(f"{comp.key}: {w}")
-            share = acc.ns["no_data"] / acc.ns["period"]
-            if share > NO_DATA_WARN_SHARE:
-                all_warnings.append(
-                    f"{comp.key}: {share:.0%} of the window has no data "
-                    f"({acc.ns['no_data'] / NS_PER_H:.1f} h); its hours and kWh cover only the "
-                    "known time and may understate the running")
-            results.append(ComponentResult(comp, unit, acc, frame, threshold, kw, energy, sw))
+                raise TableError(f"no run states for component {comp.key}", key="states")
+            acc = account(cs.sets, sets, start, end, tz, counts_missed=comp.is_fan,
+                          days_off=sched.days_off)
+            found.append((comp, unit, cs, acc))
+    # the one pricing step for the components: affinity law at the usual speed, then kWh
+    kw = np.atleast_1d(affinity_power([c.power_kw for c, *_ in found],
+                                      [c.speed for c, *_ in found], e.exponent))
+    run_h = np.array([a.ns["running"] for *_, a in found], dtype=float) / NS_PER_H
+    off_h = np.array([a.ns["off_schedule"] for *_, a in found], dtype=float) / NS_PER_H
+    run_p = price(kw * run_h, e.price, e.co2_per_kwh)
+    off_p = price(kw * off_h, e.price, e.co2_per_kwh)
+    results: list[ComponentResult] = []
+    for i, (comp, unit, cs, acc) in enumerate(found):
+        k = float(kw[i])
+        energy = {
+            "running_kw": k,
+            "running_kwh": float(run_p.kwh[i]), "running_cost": float(run_p.cost[i]),
+            "running_co2_kg": float(run_p.co2_kg[i]),
+            "off_schedule_kwh": float(off_p.kwh[i]), "off_schedule_cost": float(off_p.cost[i]),
+            "off_schedule_co2_kg": float(off_p.co2_kg[i]),
+        }
+        daily = acc.daily.assign(off_schedule_kwh=acc.daily["off_schedule_ns"] / NS_PER_H * k)
+        sw = [str(w) for w in cs.warnings]
+        sw += [str(w) for w in (cs.threshold.warnings if cs.threshold is not None else ())]
+        for w in acc.warnings:
+            all_warnings.append(f"{comp.key}: {w}")
+        share = acc.ns["no_data"] / acc.ns["period"]
+        if share > NO_DATA_WARN.understate:
+            all_warnings.append(
+                f"{comp.key}: {share:.0%} of the window has no data "
+                f"({acc.ns['no_data'] / NS_PER_H:.1f} h); its hours and kWh cover only the "
+                "known time and may understate the running")
+        results.append(ComponentResult(comp, unit, acc, cs, cs.threshold, k, energy, daily, sw))
     result = AuditResult(
         site=site, start=start, end=end, first_date=first_date, last_date=last_date,
         components=results, schedules=dict(schedules), findings=empty_findings(),
         health=dict(health or {}), bad_rows=bad_rows or {"count": 0, "examples": []},
         warnings=all_warnings,
     )
-    found = (find or collect_findings)(result)
-    result.findings = price_findings(found, result)
+    result.findings = price_findings((find or collect_findings)(result), result)
     return result
 
 
@@ -206,32 +210,29 @@ def empty_findings() -> pd.DataFrame:
     })
 
 
-def collect_findings(result: AuditResult) -> pd.DataFrame:
-    """Run the finding rules (:func:`schedcheck.findings.find.find_issues`) on every component."""
-    from schedcheck.audit.accounting import state_frame_from_sets
-    from schedcheck.findings.find import find_issues  # written alongside this module
-
+def collect_findings(result: AuditResult) -> pd.DataFrame | None:
+    """The finding rules (:func:`schedcheck.findings.find.find_in_sets`) on every component,
+    on the sets its account used; unpriced (``energy_hours`` per finding)."""
     site = result.site
     frames = []
     for comp in result.components:
         sched = result.schedules[comp.unit.id]
-        frames.append(find_issues(
-            comp.component, state_frame_from_sets(comp.account.states),
-            getattr(sched, "intervals", sched), getattr(sched, "days_off", None),
-            start=result.start, end=result.end, tz=site.timezone, running_kw=comp.running_kw,
-            price=site.energy.price, co2_per_kwh=site.energy.co2_per_kwh,
-            currency=site.energy.currency, settings=site.findings,
+        frames.append(find_in_sets(
+            comp.component, comp.account.states, comp.account.schedule, sched.days_off,
+            start=result.start, end=result.end, tz=site.timezone, settings=site.findings,
         ))
     frames = [f for f in frames if len(f)]
-    return pd.concat(frames, ignore_index=True) if frames else empty_findings()
+    return pd.concat(frames, ignore_index=True) if frames else None
 
 
 def price_findings(found: pd.DataFrame | None, result: AuditResult) -> pd.DataFrame:
-    """Fill ``hours``, ``kwh``, ``cost`` and ``co2_kg`` of each finding and order the table.
+    """The findings' pricing step: ``hours``, ``kwh``, ``cost``, ``co2_kg``, the sentences'
+    ``{energy}``, and the table's order.
 
-    ``kwh`` is the energy of the component's *off-schedule* running inside the finding's
-    interval (a ``missed`` finding is time off, so it has none); values the rules already
-    gave are kept.
+    ``kwh`` is the component's running power times the finding's ``energy_hours`` [h]; where
+    a finding has none, the off-schedule running inside its interval (a ``missed`` finding is
+    time off, so it has none). Values the rules already gave are kept. Vectorised over all
+    findings of all components.
     """
     if found is None or len(found) == 0:
         return empty_findings()
@@ -241,24 +242,29 @@ def price_findings(found: pd.DataFrame | None, result: AuditResult) -> pd.DataFr
     if "detail" not in f:
         f["detail"] = ""
     by_key = {c.key: c for c in result.components}
-    hours = np.empty(len(f))
-    kwh = np.empty(len(f))
-    for i, row in enumerate(f.itertuples(index=False)):
-        s, e = to_ns(row.start), to_ns(row.end)
-        hours[i] = (e - s) / NS_PER_H
-        comp = by_key.get(row.component)
-        if comp is None:
-            raise ValueError(f"finding for unknown component {row.component!r}")
-        inside = comp.account.off_schedule & Intervals.from_arrays([s], [e])
-        kwh[i] = inside.hours() * comp.running_kw
+    unknown = sorted(set(f["component"]) - set(by_key))
+    if unknown:
+        raise TableError(f"finding for unknown component {unknown[0]!r}", key="findings")
+    s, e = to_ns(f["start"]), to_ns(f["end"])
+    kw = f["component"].map({k: c.running_kw for k, c in by_key.items()}).to_numpy(float)
+    energy_h = (f["energy_hours"].astype(float).to_numpy() if "energy_hours" in f
+                else np.full(len(f), np.nan))
+    todo = np.isnan(energy_h)
+    for key in set(f.loc[todo, "component"]):
+        rows = todo & (f["component"] == key).to_numpy()
+        inside = by_key[key].account.off_schedule
+        energy_h[rows] = (inside.cumulative_ns(e[rows]) - inside.cumulative_ns(s[rows])) / NS_PER_H
     given_h = f["hours"] if "hours" in f else pd.Series(np.nan, index=f.index)
-    f["hours"] = given_h.astype(float).fillna(pd.Series(hours))
-    given_k = f["kwh"] if "kwh" in f else pd.Series(np.nan, index=f.index)
-    f["kwh"] = given_k.astype(float).fillna(pd.Series(kwh))
-    for col, factor in (("cost", result.site.energy.price),
-                        ("co2_kg", result.site.energy.co2_per_kwh)):
+    f["hours"] = given_h.astype(float).fillna(pd.Series((e - s) / NS_PER_H))
+    en = result.site.energy
+    p = price(kw * energy_h, en.price, en.co2_per_kwh)
+    for col, computed in (("kwh", p.kwh), ("cost", p.cost), ("co2_kg", p.co2_kg)):
         given = f[col].astype(float) if col in f else pd.Series(np.nan, index=f.index)
-        f[col] = given.fillna(f["kwh"] * factor)
+        f[col] = given.fillna(pd.Series(np.atleast_1d(computed)))
+    f["detail"] = [str(d).replace("{energy}", energy_words(k, c, en.price, en.currency))
+                   for d, k, c in zip(f["detail"], f["kwh"].tolist(), f["cost"].tolist(),
+                                      strict=True)]
+    f = f.drop(columns=[c for c in ("energy_hours",) if c in f])
     f = f.sort_values(["start", "component", "kind"], kind="stable").reset_index(drop=True)
     extra = [c for c in f.columns if c not in FINDING_COLUMNS]
     return f[list(FINDING_COLUMNS) + extra]

@@ -63,14 +63,16 @@ from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 import numpy as np
 import pandas as pd
 
+from schedcheck.audit import energy
+from schedcheck.audit.accounting import ScheduleSets
 from schedcheck.errors import InputError
 from schedcheck.findings import clock as findings_clock
 from schedcheck.findings import rules as findings_rules
 from schedcheck.findings.kinds import KINDS  # noqa: F401 - re-exported
 from schedcheck.findings.rules import Context, Params
-from schedcheck.intervals import Intervals, to_ns
-from schedcheck.runstate.states import STATES
-from schedcheck.schedule.kinds import DAY_OFF_KINDS, SCHEDULE_KINDS
+from schedcheck.intervals import check_labels, from_ns, to_ns
+from schedcheck.runstate.states import StateSets
+from schedcheck.schedule.kinds import DAY_OFF_KINDS
 from schedcheck.site import Component, FindingSettings
 
 # Off-schedule running must persist this long to be a finding on its own. Common practice for
@@ -114,8 +116,12 @@ CLOCK_MIN_DAYS = findings_clock.CLOCK_MIN_DAYS
 # practice, no source.
 CLOCK_SHARE = findings_clock.CLOCK_SHARE
 
+#: Columns of :func:`find_issues`' table.
 COLUMNS = ["component", "kind", "start", "end", "date", "hours", "kwh", "cost", "co2_kg",
            "detail"]
+#: Columns of :func:`find_in_sets`' table, before pricing.
+UNPRICED_COLUMNS = ["component", "kind", "start", "end", "date", "hours", "energy_hours",
+                    "detail"]
 
 
 def default_settings() -> dict[str, object]:
@@ -148,32 +154,6 @@ def _params(settings: FindingSettings | None) -> Params:
     return Params(no_data_bridge=NO_DATA_BRIDGE, **values)
 
 
-def _frame_ns(frame: pd.DataFrame, name: str, columns: tuple[str, ...]) -> dict[str, np.ndarray]:
-    if not isinstance(frame, pd.DataFrame):
-        raise InputError(f"expected a table, got {type(frame).__name__}", key=name)
-    missing = [c for c in columns if c not in frame.columns]
-    if missing:
-        raise InputError(f"missing column(s) {', '.join(missing)}", key=name)
-    out = {}
-    for col in ("start", "end"):
-        try:
-            out[col] = np.asarray(to_ns(frame[col]), dtype=np.int64)
-        except (ValueError, TypeError) as exc:
-            raise InputError(f"column '{col}' must hold zone-aware instants ({exc})",
-                             key=name) from None
-    if len(frame) and bool(np.any(out["end"] < out["start"])):
-        row = int(np.flatnonzero(out["end"] < out["start"])[0])
-        raise InputError(f"row {row} ends before it starts", key=name)
-    return out
-
-
-def _check_values(frame: pd.DataFrame, name: str, column: str, allowed: tuple[str, ...]) -> None:
-    bad = sorted(set(frame[column].astype(str)) - set(allowed))
-    if bad:
-        raise InputError(f"unknown {column} {bad[0]!r}; expected one of {', '.join(allowed)}",
-                         key=f"{name}.{column}")
-
-
 def _days_off(days_off: pd.DataFrame | None) -> dict[dt.date, tuple[str, str]]:
     if days_off is None or len(days_off) == 0:
         return {}
@@ -182,7 +162,7 @@ def _days_off(days_off: pd.DataFrame | None) -> dict[dt.date, tuple[str, str]]:
     names = days_off["name"] if "name" in days_off.columns else pd.Series("", index=days_off.index)
     kinds = days_off["kind"] if "kind" in days_off.columns else pd.Series("holiday",
                                                                           index=days_off.index)
-    _check_values(pd.DataFrame({"kind": kinds}), "days_off", "kind", DAY_OFF_KINDS)
+    check_labels(pd.DataFrame({"kind": kinds}), "days_off", "kind", DAY_OFF_KINDS, "day-off kinds")
     out: dict[dt.date, tuple[str, str]] = {}
     for value, nm, kd in zip(days_off["date"], names, kinds, strict=True):
         try:
@@ -253,8 +233,11 @@ def find_issues(
     Raises
     ------
     InputError
-        When a table lacks a column, holds an unknown state or kind, naive instants, or when a
-        number or setting is out of range.
+        When a number or setting is out of range; a :class:`schedcheck.errors.TableError`
+        (an InputError) when a table lacks a column, holds an unknown state or kind or naive
+        instants. The tables are read once, by :meth:`StateSets.from_table` and
+        :meth:`ScheduleSets.from_table`; the rules then run on the sets
+        (:func:`find_in_sets`) and the findings are priced in one step (:func:`priced`).
     """
     try:
         ZoneInfo(str(tz))
@@ -267,28 +250,48 @@ def find_issues(
     for name, value in (("start", start), ("end", end)):
         if not isinstance(value, pd.Timestamp) or value.tzinfo is None:
             raise InputError("must be a zone-aware instant", key=name)
-    w0, w1 = int(to_ns(start)), int(to_ns(end))
-    if w1 <= w0:
+    if int(to_ns(end)) <= int(to_ns(start)):
         raise InputError(f"the audit window ends ({end}) before it starts ({start})", key="end")
-    params = _params(settings)
+    _params(settings)
+    st = StateSets.from_table(states, start, end)
+    sc = ScheduleSets.from_table(schedule, start, end)
+    found = find_in_sets(component, st, sc, days_off, start=start, end=end, tz=str(tz),
+                         settings=settings)
+    p = energy.price(float(running_kw) * found["energy_hours"].to_numpy(float), float(price),
+                     float(co2_per_kwh))
+    out = priced(found, p, float(price), str(currency))
+    return out.sort_values(["start", "kind"], kind="stable").reset_index(drop=True)
 
-    st = _frame_ns(states, "states", ("start", "end", "state"))
-    _check_values(states, "states", "state", STATES)
-    sc = _frame_ns(schedule, "schedule", ("start", "end", "kind"))
-    _check_values(schedule, "schedule", "kind", SCHEDULE_KINDS)
 
-    def pick(cols, frame, column, value) -> Intervals:
-        mask = (frame[column].astype(str) == value).to_numpy()
-        return Intervals.from_arrays(cols["start"][mask], cols["end"][mask]).clip(start, end)
+def find_in_sets(
+    component: Component,
+    states: StateSets,
+    schedule: ScheduleSets,
+    days_off: pd.DataFrame | None,
+    *,
+    start: pd.Timestamp,
+    end: pd.Timestamp,
+    tz: str,
+    settings: FindingSettings | None = None,
+) -> pd.DataFrame:
+    """The findings of one component before pricing, from the sets the accounting used.
 
+    Parameters are as for :func:`find_issues`, but ``states`` and ``schedule`` are already
+    interval sets over ``[start, end)`` (checked where they entered the core).
+
+    Returns
+    -------
+    DataFrame
+        :data:`UNPRICED_COLUMNS`, in the order the rules found them: ``energy_hours`` is the
+        off-schedule running each finding prices [h] and ``detail`` carries ``{energy}`` where
+        :func:`priced` puts the kWh and cost.
+    """
+    w0, w1 = int(to_ns(start)), int(to_ns(end))
     ctx = Context(
         key=component.key, role=component.role, tz=str(tz), start=w0, end=w1,
-        run=pick(st, states, "state", "run"), off=pick(st, states, "state", "off"),
-        no_data=pick(st, states, "state", "no_data"),
-        occupied=pick(sc, schedule, "kind", "occupied"),
-        allowance=pick(sc, schedule, "kind", "allowance"),
-        allowed=pick(sc, schedule, "kind", "allowed"),
-        days_off=_days_off(days_off), params=params,
+        run=states.run, off=states.off, no_data=states.no_data,
+        occupied=schedule.occupied, allowance=schedule.allowance, allowed=schedule.allowed,
+        days_off=_days_off(days_off), params=_params(settings),
     )
     found = findings_clock.clock_offset(ctx)
     found += findings_rules.continuous(ctx)
@@ -296,33 +299,35 @@ def find_issues(
     found += findings_rules.overruns(ctx)
     found += findings_rules.missed(ctx)
     found += findings_rules.short_cycling(ctx)
-    return _table(ctx, found, float(running_kw), float(price), float(co2_per_kwh), str(currency))
+    return pd.DataFrame({
+        "component": pd.Series([ctx.key] * len(found), dtype=object),
+        "kind": pd.Series([f.kind for f in found], dtype=object),
+        "start": from_ns([f.start for f in found]), "end": from_ns([f.end for f in found]),
+        "date": pd.Series([f.date.isoformat() for f in found], dtype=object),
+        "hours": pd.Series([f.hours for f in found], dtype=float),
+        "energy_hours": pd.Series([f.energy_hours for f in found], dtype=float),
+        "detail": pd.Series([f.detail for f in found], dtype=object),
+    })
 
 
-def _table(ctx: Context, found: list, running_kw: float, price: float, co2: float,
+def energy_words(kwh: float, cost: float, price: float, currency: str) -> str:
+    """The kWh and cost a finding's sentence carries in place of ``{energy}``."""
+    if kwh > 0 and price > 0:
+        return f" ({kwh:,.1f} kWh, about {cost:,.2f} {currency})".replace(" )", ")")
+    return f" ({kwh:,.1f} kWh)" if kwh > 0 else ""
+
+
+def priced(found: pd.DataFrame, energy_priced: energy.Priced, price: float,
            currency: str) -> pd.DataFrame:
-    rows = []
-    for f in found:
-        kwh = running_kw * f.energy_hours
-        cost = kwh * price
-        money = f" ({kwh:,.1f} kWh, about {cost:,.2f} {currency})".replace(" )", ")") if (
-            kwh > 0 and price > 0) else (f" ({kwh:,.1f} kWh)" if kwh > 0 else "")
-        detail = f.detail.replace("{energy}", money)
-        rows.append({
-            "component": ctx.key, "kind": f.kind, "start": f.start, "end": f.end,
-            "date": f.date.isoformat(), "hours": f.hours, "kwh": kwh, "cost": cost,
-            "co2_kg": kwh * co2, "detail": detail,
-        })
-    if not rows:
-        frame = pd.DataFrame({c: pd.Series(dtype=object) for c in COLUMNS})
-        for c in ("hours", "kwh", "cost", "co2_kg"):
-            frame[c] = frame[c].astype(float)
-        frame["start"] = pd.Series(dtype="datetime64[ns, UTC]")
-        frame["end"] = pd.Series(dtype="datetime64[ns, UTC]")
-        return frame
-    frame = pd.DataFrame(rows, columns=COLUMNS)
-    frame["start"] = pd.DatetimeIndex(np.asarray(frame["start"], dtype=np.int64).view(
-        "datetime64[ns]")).tz_localize("UTC")
-    frame["end"] = pd.DatetimeIndex(np.asarray(frame["end"], dtype=np.int64).view(
-        "datetime64[ns]")).tz_localize("UTC")
-    return frame.sort_values(["start", "kind"], kind="stable").reset_index(drop=True)
+    """Findings with their energy, cost and CO2 (one entry of ``energy_priced`` per row) and
+    the sentences completed; ``energy_hours`` is dropped. Columns :data:`COLUMNS` first."""
+    f = found.drop(columns="energy_hours").reset_index(drop=True)
+    kwh = np.asarray(energy_priced.kwh, dtype=float)
+    cost = np.asarray(energy_priced.cost, dtype=float)
+    f["kwh"], f["cost"], f["co2_kg"] = kwh, cost, np.asarray(energy_priced.co2_kg, dtype=float)
+    if "detail" not in f:
+        f["detail"] = ""
+    f["detail"] = [str(d).replace("{energy}", energy_words(k, c, price, currency))
+                   for d, k, c in zip(f["detail"], kwh.tolist(), cost.tolist(), strict=True)]
+    first = [c for c in COLUMNS if c in f.columns]
+    return f[first + [c for c in f.columns if c not in first]]

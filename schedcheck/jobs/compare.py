@@ -289,7 +289,7 @@ def compare_site(
     warnings = list(result.warnings)
     comps = []
     for comp in result.components:
-        daily = comp.account.daily
+        daily = comp.daily
         figures, points, days, notes = compare_daily(daily, change, before, after)
         if not comp.account.counts_missed:
             figures.pop("missed_h_per_day", None)

@@ -20,8 +20,9 @@ import pandas as pd
 from schedcheck import __version__ as _version
 from schedcheck.audit.accounting import FIGURES
 from schedcheck.audit.run import AuditResult
-from schedcheck.intervals import NS_PER_H, NS_PER_S
+from schedcheck.intervals import NS_PER_H, NS_PER_S, from_ns, to_ns
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
+from schedcheck.runstate.states import STATES, StateSets
 
 HOURS_DECIMALS = 3      # 0.001 h = 3.6 s: finer than the one-minute readings
 ENERGY_DECIMALS = 3     # kWh and kg CO2e
@@ -251,7 +252,7 @@ def daily_frame(result: AuditResult) -> pd.DataFrame:
     tz = result.site.timezone
     parts = []
     for comp in result.components:
-        d = comp.account.daily
+        d = comp.daily
         f = pd.DataFrame({"component": comp.key,
                           "date": [x.isoformat() for x in d["date"]],
                           "weekday": d["weekday"], "day_off": d["day_off"]})
@@ -269,14 +270,16 @@ def daily_frame(result: AuditResult) -> pd.DataFrame:
 
 
 def runs_frame(result: AuditResult) -> pd.DataFrame:
-    """The rows of ``runs.csv``: every state interval of every component, in time order."""
-    tz = result.site.timezone
-    from schedcheck.audit.accounting import state_frame_from_sets
+    """The rows of ``runs.csv``: every state interval of every component, in time order.
 
+    The intervals are those the accounting counted (each state's set, touching pieces merged);
+    each carries the classifier's level of the piece it starts in.
+    """
+    tz = result.site.timezone
     parts = []
     for comp in result.components:
-        f = state_frame_from_sets(comp.account.states)
-        level = _levels(comp.states, f)
+        f = _state_frame(comp.account.states)
+        level = comp.states.level_at(to_ns(f["start"])) if len(f) else np.zeros(0)
         parts.append(pd.DataFrame({
             "component": comp.key, "state": f["state"].to_numpy(),
             "start": [local_iso(x, tz) for x in f["start"]],
@@ -290,16 +293,19 @@ def runs_frame(result: AuditResult) -> pd.DataFrame:
     return pd.concat(parts, ignore_index=True)[list(RUNS_COLUMNS)]
 
 
-def _levels(original: pd.DataFrame, merged: pd.DataFrame) -> np.ndarray:
-    """Level of each merged interval: the classifier's level of the row it starts in."""
-    if "level" not in original.columns or len(original) == 0 or len(merged) == 0:
-        return np.full(len(merged), np.nan)
-    o = original.sort_values("start", kind="stable")
-    idx = np.searchsorted(o["start"].to_numpy(), merged["start"].to_numpy(), side="right") - 1
-    lv = o["level"].astype(float).to_numpy()[np.clip(idx, 0, None)]
-    lv[idx < 0] = np.nan
-    lv[(merged["state"] == "no_data").to_numpy()] = np.nan
-    return lv
+def _state_frame(states: StateSets) -> pd.DataFrame:
+    """A run-state table (``start``, ``end``, ``state``; UTC) from the three sets, by start."""
+    parts = []
+    for name in STATES:
+        s = states.of(name)
+        if len(s):
+            f = s.to_frame()
+            f["state"] = name
+            parts.append(f)
+    if not parts:
+        return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "state": []})
+    out = pd.concat(parts, ignore_index=True).sort_values("start", kind="stable")
+    return out.reset_index(drop=True)
 
 
 def findings_frame(result: AuditResult) -> pd.DataFrame:
@@ -313,7 +319,7 @@ def schedule_frame(result: AuditResult) -> pd.DataFrame:
     tz = result.site.timezone
     rows = []
     for unit_id, sched in result.schedules.items():
-        f = getattr(sched, "intervals", sched)
+        f = sched.intervals
         if f is None or len(f) == 0:
             continue
         f = f[(f["end"] > result.start) & (f["start"] < result.end)].sort_values("start")

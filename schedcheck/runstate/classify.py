@@ -40,12 +40,13 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 import pandas as pd
 
 from schedcheck.errors import InputError
-from schedcheck.intervals import to_ns
+from schedcheck.intervals import Intervals, from_ns, to_ns
 from schedcheck.runstate import thresholds as th
 from schedcheck.runstate.onofflevel import (  # noqa: F401 - re-exported: the classifier's public names
     CARRIED_SHARE,
@@ -60,36 +61,85 @@ from schedcheck.runstate.onofflevel import (  # noqa: F401 - re-exported: the cl
     log_levels,
     reading_levels,
 )
-from schedcheck.runstate.states import NO_DATA, OFF, RUN
+from schedcheck.runstate.states import NO_DATA, NO_DATA_WARN, OFF, RUN, STATES, StateSets
 from schedcheck.site import Component, RunStateSettings, Unit
 
 MIN_RUN = pd.Timedelta("3min")
 MIN_STOP = pd.Timedelta("3min")
 DWELL_PERIODS = 2.5       # default dwell in reading periods, when longer than 3 min [-]
 TRANSIENT_CREST = 2.5     # [-]
-NO_DATA_WARN = 0.01       # warn above this share of the window without readings (common
-#                           practice, no source)
-
 
 
 @dataclass(frozen=True)
 class ComponentStates:
-    """Run states of one component over ``[start, end)``.
+    """Run states of one component over ``[start, end)``, in the form the core passes on.
 
-    ``intervals``: DataFrame ``start, end, state, level`` (UTC, contiguous, covering the window,
-    adjacent rows differing in state; ``level`` the median level of the readings inside, NaN for
-    ``no_data``). ``starts``: off -> run changes inside the window. ``run_share``: running time
-    over known (run + off) time [-], NaN with no known time. ``warnings``: data warnings (the
-    threshold's own warnings are in ``threshold.warnings``).
+    ``sets``: the ``run``/``off``/``no_data`` interval sets tiling the window (what the
+    accounting and the findings take). ``piece_starts``, ``piece_ends`` [int64 ns UTC],
+    ``piece_states`` and ``piece_levels``: the contiguous pieces in time order, adjacent pieces
+    differing in state; a piece's level is the median level of the readings inside [reading
+    unit], NaN for ``no_data``. ``starts``: off -> run changes inside the window.
+    ``run_share``: running time over known (run + off) time [-], NaN with no known time.
+    ``warnings``: data warnings (the threshold's own warnings are in ``threshold.warnings``;
+    ``threshold`` is None for states read from a table).
     """
 
     component: Component
-    intervals: pd.DataFrame
-    threshold: Threshold
+    sets: StateSets
+    piece_starts: np.ndarray
+    piece_ends: np.ndarray
+    piece_states: np.ndarray
+    piece_levels: np.ndarray
+    threshold: Threshold | None
     starts: int
     run_share: float
     warnings: tuple[str, ...] = ()
 
+    @cached_property
+    def intervals(self) -> pd.DataFrame:
+        """The pieces as a table ``start, end, state, level`` (UTC), for outputs and users."""
+        return pd.DataFrame({
+            "start": from_ns(self.piece_starts), "end": from_ns(self.piece_ends),
+            "state": self.piece_states, "level": self.piece_levels,
+        })
+
+    def level_at(self, instants: np.ndarray) -> np.ndarray:
+        """The level of the piece each of the int64 ns ``instants`` lies in; NaN in no_data,
+        before the first piece, or where the piece has no level [reading unit]."""
+        t = np.asarray(instants, dtype=np.int64)
+        if self.piece_starts.size == 0:
+            return np.full(t.shape, np.nan)
+        idx = np.searchsorted(self.piece_starts, t, side="right") - 1
+        lv = self.piece_levels.astype(float)[np.clip(idx, 0, None)]
+        lv[idx < 0] = np.nan
+        lv[self.sets.no_data.contains(t)] = np.nan
+        return lv
+
+    @classmethod
+    def from_table(cls, component: Component, table: pd.DataFrame, start: pd.Timestamp,
+                   end: pd.Timestamp) -> ComponentStates:
+        """States read from a table ``start, end, state`` (and ``level``, optional), checked
+        once by :meth:`StateSets.from_table`; the pieces are the table's rows in time order."""
+        sets = StateSets.from_table(table, start, end)
+        tab = table.sort_values("start", kind="stable")
+        level = (tab["level"].astype(float).to_numpy() if "level" in tab.columns
+                 else np.full(len(tab), np.nan))
+        bs, be = to_ns(tab["start"]), to_ns(tab["end"])
+        codes = np.asarray(tab["state"].astype(str).to_numpy(), dtype=object)
+        starts, share = _summary(bs, be, codes)
+        return cls(component, sets, np.asarray(bs, np.int64), np.asarray(be, np.int64), codes,
+                   level, None, starts, share, sets.warnings)
+
+
+@dataclass(frozen=True)
+class _Levels:
+    """One sensor's finite readings in time order: instants [int64 ns UTC], levels [reading
+    unit], crest factors of the peak axes [-] and log10 levels (floored)."""
+
+    t: np.ndarray
+    level: np.ndarray
+    crest: np.ndarray
+    log_level: np.ndarray
 
 
 # -- states ----------------------------------------------------------------------------------
@@ -158,8 +208,12 @@ _CODES = np.array([OFF, RUN, NO_DATA], dtype=object)
 def _state_table(
     t: np.ndarray, L: np.ndarray, lv: np.ndarray, pk: np.ndarray, thr: Threshold,
     s0: int, e0: int, max_gap: int, min_run: int | None, min_stop: int | None,
-) -> pd.DataFrame:
-    """Readings (time-ordered, inside the window +- max_gap) -> the contiguous state table."""
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Readings (time-ordered, inside the window +- max_gap) -> the contiguous pieces.
+
+    Returns piece starts and ends [int64 ns UTC], state codes (0 off, 1 run, 2 no_data) and
+    median levels [reading unit].
+    """
     n = t.size
     if n == 0:
         codes, bs, be = np.array([2]), np.array([s0]), np.array([e0])
@@ -215,29 +269,26 @@ def _state_table(
             j = np.clip(np.searchsorted(t, (bs[empty] + be[empty]) // 2), 0, n - 1)
             level[empty] = lv[j]
     level[codes == 2] = np.nan
-    return pd.DataFrame({
-        "start": pd.DatetimeIndex(bs.view("datetime64[ns]")).tz_localize("UTC"),
-        "end": pd.DatetimeIndex(be.view("datetime64[ns]")).tz_localize("UTC"),
-        "state": _CODES[codes], "level": level,
-    })
+    return bs.astype(np.int64), be.astype(np.int64), codes, level
 
 
-def _summary(tab: pd.DataFrame) -> tuple[int, float]:
-    st = tab["state"].to_numpy()
-    starts = int(((st[1:] == "run") & (st[:-1] == "off")).sum())
-    length = (tab["end"] - tab["start"]).dt.total_seconds().to_numpy()
-    known = length[st != "no_data"].sum()
-    return starts, (float(length[st == "run"].sum() / known) if known > 0 else float("nan"))
+def _summary(bs: np.ndarray, be: np.ndarray, st: np.ndarray) -> tuple[int, float]:
+    """Seen starts (an ``off`` piece followed by a ``run`` piece) and the run share of the
+    known time [-] of contiguous pieces (state names ``st``)."""
+    starts = int(((st[1:] == RUN) & (st[:-1] == OFF)).sum())
+    length = (np.asarray(be, np.int64) - np.asarray(bs, np.int64)) / 1e9     # [s]
+    known = length[st != NO_DATA].sum()
+    return starts, (float(length[st == RUN].sum() / known) if known > 0 else float("nan"))
 
 
-def _prepared(frame: pd.DataFrame | None, name: str, floor: float):
+def _prepared(frame: pd.DataFrame | None, name: str, floor: float) -> _Levels:
     if frame is None or len(frame) == 0:
         z = np.zeros(0)
-        return np.zeros(0, np.int64), z, z, z
+        return _Levels(np.zeros(0, np.int64), z, z, z)
     t, lv, pk = reading_levels(frame, name=name)
     ok = np.isfinite(lv)
     t, lv, pk = t[ok], lv[ok], pk[ok]
-    return t, lv, pk, log_levels(lv, floor)
+    return _Levels(t, lv, pk, log_levels(lv, floor))
 
 
 def _moving(t: np.ndarray, L: np.ndarray, g: th.LevelGroups, floor: float) -> np.ndarray:
@@ -293,33 +344,49 @@ def classify_component(
     """
     settings = settings if settings is not None else RunStateSettings()
     floor, fw = default_floor(settings, level_unit)
-    t, lv, pk, L = _prepared(frame, component.sensor, floor)
-    thr = choose_threshold(L, configured=component.threshold, floor=floor,
+    levels = _prepared(frame, component.sensor, floor)
+    thr = choose_threshold(levels.log_level, configured=component.threshold, floor=floor,
                            sibling_moving=sibling_moving)
-    return _finish(component, t, lv, pk, L, thr, start, end, max_gap, settings, fw)
+    return _finish(component, levels, thr, start=start, end=end, max_gap=max_gap,
+                   settings=settings, warnings=fw)
 
 
-def _finish(component, t, lv, pk, L, thr, start, end, max_gap, settings, warnings):
+def _finish(
+    component: Component, levels: _Levels, threshold: Threshold, *, start: pd.Timestamp,
+    end: pd.Timestamp, max_gap: pd.Timedelta, settings: RunStateSettings,
+    warnings: list[str] | tuple[str, ...],
+) -> ComponentStates:
+    """The component's states over ``[start, end)`` from its readings and on/off level.
+
+    ``warnings`` (the floor level's) come first; a warning about missing readings is added
+    when they pass :data:`schedcheck.runstate.states.NO_DATA_WARN` ``.note`` of the window.
+    """
     s0, e0 = to_ns(pd.Timestamp(start)), to_ns(pd.Timestamp(end))
     if e0 <= s0:
         raise InputError(f"the window ends ({end}) before it starts ({start})", key="window")
     mg = int(pd.Timedelta(max_gap).value)
+    t = levels.t
     sel = (t >= s0 - mg) & (t < e0 + mg)
     min_run = None if settings.min_run is None else int(settings.min_run.value)
     min_stop = None if settings.min_stop is None else int(settings.min_stop.value)
-    tab = _state_table(t[sel], L[sel], lv[sel], pk[sel], thr, s0, e0, mg, min_run, min_stop)
-    starts, share = _summary(tab)
+    bs, be, codes, level = _state_table(t[sel], levels.log_level[sel], levels.level[sel],
+                                        levels.crest[sel], threshold, s0, e0, mg, min_run,
+                                        min_stop)
+    names = _CODES[codes]
+    starts, share = _summary(bs, be, names)
+    sets = StateSets(*(Intervals.from_arrays(bs[names == st], be[names == st]) for st in STATES))
     warn = list(warnings)
-    nd = tab.loc[tab["state"] == "no_data"]
-    nd_h = float((nd["end"] - nd["start"]).dt.total_seconds().sum() / 3600)
+    nd_len = (be - bs)[names == NO_DATA]
+    nd_h = float(nd_len.sum() / 1e9 / 3600)
     total_h = (e0 - s0) / 3.6e12
     if not sel.any():
         warn.append(f"no readings from sensor {component.sensor} in the window")
-    elif nd_h > NO_DATA_WARN * total_h:
-        longest = float((nd["end"] - nd["start"]).max().total_seconds() / 3600)
+    elif nd_h > NO_DATA_WARN.note * total_h:
+        longest = float(nd_len.max() / 1e9 / 3600)
         warn.append(f"{nd_h:.1f} h without readings ({nd_h / total_h:.1%} of the window; "
                     f"longest silence {longest:.1f} h)")
-    return ComponentStates(component, tab, thr, starts, share, tuple(warn))
+    return ComponentStates(component, sets, bs, be, names, level, threshold, starts, share,
+                           tuple(warn))
 
 
 def classify_unit(
@@ -355,17 +422,18 @@ def classify_unit(
     prep, groups, moving = {}, {}, {}
     for c in unit.components:
         prep[c.key] = _prepared(readings.get(c.sensor), c.sensor, floor)
-        t, lv, pk, L = prep[c.key]
+        t, L = prep[c.key].t, prep[c.key].log_level
         groups[c.key] = th.level_groups(L) if L.size else None
         moving[c.key] = (t, _moving(t, L, groups[c.key], floor) if L.size else L.astype(bool))
     out: dict[str, ComponentStates] = {}
     mg = int(pd.Timedelta(max_gap).value)
     for c in unit.components:
-        t, lv, pk, L = prep[c.key]
+        t, L = prep[c.key].t, prep[c.key].log_level
         others = [moving[o.key] for o in unit.components
                   if o.key != c.key and o.sensor != c.sensor]
         sib = _sibling_moving(t, others, mg)
         thr = choose_threshold(L, configured=c.threshold, floor=floor, sibling_moving=sib,
                                groups=groups[c.key])
-        out[c.key] = _finish(c, t, lv, pk, L, thr, start, end, max_gap, settings, fw)
+        out[c.key] = _finish(c, prep[c.key], thr, start=start, end=end, max_gap=max_gap,
+                             settings=settings, warnings=fw)
     return out
