@@ -16,8 +16,11 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.errors import InputError
+from schedcheck.readings.window_clip import audit_window
 from schedcheck.runstate.classify import ComponentStates, classify_unit
+from schedcheck.runstate.hours import hours_by_state
 from schedcheck.runstate.onofflevel import SEPARATION_CAP
+from schedcheck.runstate.states import NO_DATA, OFF, RUN
 from schedcheck.site import Site
 from schedcheck.window import day_window
 
@@ -57,10 +60,10 @@ def component_record(cs: ComponentStates) -> dict:
     (running / known time), ``starts``, ``starts_per_day`` (per 24 h of known time),
     ``known_hours``, ``no_data_hours`` [h], ``reason`` and ``warnings``.
     """
-    th, tab = cs.threshold, cs.intervals
-    hours = (tab["end"] - tab["start"]).dt.total_seconds() / 3600.0
-    no_data = float(hours[tab["state"] == "no_data"].sum())
-    known = float(hours.sum()) - no_data
+    th = cs.threshold
+    hours = hours_by_state(cs.intervals)
+    no_data = hours[NO_DATA]
+    known = hours[RUN] + hours[OFF]
     c = cs.component
     sep = th.separation
     return {
@@ -109,8 +112,7 @@ def site_states(
     plot_dir : str or Path, optional
         Write ``<unit>_<component>.svg`` histogram pictures into this folder.
     """
-    from schedcheck.jobs.audit import audit_window
-    from schedcheck.jobs.common import load_readings, open_site
+    from schedcheck.jobs.common import load_readings, open_readings, open_site
     from schedcheck.outputs.histogram import histogram_svg, write_histogram
 
     site = open_site(site_path)
@@ -121,9 +123,14 @@ def site_states(
         # "--plot levels.svg" made a folder called levels.svg
         raise InputError("looks like a file name; --plot takes a folder and writes one picture "
                          "per component into it", path=plot_dir)
-    first, last = audit_window(site, first, last)
+    source = open_readings(site)
+    # missing dates: the whole days of the data (bad rows skipped, they do not move the range);
+    # the whole read is remembered, so the windowed read below does not parse the files again
+    everything = (source.read(skip_bad_rows=True, keep=True)
+                  if first is None or last is None else None)
+    first, last = audit_window(site, first, last, everything)
     start, end = day_window(first, last, site.timezone)
-    readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows)
+    readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows, source=source)
     states: dict[str, ComponentStates] = {}
     for unit in site.units:
         states.update(classify_unit(unit, readings.by_sensor, start, end, site.readings.max_gap,
@@ -141,5 +148,5 @@ def site_states(
             except OSError as e:
                 raise InputError(f"cannot write the pictures here ({e.strerror or e})",
                                  path=plot_dir) from None
-    warnings = [str(w) for w in getattr(readings, "warnings", []) or []]
+    warnings = [str(w) for w in readings.warnings]
     return StatesResult(site, first, last, start, end, states, records, warnings, pictures)
