@@ -21,7 +21,7 @@ from schedcheck.changes.change_points import (
     pelt_mean_shift,
     robust_sigma,
 )
-from schedcheck.jobs.compare import CAP_SIGMAS, MIN_SEGMENT_DAYS, SIGMA_FLOOR_H
+from schedcheck.changes.compare import CAP_SIGMAS, MIN_SEGMENT_DAYS, SIGMA_FLOOR_H
 
 
 def series(n: int, seed: int = 0) -> tuple[np.ndarray, np.ndarray, int]:

@@ -330,8 +330,8 @@ def test_few_usable_days_are_flagged_not_reported_as_a_firm_no_change():
 
     import pandas as pd
 
+    from schedcheck.changes.compare import compare_daily
     from schedcheck.intervals import NS_PER_H
-    from schedcheck.jobs.compare import compare_daily
 
     dates = [dt.date(2026, 3, 2) + dt.timedelta(days=i) for i in range(21)]
     change = dt.date(2026, 3, 16)

@@ -198,7 +198,6 @@ def test_naive_timestamps_refused_naming_file_and_line(tmp_path):
     # large counts are written with thousands separators, like the other row counts
     minutes("S1", n=1500).assign(timestamp=lambda f: f["timestamp"].str.rstrip("Z")).to_csv(
         tmp_path / "readings" / "r.csv", index=False)
-    rf.forget_cached_read()
     with pytest.raises(InputProblems) as exc:
         load_readings(load_site(site_file(tmp_path)))
     assert "(1,499 more rows like it)" in errors_of(exc.value)[0]
@@ -422,22 +421,24 @@ def test_a_whole_read_is_reused_for_the_next_window_and_changes_are_seen(tmp_pat
     reads = []
     real = rf._read_csv
     monkeypatch.setattr(rf, "_read_csv", lambda *a: reads.append(1) or real(*a))
-    whole = rf.read_readings(site, keep=True)
+    source = rf.ReadingsSource(site)   # the command's readings, passed to every read
+    whole = source.read(keep=True)
     start, end = pd.Timestamp("2026-03-02T01:00Z"), pd.Timestamp("2026-03-02T02:00Z")
-    part = load_readings(site, start, end)
+    part = load_readings(site, start, end, source=source)
     assert len(reads) == 1     # the window came from the kept whole read
     assert whole.health["S1"].count == 180 and part.health["S1"].count == 60
     assert part.by_sensor["S1"]["timestamp"].min() == start
-    load_readings(site, start, end)
+    load_readings(site, start, end, source=source)
     assert len(reads) == 2     # kept for one window only
-    assert data_time_range(site) == (dt.date(2026, 3, 2), dt.date(2026, 3, 2))
-    assert load_readings(site, start, end).health["S1"].count == 60 and len(reads) == 3
-    load_readings(site)
-    load_readings(site)
+    assert data_time_range(site, source=source) == (dt.date(2026, 3, 2), dt.date(2026, 3, 2))
+    assert load_readings(site, start, end, source=source).health["S1"].count == 60 \
+        and len(reads) == 3
+    load_readings(site, source=source)
+    load_readings(site, source=source)
     assert len(reads) == 5     # without keep=True nothing is kept
     both(n=120).to_csv(tmp_path / "readings" / "r.csv", index=False)
-    rf.read_readings(site, keep=True)
-    assert len(reads) == 6 and rf.read_readings(site).health["S1"].count == 120   # changed
+    source.read(keep=True)
+    assert len(reads) == 6 and source.read().health["S1"].count == 120   # changed
 
 
 def test_parquet_epoch_seconds_and_text_timestamps(tmp_path):
@@ -470,7 +471,6 @@ def test_a_single_axis_sensor_in_a_shared_file_leaves_its_other_columns_empty(tm
     s1 = s1.astype({"x_rms": object})
     s1.loc[5, "x_rms"] = ""
     pd.concat([s1, s2]).to_csv(tmp_path / "readings" / "r.csv", index=False)
-    rf.forget_cached_read()
     with pytest.raises(InputProblems) as exc:
         load_readings(load_site(site_file(tmp_path)))
     (msg,) = errors_of(exc.value)
@@ -493,7 +493,6 @@ def test_a_window_far_from_the_autumn_fold_neither_reads_nor_warns_about_it(tmp_
     assert r.by_sensor["S1"]["timestamp"].tolist() == sept.tolist()
     assert r.health["S1"].ambiguous_dropped == 0 and not r.warnings
     # a window holding the fold still places every row
-    rf.forget_cached_read()
     r = load_readings(site, pd.Timestamp("2026-10-24T22:00Z"), pd.Timestamp("2026-10-25T23:00Z"))
     assert r.by_sensor["S1"]["timestamp"].tolist() == fold.tolist()
     assert r.health["S1"].ambiguous_dropped == 0
@@ -514,7 +513,6 @@ def test_column_names_listed_in_order_read_two_exports_with_different_names(tmp_
     assert r.by_sensor["S1"]["x_rms"].tolist() == a["VelX"].tolist()
     assert r.by_sensor["S2"]["x_rms"].tolist() == b["vx"].tolist()
     # a file with none of the names is refused, naming them all
-    rf.forget_cached_read()
     a.rename(columns={"Time": "When"}).to_csv(tmp_path / "readings" / "east.csv", index=False)
     with pytest.raises(InputProblems) as exc:
         load_readings(load_site(site_file(tmp_path, extra=cols)))

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 import sys
 from typing import Annotated
 
@@ -13,7 +12,7 @@ from schedcheck.cli._common import SiteArg, SkipBadRows, interactive, parse_date
 from schedcheck.errors import InputError
 
 FORMATS = ("table", "json")
-#: = schedcheck.jobs.compare.DEFAULT_DAYS (four whole weeks); written out so that starting the
+#: = schedcheck.changes.compare.DEFAULT_DAYS (four whole weeks); written out so that starting the
 #: CLI does not load the job's numerical modules (a test keeps the two equal).
 DEFAULT_DAYS = 28
 
@@ -86,6 +85,8 @@ def compare_table(result) -> object:
 
 def _advice(result) -> list[str]:
     """One plain line per component worth a second look after the change."""
+    from schedcheck.changes.compare import LEFT_OUT
+
     lines = []
     for c in result.components:
         if not c.figures:
@@ -113,7 +114,7 @@ def _advice(result) -> list[str]:
             lines.append(f"{c.id}: {when} off-schedule running settles at "
                          f"{p.after_mean:.1f} h/day (was {p.before_mean:.1f}).")
         for note in c.notes:
-            if "left out" in note:
+            if note.kind == LEFT_OUT:
                 lines.append(f"{c.id}: {note}")
     return lines
 
@@ -144,6 +145,7 @@ def compare(
     from rich.console import Console
 
     from schedcheck.jobs.compare import compare_site
+    from schedcheck.outputs.compare_json import compare_json_text
 
     if fmt not in FORMATS:
         raise InputError(f"{fmt!r} is not a format; choose table or json", key="--format")
@@ -151,7 +153,7 @@ def compare(
     result = compare_site(site, day, before, after, skip_bad_rows=skip_bad_rows,
                           progress=_progress if interactive() else None)
     if fmt == "json":
-        sys.stdout.write(json.dumps(result.as_json(), indent=2, ensure_ascii=False) + "\n")
+        sys.stdout.write(compare_json_text(result))
         return 0
     console = Console(width=None if sys.stdout.isatty() else 160, highlight=False)
     console.print(compare_table(result))

@@ -232,8 +232,60 @@ def _clustered(pf, column: str, wanted: list) -> bool:
     return hits <= md.num_row_groups + len(wanted)   # about one sensor per group
 
 
+class ReadingsSource:
+    """The readings files of one site, for one command: reads them, and remembers the last
+    whole read (no window) for one more read.
+
+    Commands first find the data's range (a whole read), then read their window; the window
+    is cut from the remembered whole read without parsing the files again. The job opens one
+    source per command and passes it on; nothing is kept between commands. A change to any
+    file (time stamp or size) or to the site's readings settings makes the next read parse the
+    files again.
+    """
+
+    def __init__(self, site: Site) -> None:
+        self.site = site
+        self._kept: tuple[tuple, Collector] | None = None
+
+    def read(self, start: pd.Timestamp | None = None, end: pd.Timestamp | None = None, *,
+             skip_bad_rows: bool | None = None, keep: bool = False,
+             progress: Callable[[str], None] | None = None) -> rd.Readings:
+        """Clean readings of the site's sensors; the parameters are those of
+        :func:`read_readings`, and:
+
+        keep : bool
+            Remember this whole read (no window) for the next call, which then cuts its window
+            from it; a windowed read lets the remembered one go.
+        """
+        site = self.site
+        skip = site.readings.skip_bad_rows if skip_bad_rows is None else skip_bad_rows
+        files = readings_files(site)
+        key = _files_key(site, files)
+        if self._kept is not None and self._kept[0] == key:
+            col = self._kept[1]      # read whole moments ago (the data range): reuse
+            if start is not None or end is not None:
+                self._kept = None    # the window is what the command wanted: let the memory go
+        else:
+            self._kept = None
+            col = Collector(site, start, end)
+            for i, path in enumerate(files):
+                if progress is not None:
+                    progress(f"reading {path.name} ({i + 1} of {len(files)})")
+                _read_file(col, site, path, i)
+            if keep and start is None and end is None:
+                self._kept = (key, col)
+        problems = col.file_errors() + ([] if skip else col.bad_row_errors())
+        if problems:
+            raise InputProblems(problems)
+        return _assemble(col, site, files, start, end, skip, keep_parts=self._kept is not None)
+
+    def forget(self) -> None:
+        """Let the remembered whole read go (frees its memory)."""
+        self._kept = None
+
+
 def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timestamp | None = None,
-                  *, skip_bad_rows: bool | None = None, keep: bool = False,
+                  *, skip_bad_rows: bool | None = None,
                   progress: Callable[[str], None] | None = None) -> rd.Readings:
     """Read every readings file of a site and return clean readings of its sensors.
 
@@ -246,9 +298,6 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
     skip_bad_rows : bool, optional
         Drop malformed rows (counted and named in the result) instead of failing; None takes
         ``[readings] skip_bad_rows`` from the site file.
-    keep : bool
-        Keep this whole read (no window) for the next call, which may then cut its window from
-        it without parsing the files again (see :func:`schedcheck.jobs.common.data_time_range`).
     progress : callable, optional
         Called with a short message before each file is read.
 
@@ -257,36 +306,17 @@ def read_readings(site: Site, start: pd.Timestamp | None = None, end: pd.Timesta
     InputProblems
         For unreadable files, missing columns, timestamps without an offset, bad rows (unless
         skipped), and when no configured sensor has a reading in the window.
+
+    See Also
+    --------
+    ReadingsSource : the same read, remembering a whole read for the next window.
     """
-    skip = site.readings.skip_bad_rows if skip_bad_rows is None else skip_bad_rows
-    files = readings_files(site)
-    key = _cache_key(site, files)
-    global _LAST
-    if _LAST is not None and _LAST[0] == key:
-        col = _LAST[1]      # the files were read whole moments ago (the data range); reuse
-        if start is not None or end is not None:
-            _LAST = None    # the window is what the command wanted: let the memory go
-    else:
-        _LAST = None
-        col = Collector(site, start, end)
-        for i, path in enumerate(files):
-            if progress is not None:
-                progress(f"reading {path.name} ({i + 1} of {len(files)})")
-            _read_file(col, site, path, i)
-        if keep and start is None and end is None:
-            _LAST = (key, col)
-    problems = col.file_errors() + ([] if skip else col.bad_row_errors())
-    if problems:
-        raise InputProblems(problems)
-    return _assemble(col, site, files, start, end, skip, keep_parts=_LAST is not None)
+    return ReadingsSource(site).read(start, end, skip_bad_rows=skip_bad_rows, progress=progress)
 
 
-# The last whole read (no window) is kept for one more call: commands first find the data's
-# range, then read their window, and the files need not be parsed twice.
-_LAST: tuple[tuple, Collector] | None = None
-
-
-def _cache_key(site: Site, files: list[Path]) -> tuple:
+def _files_key(site: Site, files: list[Path]) -> tuple:
+    """What a remembered read depends on: each file's name, time stamp and size, and the
+    site's readings settings."""
     stats = []
     for f in files:
         st = f.stat()
@@ -294,12 +324,6 @@ def _cache_key(site: Site, files: list[Path]) -> tuple:
     r = site.readings
     return (tuple(stats), site.timezone, r.naive_time, tuple(sorted(r.columns.items())),
             tuple(sorted((c.sensor, c.key) for c in site.components)))
-
-
-def forget_cached_read() -> None:
-    """Drop the kept whole read (frees its memory)."""
-    global _LAST
-    _LAST = None
 
 
 def _read_file(col: Collector, site: Site, path: Path, i: int) -> None:
@@ -381,12 +405,15 @@ def _assemble(col: Collector, site: Site, files, start, end, skip: bool,
         raise InputProblems([NoReadingsError(
             f"no readings for any configured sensor ({', '.join(col.owner)}){span}{seen}",
             nothing_else=not seen, path=site.path, key="readings.files")])
+    skipped = None
     if skip and col.bad_total:
         first = "; ".join(str(e) for e in col.bad_examples[:3])
-        warns.append(f"skipped {col.bad_total:,} bad row{'s' if col.bad_total > 1 else ''} "
-                     f"(first: {first})")
+        skipped = (f"skipped {col.bad_total:,} bad row{'s' if col.bad_total > 1 else ''} "
+                   f"(first: {first})")
+        warns.append(skipped)
     return rd.Readings(by_sensor=by_sensor, health=health, unconfigured=dict(col.unconfigured),
                        bad_rows_count=col.bad_total,
                        bad_rows_examples=[str(e) for e in col.bad_examples],
                        bad_rows_problems=col.bad_row_errors(), warnings=warns,
+                       bad_rows_warning=skipped,
                        start=start, end=end, files=tuple(str(f) for f in files))

@@ -52,6 +52,51 @@ def _absent_levels(raw: pd.DataFrame, levels: tuple[str, ...], codes: np.ndarray
     return out
 
 
+class _Rows:
+    """One chunk's rows with their sensor names and codes, file lines and positions."""
+
+    def __init__(self, raw: pd.DataFrame, sensor: np.ndarray, codes: np.ndarray,
+                 lines: np.ndarray | None, positions: np.ndarray) -> None:
+        self.raw, self.sensor, self.codes = raw, sensor, codes
+        self.lines, self.positions = lines, positions
+
+    def where(self, keep: np.ndarray) -> _Rows:
+        """Only the rows where ``keep`` is True (itself when it keeps every row)."""
+        if keep.all():
+            return self
+        return _Rows(self.raw[keep], self.sensor[keep], self.codes[keep],
+                     None if self.lines is None else self.lines[keep], self.positions[keep])
+
+
+def _blank_rows(rows: _Rows) -> np.ndarray:
+    """Rows with every cell empty (blank lines of a CSV file)."""
+    no_sensor = rows.sensor == ""
+    blank = no_sensor.copy()
+    if no_sensor.any():
+        raw = rows.raw
+        for c in raw.columns:
+            blank[no_sensor] &= (raw[c][no_sensor].fillna("").astype("str").str.strip()
+                                 == "").to_numpy()
+    return blank
+
+
+def _levels(rows: _Rows, levels: tuple[str, ...], n_names: int
+            ) -> tuple[pd.DataFrame, np.ndarray, dict[str, list[int]]]:
+    """Level values, rows with a bad level, and the columns absent per sensor code.
+
+    A sensor with fewer axes in a shared file leaves its other columns empty: those are not
+    bad values (:func:`_absent_levels`).
+    """
+    lv, lbad = rd.level_values(rows.raw, levels)
+    absent = _absent_levels(rows.raw, levels, rows.codes, n_names)
+    if absent:
+        lbad = np.zeros(len(rows.raw), bool)
+        for c in levels:
+            cbad = ~np.isfinite(lv[c].to_numpy()) | (lv[c].to_numpy() < 0)
+            lbad |= cbad & ~np.isin(rows.codes, absent.get(c, []))
+    return lv, lbad, absent
+
+
 class Collector:
     """Accumulates rows of every file, bad rows and file-level problems."""
 
@@ -70,82 +115,90 @@ class Collector:
         self.bad_by_file: dict[str, list] = {}
         self.naive_by_file: dict[str, list] = {}
 
-    # one chunk of raw rows, columns already renamed to ours
     def take(self, raw: pd.DataFrame, path: Path, file_idx: int, levels: tuple[str, ...],
              lines: np.ndarray | None, positions: np.ndarray, comma_decimal: bool = False
              ) -> None:
+        """Take one chunk of raw rows (columns already renamed to ours).
+
+        ``lines``: file line of each row (CSV) or None (Parquet); ``positions``: each row's
+        position in its file, for the read order. Rows of sensors not configured are counted,
+        bad rows counted and named, rows without an offset counted per file, and the good
+        rows near the window kept per sensor.
+        """
         if len(raw) == 0:
             return
         codes, uniques = pd.factorize(raw["sensor"].fillna("").astype("str").str.strip())
         names = np.asarray(uniques, dtype=object)
-        sensor = names[codes]
-        no_sensor = sensor == ""
-        if lines is not None and no_sensor.any():  # blank lines in a CSV are not data
-            blank = no_sensor.copy()
-            for c in raw.columns:
-                blank[no_sensor] &= (raw[c][no_sensor].fillna("").astype("str").str.strip()
-                                     == "").to_numpy()
-            if blank.any():
-                raw, sensor, codes = raw[~blank], sensor[~blank], codes[~blank]
-                lines, positions = lines[~blank], positions[~blank]
-        counts = np.bincount(codes, minlength=len(names))
+        rows = _Rows(raw, names[codes], codes, lines, positions)
+        if lines is not None:   # blank lines in a CSV are not data
+            rows = rows.where(~_blank_rows(rows))
+        rows = rows.where(self._configured(rows, names))
+        if len(rows.raw) == 0:
+            return
+        rows.raw = rows.raw.reset_index(drop=True)
+        if comma_decimal:
+            for c in levels:
+                rows.raw[c] = rows.raw[c].astype("str").str.replace(",", ".", regex=False)
+        tp = rd.parse_timestamps(rows.raw["timestamp"], naive_time=self.naive_time, tz=self.tz)
+        lv, lbad, absent = _levels(rows, levels, len(names))
+        naive = tp.status == rd.NAIVE
+        if naive.any():
+            self._note_naive(rows, path, naive)
+        time_bad = ~np.isin(tp.status, (rd.OK, rd.AMBIGUOUS, rd.NAIVE))
+        bad = (time_bad | lbad | (rows.sensor == "")) & ~naive
+        if bad.any():
+            self._bad(rows.raw, tp, levels, bad, path, rows.lines, rows.sensor, absent,
+                      rows.codes)
+        good = ~bad & ~naive
+        if good.any():
+            self._keep(rows, tp, lv, good & self._near_window(tp), file_idx, names, levels,
+                       absent)
+
+    def _configured(self, rows: _Rows, names: np.ndarray) -> np.ndarray:
+        """Rows of configured sensors (or without a sensor, bad rows); the others counted."""
+        counts = np.bincount(rows.codes, minlength=len(names))
         mine = np.array([n in self.owner or n == "" for n in names], bool)
         for k in np.flatnonzero(~mine & (counts > 0)):
             self.unconfigured[names[k]] += int(counts[k])
-        keep = mine[codes]
-        if not keep.all():
-            raw, sensor, codes = raw[keep], sensor[keep], codes[keep]
-            lines, positions = (None if lines is None else lines[keep]), positions[keep]
-        if len(raw) == 0:
-            return
-        raw = raw.reset_index(drop=True)
-        if comma_decimal:
-            for c in levels:
-                raw[c] = raw[c].astype("str").str.replace(",", ".", regex=False)
-        tp = rd.parse_timestamps(raw["timestamp"], naive_time=self.naive_time, tz=self.tz)
-        lv, lbad = rd.level_values(raw, levels)
-        absent = _absent_levels(raw, levels, codes, len(names))
-        if absent:   # a sensor with fewer axes in a shared file: its empty columns are not data
-            lbad = np.zeros(len(raw), bool)
-            for c in levels:
-                cbad = ~np.isfinite(lv[c].to_numpy()) | (lv[c].to_numpy() < 0)
-                lbad |= cbad & ~np.isin(codes, absent.get(c, []))
-        naive = tp.status == rd.NAIVE
-        if naive.any():
-            rec = self.naive_by_file.setdefault(str(path), [None, 0])
-            if rec[0] is None:
-                i = int(np.flatnonzero(naive)[0])
-                rec[0] = (self._where(path, lines, i, sensor, raw), raw["timestamp"].iloc[i])
-            rec[1] += int(naive.sum())
-        time_bad = ~np.isin(tp.status, (rd.OK, rd.AMBIGUOUS, rd.NAIVE))
-        bad = (time_bad | lbad | (sensor == "")) & ~naive
-        if bad.any():
-            self._bad(raw, tp, levels, bad, path, lines, sensor, absent, codes)
-        good = ~bad & ~naive
-        if not good.any():
-            return
-        utc = tp.utc
-        # rows of a repeated autumn hour have two candidate instants: they are near the window
-        # when either is (a fold far outside it is not placed, so it cannot warn)
+        return mine[rows.codes]
+
+    def _note_naive(self, rows: _Rows, path: Path, naive: np.ndarray) -> None:
+        """Count rows whose time stamp has no offset, remembering the first of each file."""
+        rec = self.naive_by_file.setdefault(str(path), [None, 0])
+        if rec[0] is None:
+            i = int(np.flatnonzero(naive)[0])
+            rec[0] = (self._where(path, rows.lines, i, rows.sensor, rows.raw),
+                      rows.raw["timestamp"].iloc[i])
+        rec[1] += int(naive.sum())
+
+    def _near_window(self, tp) -> np.ndarray:
+        """Rows within :data:`MARGIN` of the window. Rows of a repeated autumn hour have two
+        candidate instants: they are near the window when either is (a fold far outside it is
+        not placed, so it cannot warn)."""
         amb = tp.status == rd.AMBIGUOUS
-        lo = np.where(amb, tp.late, utc)
-        hi = np.where(amb, tp.early, utc)
-        inside = np.ones(len(raw), bool)
+        lo = np.where(amb, tp.late, tp.utc)
+        hi = np.where(amb, tp.early, tp.utc)
+        inside = np.ones(len(tp.utc), bool)
         if self.start is not None:
             inside &= (lo == rd.NAT) | (lo >= (self.start - MARGIN).value)
         if self.end is not None:
             inside &= (hi == rd.NAT) | (hi < (self.end + MARGIN).value)
-        good &= inside
-        order = (np.int64(file_idx) << ORDER_SHIFT) + positions.astype(np.int64)
-        cols = {"order": order, "utc": utc}
+        return inside
+
+    def _keep(self, rows: _Rows, tp, lv: pd.DataFrame, keep: np.ndarray, file_idx: int,
+              names: np.ndarray, levels: tuple[str, ...], absent: dict[str, list[int]]
+              ) -> None:
+        """Append the kept rows to their sensors' parts (read order, instants, levels)."""
+        order = (np.int64(file_idx) << ORDER_SHIFT) + rows.positions.astype(np.int64)
+        cols = {"order": order, "utc": tp.utc}
         if (tp.status == rd.AMBIGUOUS).any():   # kept only where needed: they cost memory
             cols.update(early=tp.early, late=tp.late, wall=tp.wall)
         frame = pd.DataFrame(cols).join(lv.reset_index(drop=True))
-        for k in np.unique(codes[good]):
+        for k in np.unique(rows.codes[keep]):
             name = names[k]
             if name:
                 gone = [c for c in levels if k in absent.get(c, ())]
-                part = frame[good & (codes == k)]
+                part = frame[keep & (rows.codes == k)]
                 self.parts[name].append(part.drop(columns=gone) if gone else part)
 
     def _where(self, path, lines, i, sensor, raw) -> InputError:

@@ -9,20 +9,17 @@ the report. Prints nothing: progress goes to the optional ``progress`` callback.
 
 from __future__ import annotations
 
-import dataclasses
 import datetime as dt
 import re
 from collections.abc import Callable
 from pathlib import Path
 
-import numpy as np
-import pandas as pd
-
 from schedcheck.audit.run import AuditResult, run_audit
 from schedcheck.errors import InputError
-from schedcheck.intervals import to_ns
+from schedcheck.inputs.readings_files import ReadingsSource
+from schedcheck.readings.window_clip import audit_window, clip_readings, window_warnings
 from schedcheck.site import Site
-from schedcheck.window import day_window, last_local_date
+from schedcheck.window import day_window
 
 
 def default_outdir(site: Site) -> Path:
@@ -31,104 +28,73 @@ def default_outdir(site: Site) -> Path:
     return Path.cwd() / f"audit-{slug}"
 
 
-def audit_window(site: Site, first: dt.date | None, last: dt.date | None, readings=None
-                 ) -> tuple[dt.date, dt.date]:
-    """The local dates to audit: the options, else the whole days covered by the data.
-
-    ``readings`` (all readings of the site, unwindowed) saves reading the files again.
-    """
-    if first is None or last is None:
-        from schedcheck.jobs.common import data_days, data_time_range
-
-        if readings is not None:
-            d0, d1 = data_days(readings, site)
-        else:
-            d0, d1 = data_time_range(site)
-        if first is not None and first > d1:
-            raise InputError(f"{first} is after the last whole day of readings ({d1}); give "
-                             "--to as well to audit days without data", key="--from")
-        if last is not None and last < d0:
-            raise InputError(f"{last} is before the first whole day of readings ({d0}); give "
-                             "--from as well to audit days without data", key="--to")
-        first = first or d0
-        last = last or d1
-    if last < first:
-        raise InputError(f"the window ends ({last}) before it starts ({first})", key="--to")
-    return first, last
-
-
-def clip_readings(readings, start: pd.Timestamp, end: pd.Timestamp, max_gap: pd.Timedelta):
-    """Readings loaded without a window, cut to ``[start, end)`` with health for that window.
-
-    Counts of duplicates and out-of-order rows stay those of the whole load; first, last,
-    count, median interval and gaps are recomputed for the window.
-    """
-    from schedcheck.readings import cleaning as rd
-
-    by_sensor, health = {}, {}
-    for sensor, frame in readings.by_sensor.items():
-        keep = ((frame["timestamp"] >= start) & (frame["timestamp"] < end)).to_numpy()
-        clipped = frame[keep].reset_index(drop=True)
-        by_sensor[sensor] = clipped
-        h = dataclasses.replace(readings.health[sensor], first=None, last=None,
-                                median_interval=None, count=len(clipped))
-        rd.measure_gaps(h, np.asarray(to_ns(clipped["timestamp"]), dtype=np.int64), start, end,
-                        max_gap)
-        health[sensor] = h
-    for sensor, h in readings.health.items():
-        if sensor not in health:
-            health[sensor] = dataclasses.replace(h, first=None, last=None, count=0)
-            rd.measure_gaps(health[sensor], np.empty(0, np.int64), start, end, max_gap)
-    return dataclasses.replace(readings, by_sensor=by_sensor, health=health, start=start, end=end)
-
-
 def audit_result(
     site: Site,
     first: dt.date | None = None,
     last: dt.date | None = None,
     skip_bad_rows: bool = False,
     progress: Callable[[str], None] | None = None,
+    source: ReadingsSource | None = None,
 ) -> AuditResult:
     """Audit a loaded site over local dates ``first`` .. ``last`` without writing any file.
 
     The computing half of :func:`audit_site` (also used by ``schedcheck compare``); the
-    parameters are as there.
+    parameters are as there, and ``source`` the command's readings
+    (:func:`schedcheck.jobs.common.open_readings`).
     """
-    from schedcheck.jobs.common import load_readings
     from schedcheck.jobs.schedule import unit_schedules
     from schedcheck.runstate.classify import classify_unit
 
     say = progress or (lambda _msg: None)
-    if first is None or last is None:
-        say("reading all readings to find the whole days they cover")
-        everything = load_readings(site, skip_bad_rows=skip_bad_rows)
-        first, last = audit_window(site, first, last, everything)
-        start, end = day_window(first, last, site.timezone)
-        readings = clip_readings(everything, start, end, site.readings.max_gap)
-    else:
-        first, last = audit_window(site, first, last)
-        start, end = day_window(first, last, site.timezone)
-        say(f"reading readings for {first} .. {last}")
-        readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows)
+    first, last, start, end, readings = window_readings(
+        site, first, last, skip_bad_rows=skip_bad_rows, say=say, source=source)
     states: dict[str, object] = {}
     for unit in site.units:
         say(f"classifying run states of {unit.id}")
         states.update(classify_unit(unit, readings.by_sensor, start, end,
                                     site.readings.max_gap, site.run_state,
                                     level_unit=site.readings.unit))
-    load_warnings = _window_warnings(readings, start, end, site.timezone)
+    load_warnings = window_warnings(readings, start, end, site.timezone)
     say("expanding the intended schedule")
     schedules = unit_schedules(site, first, last)
     say("comparing and pricing")
-    bad = {"count": int(getattr(readings, "bad_rows_count", 0) or 0),
-           "examples": list(getattr(readings, "bad_rows_examples", []) or [])[:20]}
+    bad = {"count": int(readings.bad_rows_count),
+           "examples": list(readings.bad_rows_examples)[:20]}
     result = run_audit(
         site, states, schedules, start, end, first_date=first, last_date=last,
-        health=getattr(readings, "health", {}), bad_rows=_bad_rows(bad),
-        warnings=load_warnings + [str(w) for w in getattr(readings, "warnings", []) or []]
-        + [f"{u}: {w}" for u, s in schedules.items() for w in getattr(s, "warnings", []) or []],
+        health=readings.health, bad_rows=bad,
+        warnings=load_warnings + [str(w) for w in readings.warnings]
+        + [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings],
     )
     return result
+
+
+def window_readings(site: Site, first: dt.date | None, last: dt.date | None, *,
+                    skip_bad_rows: bool = False, say: Callable[[str], None] = lambda _m: None,
+                    source: ReadingsSource | None = None):
+    """The local dates to audit, their UTC window and the readings of it.
+
+    Missing dates come from the whole days covered by the data: then every reading is loaded
+    once and the window is cut from it (:func:`schedcheck.readings.window_clip.clip_readings`).
+
+    Returns
+    -------
+    first, last, start, end, readings
+    """
+    from schedcheck.jobs.common import load_readings
+
+    if first is None or last is None:
+        say("reading all readings to find the whole days they cover")
+        everything = load_readings(site, skip_bad_rows=skip_bad_rows, source=source)
+        first, last = audit_window(site, first, last, everything)
+        start, end = day_window(first, last, site.timezone)
+        return first, last, start, end, clip_readings(everything, start, end,
+                                                      site.readings.max_gap)
+    first, last = audit_window(site, first, last)
+    start, end = day_window(first, last, site.timezone)
+    say(f"reading readings for {first} .. {last}")
+    return first, last, start, end, load_readings(site, start, end,
+                                                  skip_bad_rows=skip_bad_rows, source=source)
 
 
 def audit_site(
@@ -177,35 +143,6 @@ def audit_site(
                          path=outdir) from None
     result.outdir = outdir
     return result
-
-
-def _window_warnings(readings, start: pd.Timestamp, end: pd.Timestamp, tz: str) -> list[str]:
-    """Say so when the audit window reaches beyond the readings."""
-    firsts = [h.first for h in readings.health.values() if h.first is not None]
-    lasts = [h.last for h in readings.health.values() if h.last is not None]
-    out = []
-    slack = pd.Timedelta("1h")   # common practice, no source: ignore edges within an hour
-    if firsts and min(firsts) - start > slack:
-        out.append(f"the window starts with {start.tz_convert(tz):%Y-%m-%d} but the first "
-                   f"reading is at {min(firsts).tz_convert(tz):%Y-%m-%d %H:%M}; the time "
-                   "before it is counted as no data")
-    if lasts and end - max(lasts) > slack:
-        out.append(f"the window ends with {last_local_date(end, tz)} but the last "
-                   f"reading is at {max(lasts).tz_convert(tz):%Y-%m-%d %H:%M}; the time "
-                   "after it is counted as no data")
-    return out
-
-
-def _bad_rows(bad) -> dict:
-    """Rejected readings rows as ``{count, examples}``."""
-    if bad is None:
-        return {"count": 0, "examples": []}
-    if isinstance(bad, dict):
-        return {"count": int(bad.get("count", 0)), "examples": list(bad.get("examples", []))}
-    if hasattr(bad, "__len__") and not isinstance(bad, str):
-        rows = list(bad.itertuples(index=False)) if hasattr(bad, "itertuples") else list(bad)
-        return {"count": len(rows), "examples": [str(r) for r in rows[:5]]}
-    return {"count": int(bad), "examples": []}
 
 
 def write_report_file(outdir: Path) -> Path:

@@ -11,10 +11,12 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
-import pandas as pd
-
 from schedcheck.errors import InputError, InputProblems
+from schedcheck.inputs.calendar_files import check_calendar_file
+from schedcheck.inputs.readings_files import read_readings
 from schedcheck.readings.cleaning import SensorHealth
+from schedcheck.readings.health import health_over_data_span
+from schedcheck.readings.spans import data_days
 from schedcheck.site import Site
 
 
@@ -54,41 +56,13 @@ def site_calendars(site: Site) -> list[Path]:
 
 
 def check_calendars(site: Site, paths: list[Path]) -> list[InputError]:
-    """Problems in the calendar files (their contents where the calendar reader is present)."""
-    try:
-        from schedcheck.inputs.calendar_files import check_calendar_file
-    except ImportError:  # pragma: no cover - the reader ships with the package
-        check_calendar_file = None
+    """Problems in the calendar files: missing ones, and every problem in their contents."""
     out: list[InputError] = []
     for p in paths:
         if not p.is_file():
             out.append(InputError("calendar file does not exist", path=p))
-        elif check_calendar_file is not None:
+        else:
             out.extend(check_calendar_file(p, site.timezone))
-    return out
-
-
-def _health_over_span(readings, max_gap) -> list[SensorHealth]:
-    """Health with silences measured against the span of all sensors' data, so that a sensor
-    that starts late or stops early shows it as a gap."""
-    import dataclasses
-
-    import numpy as np
-
-    from schedcheck.readings.cleaning import measure_gaps
-
-    firsts = [h.first for h in readings.health.values() if h.first is not None]
-    if not firsts:
-        return list(readings.health.values())
-    start = min(firsts)
-    end = max(h.last for h in readings.health.values() if h.last is not None)
-    end = end + pd.Timedelta(1, "ns")   # [start, end) holds the last reading
-    out = []
-    for sensor, h in readings.health.items():
-        ts = readings.by_sensor[sensor]["timestamp"].to_numpy("datetime64[ns]").view(np.int64)
-        h = dataclasses.replace(h)
-        measure_gaps(h, ts, start, end, max_gap)
-        out.append(h)
     return out
 
 
@@ -128,13 +102,11 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
     try:
         # read with skipping so that the health table is complete; bad rows become problems
         # below unless the user asked to skip them
-        from schedcheck.inputs.readings_files import read_readings
-
         readings = read_readings(site, skip_bad_rows=True, progress=progress)
     except InputError as e:
         report.problems.extend(_problems(e))
         return report
-    report.health = _health_over_span(readings, site.readings.max_gap)
+    report.health = health_over_data_span(readings, site.readings.max_gap)
     report.unconfigured = dict(sorted(readings.unconfigured.items()))
     report.files = readings.files
     report.bad_rows_count = readings.bad_rows_count
@@ -143,7 +115,8 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
         report.warnings.extend(readings.warnings)
     else:
         report.problems.extend(readings.bad_rows_problems)
-        report.warnings.extend(w for w in readings.warnings if not w.startswith("skipped "))
+        report.warnings.extend(w for w in readings.warnings
+                               if w is not readings.bad_rows_warning)
     if not calendar_problems:
         report.warnings.extend(_schedule_warnings(site, readings, report))
     return report
@@ -152,7 +125,6 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
 def _schedule_warnings(site: Site, readings, report: CheckReport) -> list[str]:
     """The schedule's warnings (empty or cancelled calendars, events left out, no occupied
     period) over the days the data covers, as the audit will show them."""
-    from schedcheck.jobs.common import data_days
     from schedcheck.jobs.schedule import unit_schedules
 
     try:

@@ -8,14 +8,17 @@ print. Every input problem is raised as :class:`schedcheck.errors.InputError` (o
 from __future__ import annotations
 
 import datetime as dt
+from collections.abc import Callable
 from pathlib import Path
 
 import pandas as pd
 
-from schedcheck.errors import InputError, InputProblems
+from schedcheck.errors import InputError, InputProblems, NoReadingsError
+from schedcheck.inputs.readings_files import ReadingsSource
 from schedcheck.readings.cleaning import Readings
+from schedcheck.readings.spans import data_days
 from schedcheck.site import Site, load_site
-from schedcheck.window import last_local_date, whole_days_covered
+from schedcheck.window import last_local_date
 
 
 def open_site(path: str | Path, *, require_readings: bool = True) -> Site:
@@ -26,8 +29,15 @@ def open_site(path: str | Path, *, require_readings: bool = True) -> Site:
     return load_site(path, require_readings=require_readings)
 
 
+def open_readings(site: Site) -> ReadingsSource:
+    """The site's readings files for one command (remembers a whole read for one window)."""
+    return ReadingsSource(site)
+
+
 def load_readings(site: Site, start: pd.Timestamp | None = None,
-                  end: pd.Timestamp | None = None, skip_bad_rows: bool = False) -> Readings:
+                  end: pd.Timestamp | None = None, skip_bad_rows: bool = False, *,
+                  source: ReadingsSource | None = None,
+                  progress: Callable[[str], None] | None = None) -> Readings:
     """Clean readings of the site's configured sensors in the UTC window ``[start, end)``.
 
     Parameters
@@ -39,19 +49,23 @@ def load_readings(site: Site, start: pd.Timestamp | None = None,
     skip_bad_rows : bool
         Drop malformed rows instead of failing (also on when the site file sets
         ``[readings] skip_bad_rows = true``). Dropped rows are counted in the result.
+    source : ReadingsSource, optional
+        The command's readings (:func:`open_readings`); a whole read it remembers is reused.
+    progress : callable, optional
+        Called with a short message before each file is read.
     """
-    from schedcheck.inputs.readings_files import read_readings
-
+    source = source or ReadingsSource(site)
     start = None if start is None else pd.Timestamp(start).tz_convert("UTC").as_unit("ns")
     end = None if end is None else pd.Timestamp(end).tz_convert("UTC").as_unit("ns")
     if start is not None and end is not None and end <= start:
         raise InputError(f"the window ends ({end}) before it starts ({start})")
     skip = bool(skip_bad_rows or site.readings.skip_bad_rows)
     try:
-        return read_readings(site, start, end, skip_bad_rows=skip)
+        return source.read(start, end, skip_bad_rows=skip, progress=progress)
     except InputProblems as e:
         first = e.problems[0]
-        if start is None or end is None or not getattr(first, "nothing_else", False):
+        if start is None or end is None or not (isinstance(first, NoReadingsError)
+                                                and first.nothing_else):
             raise
         # the files are fine, the asked days hold nothing: point at the dates, in local time
         d0 = start.tz_convert(site.timezone).date()
@@ -62,53 +76,14 @@ def load_readings(site: Site, start: pd.Timestamp | None = None,
             "last reading)", key="--from/--to") from None
 
 
-def data_span(readings: Readings) -> tuple[pd.Timestamp, pd.Timestamp]:
-    """First and last reading over all configured sensors (UTC)."""
-    firsts = [h.first for h in readings.health.values() if h.first is not None]
-    lasts = [h.last for h in readings.health.values() if h.last is not None]
-    if not firsts:
-        raise InputProblems([InputError("no readings for any configured sensor")])
-    return min(firsts), max(lasts)
+def data_time_range(site: Site, *, limit: bool = True,
+                    source: ReadingsSource | None = None) -> tuple[dt.date, dt.date]:
+    """The default audit window: the local dates wholly covered by the data (both inclusive;
+    :func:`schedcheck.readings.spans.data_days`).
 
-
-class DataSpanError(InputError):
-    """The readings span more days than one window may cover (often one stray time stamp)."""
-
-
-def data_days(readings: Readings, site: Site, *, limit: bool = True) -> tuple[dt.date, dt.date]:
-    """The local dates wholly covered by ``readings`` (both inclusive).
-
-    With ``limit``, a span longer than one window may be (usually one reading with a reset
-    sensor clock, years away from the rest) is a :class:`DataSpanError` that names the
-    earliest and latest readings, rather than a complaint about a --to nobody gave.
+    Bad rows are skipped here (they do not move the range); the later :func:`load_readings`
+    of the window reports them. With ``source``, the whole read is remembered there for the
+    caller's next :func:`load_readings` of its window.
     """
-    from schedcheck.schedule.calendars import MAX_WINDOW_DAYS
-
-    first, last = data_span(readings)
-    d0, d1 = whole_days_covered(first, last, site.timezone)
-    days = (d1 - d0).days + 1
-    if limit and days > MAX_WINDOW_DAYS:
-        health = readings.health
-        s0 = min((h for h in health.values() if h.first is not None), key=lambda h: h.first)
-        s1 = max((h for h in health.values() if h.last is not None), key=lambda h: h.last)
-        raise DataSpanError(
-            f"the readings span {d0} to {d1} ({days:,} days; one window covers at most "
-            f"{MAX_WINDOW_DAYS:,}): the earliest is sensor {s0.sensor} at "
-            f"{first:%Y-%m-%d %H:%M:%S}Z, the latest sensor {s1.sensor} at "
-            f"{last:%Y-%m-%d %H:%M:%S}Z; remove a stray time stamp (a reset sensor clock?) or "
-            "give --from and --to", path=site.path, key="readings.files")
-    return d0, d1
-
-
-def data_time_range(site: Site, *, limit: bool = True) -> tuple[dt.date, dt.date]:
-    """The default audit window: the local dates wholly covered by the data (both inclusive).
-
-    Data that starts within a minute after local midnight still counts the day as whole
-    (see :func:`schedcheck.window.whole_days_covered`); when no day is whole, the partial days
-    are returned. Bad rows are skipped here (they do not move the range); the later
-    :func:`load_readings` of the window reports them.
-    """
-    from schedcheck.inputs.readings_files import read_readings
-
-    # the whole read is kept for the caller's next load_readings of its window
-    return data_days(read_readings(site, skip_bad_rows=True, keep=True), site, limit=limit)
+    source = source or ReadingsSource(site)
+    return data_days(source.read(skip_bad_rows=True, keep=True), site, limit=limit)

@@ -1,7 +1,7 @@
 """The intended schedule of a site's units: open the site, read the calendars, expand.
 
 Default window: the whole local dates covered by the readings
-(:func:`schedcheck.jobs.common.data_time_range`); when the site has no readings (or they
+(:func:`schedcheck.readings.spans.data_days`); when the site has no readings (or they
 cannot be read), the current local calendar month.
 """
 
@@ -16,6 +16,7 @@ import icalendar
 
 from schedcheck.errors import InputError
 from schedcheck.inputs.calendar_files import read_checked_calendar
+from schedcheck.readings.spans import DataSpanError
 from schedcheck.schedule.intended import UnitSchedule, expand_unit_schedule
 from schedcheck.site import Site
 
@@ -80,12 +81,8 @@ def unit_schedules(site: Site, first: dt.date, last: dt.date,
 
 
 def _default_window(site: Site) -> tuple[dt.date, dt.date, str]:
-    try:
+    if site.readings.files:
         from schedcheck.jobs.common import data_time_range
-    except ImportError:  # pragma: no cover - the helper is part of the package
-        data_time_range = None
-    if data_time_range is not None and site.readings.files:
-        from schedcheck.jobs.common import DataSpanError
 
         try:
             first, last = data_time_range(site)

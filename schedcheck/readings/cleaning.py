@@ -133,6 +133,7 @@ class Readings:
     bad_rows_examples: list[str] = field(default_factory=list)   # "FILE:LINE: reason"
     bad_rows_problems: list = field(default_factory=list)   # InputError per file (if skipped)
     warnings: list[str] = field(default_factory=list)
+    bad_rows_warning: str | None = None     # the one of ``warnings`` on skipped bad rows
     start: pd.Timestamp | None = None
     end: pd.Timestamp | None = None
     files: tuple[str, ...] = ()
