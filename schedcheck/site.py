@@ -1,9 +1,8 @@
-"""The site file (TOML): loading, validation and the typed settings the rest of the code uses.
+"""The typed settings of a site (the site file's contents) that the rest of the code uses.
 
-CONTRACT (shared by every module; change only with care): the dataclasses below. The loader
-``load_site`` reads the TOML with :mod:`tomllib` (through :mod:`schedcheck.inputs.site_file`),
-validates everything, collects *every* problem and raises
-:class:`schedcheck.errors.InputProblems`.
+CONTRACT (shared by every module; change only with care): the dataclasses below. They are
+built by :func:`schedcheck.inputs.site_file.load_site`, which reads the TOML, validates
+everything, collects *every* problem and raises :class:`schedcheck.errors.InputProblems`.
 """
 
 from __future__ import annotations
@@ -155,40 +154,6 @@ class Site:
         raise KeyError(unit_id)
 
 
-# --------------------------------------------------------------------------------------------
-# Loading and validation (the rules live in schedcheck.inputs.site_file)
-# --------------------------------------------------------------------------------------------
-
+# Column names of the readings, ours (a site file's readings.columns maps them to the files')
 LEVEL_COLUMNS = ("x_rms", "y_rms", "z_rms", "x_peak", "y_peak", "z_peak")
 READING_COLUMNS = ("timestamp", "sensor") + LEVEL_COLUMNS
-
-# Speeds above 1.0 cover fans driven past design speed by a drive (up to 20 %; common
-# practice, no source).
-SPEED_RANGE = (0.0, 1.2)          # exclusive low, inclusive high [-]
-
-
-def load_site(path: str | Path, *, require_readings: bool = True) -> Site:
-    """Read and validate a site file; every problem found is reported at once.
-
-    Parameters
-    ----------
-    path : str or Path
-        The site file (TOML). Relative paths inside it are relative to its folder.
-    require_readings : bool
-        When False, readings patterns that match no file are accepted (commands that do not
-        read readings).
-
-    Returns
-    -------
-    Site
-        Typed settings; calendar paths resolved, readings patterns as written.
-
-    Raises
-    ------
-    InputProblems
-        With one :class:`~schedcheck.errors.InputError` per problem
-        (``FILE:LINE: key: what is wrong``; the line where it can be found).
-    """
-    from schedcheck.inputs.site_file import read_site_file
-
-    return read_site_file(path, require_readings=require_readings)

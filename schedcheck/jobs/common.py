@@ -13,8 +13,9 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.errors import InputError, InputProblems
+from schedcheck.inputs.site_file import load_site
 from schedcheck.readings.cleaning import Readings
-from schedcheck.site import Site, load_site
+from schedcheck.site import Site
 from schedcheck.window import last_local_date, whole_days_covered
 
 
