@@ -56,6 +56,7 @@ from schedcheck.schedule.guards import (
     as_naive,
     check_calendar,
     event_label,
+    event_summary,
     rule_dicts,
 )
 from schedcheck.window import day_window, local_midnight
@@ -86,6 +87,36 @@ _FREQ_STEP = {  # length of one step of the rule library [s] (nominal)
 _MARGIN = dt.timedelta(days=2)   # extra query span around the window: covers every UTC offset
 
 EVENT_COLUMNS = ["start", "end", "source", "uid", "open_on_holidays", "event_start", "event_end"]
+
+
+@dataclass(frozen=True, slots=True)
+class _Occurrence:
+    """One occurrence kept by the expansion: a row of :attr:`CalendarExpansion.events`."""
+
+    start: int                 # clipped to the window [ns UTC]
+    end: int                   # clipped to the window [ns UTC]
+    source: str                # the event's SUMMARY
+    uid: str
+    open_on_holidays: bool
+    event_start: int           # the occurrence before clipping [ns UTC]
+    event_end: int             # the occurrence before clipping [ns UTC]
+
+
+def _events_frame(kept: list[_Occurrence]) -> pd.DataFrame:
+    """The occurrences as the :data:`EVENT_COLUMNS` frame (instants ``datetime64[ns, UTC]``)."""
+
+    def instants(name: str) -> pd.Series:
+        return from_ns(np.asarray([getattr(o, name) for o in kept], dtype="int64"))
+
+    return pd.DataFrame({
+        "start": instants("start"),
+        "end": instants("end"),
+        "source": pd.Series([o.source for o in kept], dtype=object),
+        "uid": pd.Series([o.uid for o in kept], dtype=object),
+        "open_on_holidays": pd.Series([o.open_on_holidays for o in kept], dtype=bool),
+        "event_start": instants("event_start"),
+        "event_end": instants("event_end"),
+    })
 
 
 @dataclass
@@ -299,12 +330,7 @@ def expand_calendar(
     except Exception as exc:  # noqa: BLE001 - the library's errors name no event; ours do
         raise InputError(f"the calendar cannot be expanded: {exc}", path=path) from None
 
-    starts: list[int] = []
-    ends: list[int] = []
-    whole: list[tuple[int, int]] = []
-    sources: list[str] = []
-    uids: list[str] = []
-    opens: list[bool] = []
+    kept: list[_Occurrence] = []
     dropped: dict[tuple[str, str], list] = {}
     meta: dict[int, tuple[bool, str, str, bool]] = {}   # per source component
     free: list[tuple[str, int, int]] = []                # occurrences marked free
@@ -323,7 +349,7 @@ def expand_calendar(
                 key = id(comp)
                 if key not in meta:
                     meta[key] = (str(comp.get("STATUS", "")).upper() == "CANCELLED",
-                                 str(comp.get("SUMMARY", "")).strip() or "(no summary)",
+                                 event_summary(comp),
                                  str(comp.get("UID", "")), is_open_on_holidays(comp))
                 cancelled, summary, uid, open_on_holidays = meta[key]
                 if cancelled:
@@ -344,12 +370,9 @@ def expand_calendar(
                     continue
                 if e <= w0_ns or s >= w1_ns:
                     continue
-                starts.append(max(s, w0_ns))
-                ends.append(min(e, w1_ns))
-                whole.append((s, e))
-                sources.append(summary)
-                uids.append(uid)
-                opens.append(open_on_holidays)
+                kept.append(_Occurrence(start=max(s, w0_ns), end=min(e, w1_ns), source=summary,
+                                        uid=uid, open_on_holidays=open_on_holidays,
+                                        event_start=s, event_end=e))
                 if str(comp.get("TRANSP", "")).strip().upper() == "TRANSPARENT":
                     free.append((f"{where}{event_label(comp, override=False)}", s, e))
         except InputError:
@@ -370,13 +393,4 @@ def expand_calendar(
         n = len(when)
         at = when[0].isoformat() + (f" and {n - 1} more" if n > 1 else "")
         warnings.append(f"{label}: the occurrence at {at} {why}; left out")
-    events = pd.DataFrame({
-        "start": from_ns(np.asarray(starts, dtype="int64")),
-        "end": from_ns(np.asarray(ends, dtype="int64")),
-        "source": pd.Series(sources, dtype=object),
-        "uid": pd.Series(uids, dtype=object),
-        "open_on_holidays": pd.Series(opens, dtype=bool),
-        "event_start": from_ns(np.asarray([w[0] for w in whole], dtype="int64")),
-        "event_end": from_ns(np.asarray([w[1] for w in whole], dtype="int64")),
-    })
-    return CalendarExpansion(events=events, warnings=warnings, free=free)
+    return CalendarExpansion(events=_events_frame(kept), warnings=warnings, free=free)
