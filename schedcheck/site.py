@@ -13,8 +13,8 @@ from pathlib import Path
 
 import pandas as pd
 
-ROLES = ("supply_fan", "exhaust_fan", "return_fan", "heat_wheel", "other")
 FAN_ROLES = ("supply_fan", "exhaust_fan", "return_fan")
+ROLES = FAN_ROLES + ("heat_wheel", "other")
 
 
 @dataclass(frozen=True)
@@ -73,6 +73,8 @@ class ReadingsSettings:
     files: tuple[str, ...]                    # patterns as written, resolved against the site dir
     unit: str = "mm/s"                        # label only
     naive_time: str | None = None             # None, "local" or "utc"
+    # a longer silence between two readings is no data: five one-minute readings missed in a
+    # row (common practice, no source); at most inputs.site_rules.MAX_GAP_LIMIT
     max_gap: pd.Timedelta = pd.Timedelta("5min")
     # our name -> name in the files, or names tried in order (exports that differ per gateway)
     columns: dict[str, str | tuple[str, ...]] = field(default_factory=dict)

@@ -79,7 +79,7 @@ class SiteValidator(ValueReader):
                     run_state=run_state, findings=findings)
 
     def timezone(self, s: dict) -> str:
-        tz = self.string(s, "timezone", "site.timezone", required="site" in s or True)
+        tz = self.string(s, "timezone", "site.timezone", required=True)
         if tz is None:
             return "UTC"
         try:
@@ -109,9 +109,9 @@ class SiteValidator(ValueReader):
                     else:
                         self.err(k, f"{pat!r} matches no file (relative to "
                                  f"{self.base.resolve()})")
-        unit = self.string(r, "unit", "readings.unit", default="mm/s")
+        unit = self.string(r, "unit", "readings.unit", default=ReadingsSettings.unit)
         naive = self.string(r, "naive_time", "readings.naive_time", choices=("local", "utc"))
-        max_gap = self.duration(r, "max_gap", "readings.max_gap", pd.Timedelta("5min"), True,
+        max_gap = self.duration(r, "max_gap", "readings.max_gap", ReadingsSettings.max_gap, True,
                                 most=MAX_GAP_LIMIT)
         columns: dict[str, str | tuple[str, ...]] = {}
         cols = r.get("columns", {})
@@ -148,13 +148,13 @@ class SiteValidator(ValueReader):
             subdiv = None
         else:
             subdiv = self.string(h, "subdivision", "holidays.subdivision")
-        cats = h.get("categories", ["public"])
+        cats = h.get("categories", list(HolidaySettings.categories))
         cats = [cats] if isinstance(cats, str) else cats   # one name needs no list
         if not isinstance(cats, list) or not cats or not all(isinstance(c, str) for c in cats):
             self.err("holidays.categories", f"must be a list of names such as [\"public\"], "
                      f"not {cats!r}")
-            cats = ["public"]
-        language = self.string(h, "language", "holidays.language", default="en_US")
+            cats = list(HolidaySettings.categories)
+        language = self.string(h, "language", "holidays.language", default=HolidaySettings.language)
         if country is not None:
             self.holiday_country(country, subdiv, cats, language, "language" in h)
         elif subdiv is not None:
@@ -244,20 +244,20 @@ class SiteValidator(ValueReader):
         allowed = self.calendars(t, "allowed", f"{key}.allowed")
         early = self.duration(t, "early_start", f"{key}.early_start", most=MAX_ALLOWANCE)
         late = self.duration(t, "late_stop", f"{key}.late_stop", most=MAX_ALLOWANCE)
-        return ScheduleSettings(
-            occupied=occ if occ is not None else base.get("occupied", ()),
-            allowed=allowed if allowed is not None else base.get("allowed", ()),
-            early_start=early if early is not None else base.get("early_start", pd.Timedelta(0)),
-            late_stop=late if late is not None else base.get("late_stop", pd.Timedelta(0)),
-        )
+        given = {"occupied": occ, "allowed": allowed, "early_start": early, "late_stop": late}
+        return dataclasses.replace(ScheduleSettings(**base),
+                                   **{k: v for k, v in given.items() if v is not None})
 
     def energy(self, e: dict) -> EnergySettings:
         lo, hi = EXPONENT_RANGE
         return EnergySettings(
-            price=self.number(e, "price", "energy.price", 0.0, lo=0.0),
-            currency=self.string(e, "currency", "energy.currency", default="") or "",
-            co2_per_kwh=self.number(e, "co2_per_kwh", "energy.co2_per_kwh", 0.0, lo=0.0),
-            exponent=self.number(e, "exponent", "energy.exponent", 3.0, lo=lo, hi=hi),
+            price=self.number(e, "price", "energy.price", EnergySettings.price, lo=0.0),
+            currency=self.string(e, "currency", "energy.currency",
+                                 default=EnergySettings.currency) or "",
+            co2_per_kwh=self.number(e, "co2_per_kwh", "energy.co2_per_kwh",
+                                    EnergySettings.co2_per_kwh, lo=0.0),
+            exponent=self.number(e, "exponent", "energy.exponent", EnergySettings.exponent,
+                                 lo=lo, hi=hi),
         )
 
     def units(self, data: dict, sched_t: dict) -> tuple[Unit, ...]:

@@ -78,7 +78,7 @@ MAX_RULE_STEPS = 200_000
 its DTSTART to the end of the window [-]. The rule library walks them one by one, 5 to 11
 microseconds each (measured on the development machine with dateutil 2.9), so this bounds one
 rule to about two seconds; a daily rule may start in 1900, an hourly one about 22 years back
-(our own choice, no source)."""
+(our own choice, common practice, no source)."""
 
 _FREQ_STEP = {  # length of one step of the rule library [s] (nominal)
     "HOURLY": 3600, "DAILY": 86400, "WEEKLY": 7 * 86400, "MONTHLY": 28 * 86400,
