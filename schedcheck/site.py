@@ -100,7 +100,7 @@ class EnergySettings:
 
 @dataclass(frozen=True)
 class RunStateSettings:
-    """Optional ``[run_state]`` table: classifier settings (defaults documented in runstate.py).
+    """Optional ``[run_state]`` table: classifier settings (defaults in runstate/classify.py).
 
     The site-file validator derives the allowed keys from these fields, so adding a field here
     is enough to make a new key accepted (type-checked from its annotation).
@@ -113,7 +113,7 @@ class RunStateSettings:
 
 @dataclass(frozen=True)
 class FindingSettings:
-    """Optional ``[findings]`` table: finding rules (defaults documented in findings.py).
+    """Optional ``[findings]`` table: finding rules (defaults in findings/find.py).
 
     As for RunStateSettings, allowed keys come from these fields; None means the documented
     default. A field's ``metadata["min"]`` sets the smallest value the site file may give.
