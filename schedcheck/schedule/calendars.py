@@ -273,6 +273,34 @@ def _date_until_inclusive(cal: icalendar.Calendar) -> tuple[icalendar.Calendar, 
     return cal, notes
 
 
+def _check_rule_steps(cal: icalendar.Calendar, window_end: dt.datetime, path) -> None:
+    """Refuse a rule that would step more than :data:`MAX_RULE_STEPS` times to the window."""
+    for event in cal.walk("VEVENT"):
+        steps = _rule_steps(event, window_end)
+        if steps > MAX_RULE_STEPS:
+            raise InputError(
+                f"its RRULE would step {steps:,} times from DTSTART to the end of the window "
+                f"(at most {MAX_RULE_STEPS:,}); move DTSTART closer to the window",
+                path=path, key=event_label(event))
+
+
+def _content_warnings(cal: icalendar.Calendar, where: str,
+                      dropped: dict[tuple[str, str], list]) -> list[str]:
+    """Warnings for a calendar without (live) events and for occurrences left out."""
+    warnings = []
+    vevents = cal.walk("VEVENT")
+    if not vevents:
+        warnings.append(f"{where}the calendar holds no events (VEVENT)")
+    elif all(str(v.get("STATUS", "")).upper() == "CANCELLED" for v in vevents):
+        warnings.append(f"{where}every event of the calendar is cancelled (STATUS:CANCELLED), "
+                        "so it gives no periods")
+    for (label, why), when in dropped.items():
+        n = len(when)
+        at = when[0].isoformat() + (f" and {n - 1} more" if n > 1 else "")
+        warnings.append(f"{label}: the occurrence at {at} {why}; left out")
+    return warnings
+
+
 def expand_calendar(
     cal: icalendar.Calendar,
     tz: str,
@@ -317,13 +345,7 @@ def expand_calendar(
     w0_ns, w1_ns = int(w0.value), int(w1.value)
     q0 = dt.datetime.combine(first, dt.time()) - _MARGIN
     q1 = dt.datetime.combine(last, dt.time()) + dt.timedelta(days=1) + _MARGIN
-    for event in cal.walk("VEVENT"):
-        steps = _rule_steps(event, q1)
-        if steps > MAX_RULE_STEPS:
-            raise InputError(
-                f"its RRULE would step {steps:,} times from DTSTART to the end of the window "
-                f"(at most {MAX_RULE_STEPS:,}); move DTSTART closer to the window",
-                path=path, key=event_label(event))
+    _check_rule_steps(cal, q1, path)
     try:
         query = recurring_ical_events.of(cal)
         series_list = list(query.series)
@@ -382,15 +404,5 @@ def expand_calendar(
             raise InputError(f"cannot be expanded: {exc}", path=path,
                              key=event_label(core)) from None
     notes = notes + _vtimezone_mismatches(cal, tz, first, last)
-    warnings = [f"{where}{note}" for note in notes]
-    vevents = cal.walk("VEVENT")
-    if not vevents:
-        warnings.append(f"{where}the calendar holds no events (VEVENT)")
-    elif all(str(v.get("STATUS", "")).upper() == "CANCELLED" for v in vevents):
-        warnings.append(f"{where}every event of the calendar is cancelled (STATUS:CANCELLED), "
-                        "so it gives no periods")
-    for (label, why), when in dropped.items():
-        n = len(when)
-        at = when[0].isoformat() + (f" and {n - 1} more" if n > 1 else "")
-        warnings.append(f"{label}: the occurrence at {at} {why}; left out")
+    warnings = [f"{where}{note}" for note in notes] + _content_warnings(cal, where, dropped)
     return CalendarExpansion(events=_events_frame(kept), warnings=warnings, free=free)
