@@ -77,7 +77,7 @@ def write_inputs(folder: Path, sensors: int, days: int) -> dict[str, Path]:
 def measure(site: str, repeat: int) -> dict:
     """One format, in this process: best wall time of ``repeat`` reads and peak RSS."""
     from schedcheck.inputs.readings_files import read_readings
-    from schedcheck.site import load_site
+    from schedcheck.inputs.site_file import load_site
 
     s = load_site(site)
     best, rows = float("inf"), 0

@@ -35,7 +35,7 @@ def range_then_window(site, shared: bool) -> float:
 
 
 def main() -> int:
-    from schedcheck.site import load_site
+    from schedcheck.inputs.site_file import load_site
 
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--sensors", type=int, default=20)

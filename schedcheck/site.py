@@ -1,9 +1,8 @@
-"""The site file (TOML): loading, validation and the typed settings the rest of the code uses.
+"""The typed settings of a site (the site file's contents) that the rest of the code uses.
 
-CONTRACT (shared by every module; change only with care): the dataclasses below. The loader
-``load_site`` reads the TOML with :mod:`tomllib` (through :mod:`schedcheck.inputs.site_file`),
-validates everything, collects *every* problem and raises
-:class:`schedcheck.errors.InputProblems`.
+CONTRACT (shared by every module; change only with care): the dataclasses below. They are
+built by :func:`schedcheck.inputs.site_file.load_site`, which reads the TOML, validates
+everything, collects *every* problem and raises :class:`schedcheck.errors.InputProblems`.
 """
 
 from __future__ import annotations
@@ -14,8 +13,8 @@ from pathlib import Path
 
 import pandas as pd
 
-ROLES = ("supply_fan", "exhaust_fan", "return_fan", "heat_wheel", "other")
 FAN_ROLES = ("supply_fan", "exhaust_fan", "return_fan")
+ROLES = FAN_ROLES + ("heat_wheel", "other")
 
 
 @dataclass(frozen=True)
@@ -74,6 +73,8 @@ class ReadingsSettings:
     files: tuple[str, ...]                    # patterns as written, resolved against the site dir
     unit: str = "mm/s"                        # label only
     naive_time: str | None = None             # None, "local" or "utc"
+    # a longer silence between two readings is no data: five one-minute readings missed in a
+    # row (common practice, no source); at most inputs.site_rules.MAX_GAP_LIMIT
     max_gap: pd.Timedelta = pd.Timedelta("5min")
     # our name -> name in the files, or names tried in order (exports that differ per gateway)
     columns: dict[str, str | tuple[str, ...]] = field(default_factory=dict)
@@ -99,7 +100,7 @@ class EnergySettings:
 
 @dataclass(frozen=True)
 class RunStateSettings:
-    """Optional ``[run_state]`` table: classifier settings (defaults documented in runstate.py).
+    """Optional ``[run_state]`` table: classifier settings (defaults in runstate/classify.py).
 
     The site-file validator derives the allowed keys from these fields, so adding a field here
     is enough to make a new key accepted (type-checked from its annotation).
@@ -112,7 +113,7 @@ class RunStateSettings:
 
 @dataclass(frozen=True)
 class FindingSettings:
-    """Optional ``[findings]`` table: finding rules (defaults documented in findings.py).
+    """Optional ``[findings]`` table: finding rules (defaults in findings/find.py).
 
     As for RunStateSettings, allowed keys come from these fields; None means the documented
     default. A field's ``metadata["min"]`` sets the smallest value the site file may give.
@@ -155,40 +156,6 @@ class Site:
         raise KeyError(unit_id)
 
 
-# --------------------------------------------------------------------------------------------
-# Loading and validation (the rules live in schedcheck.inputs.site_file)
-# --------------------------------------------------------------------------------------------
-
+# Column names of the readings, ours (a site file's readings.columns maps them to the files')
 LEVEL_COLUMNS = ("x_rms", "y_rms", "z_rms", "x_peak", "y_peak", "z_peak")
 READING_COLUMNS = ("timestamp", "sensor") + LEVEL_COLUMNS
-
-# Speeds above 1.0 cover fans driven past design speed by a drive (up to 20 %; common
-# practice, no source).
-SPEED_RANGE = (0.0, 1.2)          # exclusive low, inclusive high [-]
-
-
-def load_site(path: str | Path, *, require_readings: bool = True) -> Site:
-    """Read and validate a site file; every problem found is reported at once.
-
-    Parameters
-    ----------
-    path : str or Path
-        The site file (TOML). Relative paths inside it are relative to its folder.
-    require_readings : bool
-        When False, readings patterns that match no file are accepted (commands that do not
-        read readings).
-
-    Returns
-    -------
-    Site
-        Typed settings; calendar paths resolved, readings patterns as written.
-
-    Raises
-    ------
-    InputProblems
-        With one :class:`~schedcheck.errors.InputError` per problem
-        (``FILE:LINE: key: what is wrong``; the line where it can be found).
-    """
-    from schedcheck.inputs.site_file import read_site_file
-
-    return read_site_file(path, require_readings=require_readings)

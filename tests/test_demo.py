@@ -194,7 +194,7 @@ def test_demo_writes_every_file(written):
 
 
 def test_site_file_loads_and_calendars_are_valid(written):
-    from schedcheck.site import load_site
+    from schedcheck.inputs.site_file import load_site
 
     s = load_site(written.site_file)
     assert s.timezone == TZ and len(s.units) == 5 and len(s.components) == len(MACHINES)

@@ -528,8 +528,8 @@ def test_clock_on_standard_time_all_year_is_one_finding_from_spring_to_autumn():
 def demo_findings(tmp_path_factory):
     demo_mod = pytest.importorskip("schedcheck.demo.build")   # the demo generator's module
     demo_files = pytest.importorskip("schedcheck.outputs.demo_files")
+    from schedcheck.inputs.site_file import load_site
     from schedcheck.jobs.schedule import unit_schedules
-    from schedcheck.site import load_site
 
     demo = demo_mod.build_demo()
     folder = tmp_path_factory.mktemp("demo")

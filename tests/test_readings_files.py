@@ -12,8 +12,8 @@ import pytest
 
 from schedcheck.errors import InputError, InputProblems
 from schedcheck.inputs import readings_files as rf
+from schedcheck.inputs.site_file import load_site
 from schedcheck.jobs.common import data_time_range, load_readings
-from schedcheck.site import load_site
 
 
 @pytest.fixture(autouse=True)

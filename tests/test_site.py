@@ -7,7 +7,7 @@ import pandas as pd
 import pytest
 
 from schedcheck.errors import InputProblems
-from schedcheck.site import load_site
+from schedcheck.inputs.site_file import load_site
 
 BASE = """\
 [site]
@@ -433,7 +433,7 @@ def test_the_site_file_reference_names_every_key():
     import dataclasses
 
     from schedcheck import site as s
-    from schedcheck.inputs import site_file as sf
+    from schedcheck.inputs import site_rules as sf
 
     doc = (Path(__file__).resolve().parents[1] / "docs" / "site-file.md").read_text()
     keys = [*sf._SITE, *sf._READINGS, *sf._HOLIDAYS, *sf._SCHEDULE, *sf._ENERGY, *sf._UNIT,

@@ -14,7 +14,8 @@ from pathlib import Path
 import icalendar
 
 from schedcheck.errors import InputError, InputProblems
-from schedcheck.schedule.calendars import check_calendar, expand_calendar
+from schedcheck.schedule.calendars import expand_calendar
+from schedcheck.schedule.guards import check_calendar
 
 _UID_LINE = re.compile(r"^UID[;:](?:.*:)?(.*)$", re.IGNORECASE)
 

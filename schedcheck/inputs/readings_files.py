@@ -17,8 +17,8 @@ import numpy as np
 import pandas as pd
 
 from schedcheck.errors import InputError, InputProblems, NoReadingsError
+from schedcheck.inputs.file_patterns import resolve_patterns
 from schedcheck.inputs.readings_rows import Collector
-from schedcheck.inputs.site_file import resolve_patterns
 from schedcheck.readings import cleaning as rd
 from schedcheck.site import LEVEL_COLUMNS, Site
 

@@ -85,7 +85,7 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
     CheckReport
         ``problems`` is empty when every input is usable.
     """
-    from schedcheck.site import load_site
+    from schedcheck.inputs.site_file import load_site
 
     report = CheckReport(path=Path(path))
     try:

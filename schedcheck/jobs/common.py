@@ -15,9 +15,10 @@ import pandas as pd
 
 from schedcheck.errors import InputError, InputProblems, NoReadingsError
 from schedcheck.inputs.readings_files import ReadingsSource
+from schedcheck.inputs.site_file import load_site
 from schedcheck.readings.cleaning import Readings
 from schedcheck.readings.spans import data_days
-from schedcheck.site import Site, load_site
+from schedcheck.site import Site
 from schedcheck.window import last_local_date
 
 

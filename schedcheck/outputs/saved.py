@@ -140,10 +140,23 @@ def read_saved_audit(outdir: str | Path) -> SavedAudit:
                       schedule=frames["schedule.csv"])
 
 
-
-
 def read_summary(path: Path) -> dict:
     """Read and check ``summary.json`` (the fields the report relies on)."""
+    data = _load_json(path)
+    _check_schema(data, path)
+    _check_sections(data, path)
+    _check_site(data["site"], path)
+    _check_period(data["period"], path)
+    _check_hours(data["components"], path)
+    for i, comp in enumerate(data["components"]):
+        _check_nested(comp, path, f"components[{i}]")
+    _check_lists(data, path)
+    _check_days_off(data.get("days_off") or [], path)
+    return data
+
+
+def _load_json(path: Path) -> dict:
+    """The parsed file: present, UTF-8, valid JSON and one object."""
     if not path.is_file():
         raise InputError("missing; this folder holds no complete audit output", path=path)
     try:
@@ -155,15 +168,26 @@ def read_summary(path: Path) -> dict:
                          line=e.lineno) from None
     if not isinstance(data, dict):
         raise InputError("must hold a JSON object", path=path)
+    return data
+
+
+def _check_schema(data: dict, path: Path) -> None:
+    """The layout number is this version's: another layout would be drawn wrong without a word."""
     if data.get("schema") != SCHEMA:
-        # another layout (a later version's) would be drawn wrong without a word
         raise InputError(f"{data.get('schema')!r} is not a layout this version reads ({SCHEMA}); "
                          "audit the site again with this version", path=path, key="schema")
+
+
+def _check_sections(data: dict, path: Path) -> None:
+    """``site`` and ``period`` are objects, ``components`` a list."""
     for key, kind in (("site", dict), ("period", dict), ("components", list)):
         if not isinstance(data.get(key), kind):
             raise InputError(f"missing or not a{'n object' if kind is dict else ' list'}",
                              path=path, key=key)
-    site = data["site"]
+
+
+def _check_site(site: dict, path: Path) -> None:
+    """The site's name and an IANA time zone."""
     for key in ("name", "timezone"):
         if not isinstance(site.get(key), str):
             raise InputError("missing or not text", path=path, key=f"site.{key}")
@@ -172,23 +196,31 @@ def read_summary(path: Path) -> dict:
     except (zoneinfo.ZoneInfoNotFoundError, ValueError):
         raise InputError(f"{site['timezone']!r} is not an IANA time zone", path=path,
                          key="site.timezone") from None
+
+
+def _check_period(period: dict, path: Path) -> None:
+    """Start and end instants with an offset; first and last dates, where given, are dates."""
     for key in ("start", "end"):
         try:
-            ts = pd.Timestamp(data["period"].get(key))
+            ts = pd.Timestamp(period.get(key))
             if ts is pd.NaT or ts.tzinfo is None:
                 raise ValueError
         except (ValueError, TypeError):
             raise InputError("missing or not an ISO 8601 instant with an offset", path=path,
                              key=f"period.{key}") from None
     for key in ("first_date", "last_date"):
-        value = data["period"].get(key)
+        value = period.get(key)
         if value is not None:
             try:
                 dt.date.fromisoformat(str(value))
             except ValueError:
                 raise InputError(f"{value!r} is not a date (YYYY-MM-DD)", path=path,
                                  key=f"period.{key}") from None
-    for i, comp in enumerate(data["components"]):
+
+
+def _check_hours(components: list, path: Path) -> None:
+    """Every component has an id, and its hour figures are numbers."""
+    for i, comp in enumerate(components):
         if not isinstance(comp, dict) or not isinstance(comp.get("id"), str):
             raise InputError("each component needs an id", path=path, key=f"components[{i}].id")
         if not isinstance(comp.get("hours", {}), dict):
@@ -197,8 +229,10 @@ def read_summary(path: Path) -> dict:
             if not _is_number(value):
                 raise InputError(f"{value!r} is not a number", path=path,
                                  key=f"components[{i}].hours.{hkey}")
-    for i, comp in enumerate(data["components"]):
-        _check_nested(comp, path, f"components[{i}]")
+
+
+def _check_lists(data: dict, path: Path) -> None:
+    """The optional lists are lists, and those of records hold objects."""
     for key in ("findings", "sensors", "days_off", "units", "warnings"):
         if key in data and not isinstance(data[key], list):
             raise InputError("must be a list", path=path, key=key)
@@ -206,13 +240,16 @@ def read_summary(path: Path) -> dict:
         for i, row in enumerate(data.get(key) or []):
             if not isinstance(row, dict):
                 raise InputError("must be an object", path=path, key=f"{key}[{i}]")
-    for i, row in enumerate(data.get("days_off") or []):
+
+
+def _check_days_off(days_off: list, path: Path) -> None:
+    """Each day off has a date."""
+    for i, row in enumerate(days_off):
         try:
             dt.date.fromisoformat(str(row.get("date")))
         except ValueError:
             raise InputError(f"{row.get('date')!r} is not a date (YYYY-MM-DD)", path=path,
                              key=f"days_off[{i}].date") from None
-    return data
 
 
 def _check_nested(comp: dict, path: Path, where: str) -> None:
@@ -226,33 +263,39 @@ def _check_nested(comp: dict, path: Path, where: str) -> None:
             raise InputError(f"{value!r} is not a number", path=path,
                              key=f"{where}.energy.{ekey}")
     th = comp.get("threshold") or {}
+    _check_levels(th, path, f"{where}.threshold")
+    if th.get("histogram") is not None:
+        _check_histogram(th["histogram"], path, f"{where}.threshold.histogram")
+
+
+def _check_levels(th: dict, path: Path, where: str) -> None:
+    """The threshold's figures are numbers, and its levels reading levels."""
     for tkey in ("level", "on_level", "off_level", "floor", "separation", "effectiveness"):
         if th.get(tkey) is not None and not _is_number(th[tkey]):
-            raise InputError(f"{th[tkey]!r} is not a number", path=path,
-                             key=f"{where}.threshold.{tkey}")
+            raise InputError(f"{th[tkey]!r} is not a number", path=path, key=f"{where}.{tkey}")
     for tkey in ("level", "on_level", "off_level", "floor"):
         if th.get(tkey) is not None and not 0 <= th[tkey] <= 1e100:
             raise InputError(f"{th[tkey]!r} is not a reading level (0 to 1e100)", path=path,
-                             key=f"{where}.threshold.{tkey}")
-    hist = th.get("histogram")
-    if hist is None:
-        return
+                             key=f"{where}.{tkey}")
+
+
+def _check_histogram(hist, path: Path, where: str) -> None:
+    """An object of log10 edges and counts, one more edge than counts."""
     if not isinstance(hist, dict):
-        raise InputError("must be an object", path=path, key=f"{where}.threshold.histogram")
+        raise InputError("must be an object", path=path, key=where)
     for hkey in ("edges", "counts"):
         values = hist.get(hkey)
         if values is not None and not (isinstance(values, list)
                                        and all(_is_number(v) for v in values)):
-            raise InputError("must be a list of numbers", path=path,
-                             key=f"{where}.threshold.histogram.{hkey}")
+            raise InputError("must be a list of numbers", path=path, key=f"{where}.{hkey}")
     edges, counts = hist.get("edges") or [], hist.get("counts") or []
     if any(e is not None and abs(e) > 100 for e in edges):
         # log10 of a level: beyond +-100 is no reading, and 10**e overflows when drawn
         raise InputError("edges are log10 levels; one is beyond -100..100", path=path,
-                         key=f"{where}.threshold.histogram.edges")
+                         key=f"{where}.edges")
     if edges and counts and len(edges) != len(counts) + 1:
         raise InputError(f"has {len(edges)} edges for {len(counts)} counts (one more edge than "
-                         "counts expected)", path=path, key=f"{where}.threshold.histogram")
+                         "counts expected)", path=path, key=where)
 
 
 def _is_number(value: object) -> bool:
@@ -267,16 +310,7 @@ def read_csv_file(path: Path) -> pd.DataFrame:
     :class:`datetime.date`. Raises :class:`InputError` naming file, line and column.
     """
     required, instants, numbers, blank_ok = _CSV_SPECS[path.name]
-    if not path.is_file():
-        raise InputError("missing; this folder holds no complete audit output", path=path)
-    try:
-        df = pd.read_csv(path, dtype=str, keep_default_na=False, encoding="utf-8")
-    except UnicodeDecodeError:
-        raise InputError("is not UTF-8 text", path=path) from None
-    except pd.errors.EmptyDataError:
-        raise InputError("is empty; expected a header line", path=path, line=1) from None
-    except pd.errors.ParserError as e:
-        raise InputError(f"is not valid CSV ({' '.join(str(e).split())})", path=path) from None
+    df = _load_csv(path)
     missing = [c for c in required if c not in df.columns]
     if missing:
         raise InputError(f"header lacks column(s) {', '.join(missing)}", path=path, line=1)
@@ -298,6 +332,20 @@ def read_csv_file(path: Path) -> pd.DataFrame:
             raise InputError("end is before start", path=path, line=int(bad.argmax()) + 2,
                              key="end")
     return df
+
+
+def _load_csv(path: Path) -> pd.DataFrame:
+    """The file as text columns: present, UTF-8, valid CSV with a header line."""
+    if not path.is_file():
+        raise InputError("missing; this folder holds no complete audit output", path=path)
+    try:
+        return pd.read_csv(path, dtype=str, keep_default_na=False, encoding="utf-8")
+    except UnicodeDecodeError:
+        raise InputError("is not UTF-8 text", path=path) from None
+    except pd.errors.EmptyDataError:
+        raise InputError("is empty; expected a header line", path=path, line=1) from None
+    except pd.errors.ParserError as e:
+        raise InputError(f"is not valid CSV ({' '.join(str(e).split())})", path=path) from None
 
 
 def _parse_instants(col: pd.Series, path: Path, name: str, *, blank_ok: bool) -> pd.Series:

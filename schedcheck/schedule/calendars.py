@@ -56,6 +56,7 @@ from schedcheck.schedule.guards import (
     as_naive,
     check_calendar,
     event_label,
+    event_summary,
     rule_dicts,
 )
 from schedcheck.window import day_window, local_midnight
@@ -77,7 +78,7 @@ MAX_RULE_STEPS = 200_000
 its DTSTART to the end of the window [-]. The rule library walks them one by one, 5 to 11
 microseconds each (measured on the development machine with dateutil 2.9), so this bounds one
 rule to about two seconds; a daily rule may start in 1900, an hourly one about 22 years back
-(our own choice, no source)."""
+(our own choice, common practice, no source)."""
 
 _FREQ_STEP = {  # length of one step of the rule library [s] (nominal)
     "HOURLY": 3600, "DAILY": 86400, "WEEKLY": 7 * 86400, "MONTHLY": 28 * 86400,
@@ -86,6 +87,36 @@ _FREQ_STEP = {  # length of one step of the rule library [s] (nominal)
 _MARGIN = dt.timedelta(days=2)   # extra query span around the window: covers every UTC offset
 
 EVENT_COLUMNS = ["start", "end", "source", "uid", "open_on_holidays", "event_start", "event_end"]
+
+
+@dataclass(frozen=True, slots=True)
+class _Occurrence:
+    """One occurrence kept by the expansion: a row of :attr:`CalendarExpansion.events`."""
+
+    start: int                 # clipped to the window [ns UTC]
+    end: int                   # clipped to the window [ns UTC]
+    source: str                # the event's SUMMARY
+    uid: str
+    open_on_holidays: bool
+    event_start: int           # the occurrence before clipping [ns UTC]
+    event_end: int             # the occurrence before clipping [ns UTC]
+
+
+def _events_frame(kept: list[_Occurrence]) -> pd.DataFrame:
+    """The occurrences as the :data:`EVENT_COLUMNS` frame (instants ``datetime64[ns, UTC]``)."""
+
+    def instants(name: str) -> pd.Series:
+        return from_ns(np.asarray([getattr(o, name) for o in kept], dtype="int64"))
+
+    return pd.DataFrame({
+        "start": instants("start"),
+        "end": instants("end"),
+        "source": pd.Series([o.source for o in kept], dtype=object),
+        "uid": pd.Series([o.uid for o in kept], dtype=object),
+        "open_on_holidays": pd.Series([o.open_on_holidays for o in kept], dtype=bool),
+        "event_start": instants("event_start"),
+        "event_end": instants("event_end"),
+    })
 
 
 @dataclass
@@ -242,6 +273,34 @@ def _date_until_inclusive(cal: icalendar.Calendar) -> tuple[icalendar.Calendar, 
     return cal, notes
 
 
+def _check_rule_steps(cal: icalendar.Calendar, window_end: dt.datetime, path) -> None:
+    """Refuse a rule that would step more than :data:`MAX_RULE_STEPS` times to the window."""
+    for event in cal.walk("VEVENT"):
+        steps = _rule_steps(event, window_end)
+        if steps > MAX_RULE_STEPS:
+            raise InputError(
+                f"its RRULE would step {steps:,} times from DTSTART to the end of the window "
+                f"(at most {MAX_RULE_STEPS:,}); move DTSTART closer to the window",
+                path=path, key=event_label(event))
+
+
+def _content_warnings(cal: icalendar.Calendar, where: str,
+                      dropped: dict[tuple[str, str], list]) -> list[str]:
+    """Warnings for a calendar without (live) events and for occurrences left out."""
+    warnings = []
+    vevents = cal.walk("VEVENT")
+    if not vevents:
+        warnings.append(f"{where}the calendar holds no events (VEVENT)")
+    elif all(str(v.get("STATUS", "")).upper() == "CANCELLED" for v in vevents):
+        warnings.append(f"{where}every event of the calendar is cancelled (STATUS:CANCELLED), "
+                        "so it gives no periods")
+    for (label, why), when in dropped.items():
+        n = len(when)
+        at = when[0].isoformat() + (f" and {n - 1} more" if n > 1 else "")
+        warnings.append(f"{label}: the occurrence at {at} {why}; left out")
+    return warnings
+
+
 def expand_calendar(
     cal: icalendar.Calendar,
     tz: str,
@@ -286,25 +345,14 @@ def expand_calendar(
     w0_ns, w1_ns = int(w0.value), int(w1.value)
     q0 = dt.datetime.combine(first, dt.time()) - _MARGIN
     q1 = dt.datetime.combine(last, dt.time()) + dt.timedelta(days=1) + _MARGIN
-    for event in cal.walk("VEVENT"):
-        steps = _rule_steps(event, q1)
-        if steps > MAX_RULE_STEPS:
-            raise InputError(
-                f"its RRULE would step {steps:,} times from DTSTART to the end of the window "
-                f"(at most {MAX_RULE_STEPS:,}); move DTSTART closer to the window",
-                path=path, key=event_label(event))
+    _check_rule_steps(cal, q1, path)
     try:
         query = recurring_ical_events.of(cal)
         series_list = list(query.series)
     except Exception as exc:  # noqa: BLE001 - the library's errors name no event; ours do
         raise InputError(f"the calendar cannot be expanded: {exc}", path=path) from None
 
-    starts: list[int] = []
-    ends: list[int] = []
-    whole: list[tuple[int, int]] = []
-    sources: list[str] = []
-    uids: list[str] = []
-    opens: list[bool] = []
+    kept: list[_Occurrence] = []
     dropped: dict[tuple[str, str], list] = {}
     meta: dict[int, tuple[bool, str, str, bool]] = {}   # per source component
     free: list[tuple[str, int, int]] = []                # occurrences marked free
@@ -323,7 +371,7 @@ def expand_calendar(
                 key = id(comp)
                 if key not in meta:
                     meta[key] = (str(comp.get("STATUS", "")).upper() == "CANCELLED",
-                                 str(comp.get("SUMMARY", "")).strip() or "(no summary)",
+                                 event_summary(comp),
                                  str(comp.get("UID", "")), is_open_on_holidays(comp))
                 cancelled, summary, uid, open_on_holidays = meta[key]
                 if cancelled:
@@ -344,12 +392,9 @@ def expand_calendar(
                     continue
                 if e <= w0_ns or s >= w1_ns:
                     continue
-                starts.append(max(s, w0_ns))
-                ends.append(min(e, w1_ns))
-                whole.append((s, e))
-                sources.append(summary)
-                uids.append(uid)
-                opens.append(open_on_holidays)
+                kept.append(_Occurrence(start=max(s, w0_ns), end=min(e, w1_ns), source=summary,
+                                        uid=uid, open_on_holidays=open_on_holidays,
+                                        event_start=s, event_end=e))
                 if str(comp.get("TRANSP", "")).strip().upper() == "TRANSPARENT":
                     free.append((f"{where}{event_label(comp, override=False)}", s, e))
         except InputError:
@@ -359,24 +404,5 @@ def expand_calendar(
             raise InputError(f"cannot be expanded: {exc}", path=path,
                              key=event_label(core)) from None
     notes = notes + _vtimezone_mismatches(cal, tz, first, last)
-    warnings = [f"{where}{note}" for note in notes]
-    vevents = cal.walk("VEVENT")
-    if not vevents:
-        warnings.append(f"{where}the calendar holds no events (VEVENT)")
-    elif all(str(v.get("STATUS", "")).upper() == "CANCELLED" for v in vevents):
-        warnings.append(f"{where}every event of the calendar is cancelled (STATUS:CANCELLED), "
-                        "so it gives no periods")
-    for (label, why), when in dropped.items():
-        n = len(when)
-        at = when[0].isoformat() + (f" and {n - 1} more" if n > 1 else "")
-        warnings.append(f"{label}: the occurrence at {at} {why}; left out")
-    events = pd.DataFrame({
-        "start": from_ns(np.asarray(starts, dtype="int64")),
-        "end": from_ns(np.asarray(ends, dtype="int64")),
-        "source": pd.Series(sources, dtype=object),
-        "uid": pd.Series(uids, dtype=object),
-        "open_on_holidays": pd.Series(opens, dtype=bool),
-        "event_start": from_ns(np.asarray([w[0] for w in whole], dtype="int64")),
-        "event_end": from_ns(np.asarray([w[1] for w in whole], dtype="int64")),
-    })
-    return CalendarExpansion(events=events, warnings=warnings, free=free)
+    warnings = [f"{where}{note}" for note in notes] + _content_warnings(cal, where, dropped)
+    return CalendarExpansion(events=_events_frame(kept), warnings=warnings, free=free)

@@ -28,7 +28,7 @@ from schedcheck.site import HolidaySettings
 DAYS_OFF_COLUMNS = ["date", "name", "kind"]
 
 
-def pinned_language(country: str, language: str = "en_US") -> str | None:
+def pinned_language(country: str, language: str = HolidaySettings.language) -> str | None:
     """The language holiday names are given in for ``country``.
 
     ``language`` when the country's data supports it, else the country's default language
@@ -47,8 +47,8 @@ def public_holidays(
     last: dt.date,
     *,
     subdivision: str | None = None,
-    categories: tuple[str, ...] = ("public",),
-    language: str = "en_US",
+    categories: tuple[str, ...] = HolidaySettings.categories,
+    language: str = HolidaySettings.language,
     path: str | Path | None = None,
 ) -> pd.DataFrame:
     """Public holidays (observed days included) on local dates ``first..last``, inclusive.

@@ -27,12 +27,17 @@ no source)."""
 _ALLOWED_FREQ = ("HOURLY", "DAILY", "WEEKLY", "MONTHLY", "YEARLY")
 
 
+def event_summary(event: icalendar.cal.Component) -> str:
+    """The event's SUMMARY, stripped; ``(no summary)`` where it has none."""
+    return str(event.get("SUMMARY", "")).strip() or "(no summary)"
+
+
 def event_label(event: icalendar.cal.Component, *, override: bool = True) -> str:
     """``event 'SUMMARY' (UID)`` for messages; works on incomplete events.
 
     With ``override``, an event with a RECURRENCE-ID is named as the override of that date.
     """
-    summary = str(event.get("SUMMARY", "")).strip() or "(no summary)"
+    summary = event_summary(event)
     uid = str(event.get("UID", "")).strip() or "no UID"
     rid = event.get("RECURRENCE-ID")
     extra = ""

@@ -39,12 +39,10 @@ from schedcheck.intervals import Intervals, from_ns, union_all
 from schedcheck.schedule.calendars import MAX_WINDOW_DAYS, check_window, expand_calendar
 from schedcheck.schedule.daysoff import DAYS_OFF_COLUMNS
 from schedcheck.schedule.daysoff import days_off as compute_days_off
-from schedcheck.schedule.kinds import SCHEDULE_KINDS
 from schedcheck.site import HolidaySettings
 from schedcheck.window import day_window, local_midnight
 
 _ZERO = pd.Timedelta(0)
-KINDS = SCHEDULE_KINDS
 INTERVAL_COLUMNS = ["start", "end", "kind", "source"]
 
 # a window of a week or more with no occupied period at all is worth a word (common practice,

@@ -1,0 +1,17 @@
+"""Readings patterns of the site file (files or globs) -> the files they match."""
+
+from __future__ import annotations
+
+import glob
+from pathlib import Path
+
+
+def resolve_patterns(base_dir: Path, patterns: tuple[str, ...]) -> list[tuple[str, list[Path]]]:
+    """Expand readings patterns (files or globs, relative to ``base_dir``) into sorted files."""
+    out = []
+    for pat in patterns:
+        p = Path(pat).expanduser()
+        full = p if p.is_absolute() else base_dir / p
+        hits = sorted(Path(h) for h in glob.glob(str(full), recursive=True))
+        out.append((pat, [h for h in hits if h.is_file()]))
+    return out

@@ -1,0 +1,37 @@
+"""What the site file accepts: the keys of each table and the ranges of its values.
+
+The validator (:mod:`schedcheck.inputs.site_sections`) and the reference test of
+docs/site-file.md read these; the affinity-law exponent's range is
+:data:`schedcheck.audit.energy.EXPONENT_RANGE`, shared with the energy model.
+"""
+
+from __future__ import annotations
+
+import pandas as pd
+
+# keys of each table, in the order the reference (docs/site-file.md) lists them
+_TOP = ("site", "readings", "holidays", "schedule", "energy", "unit", "run_state", "findings")
+_SITE = ("name", "timezone")
+_READINGS = ("files", "unit", "naive_time", "max_gap", "columns", "skip_bad_rows")
+_HOLIDAYS = ("country", "subdivision", "categories", "closed", "language")
+_SCHEDULE = ("occupied", "allowed", "early_start", "late_stop")
+_ENERGY = ("price", "currency", "co2_per_kwh", "exponent")
+_UNIT = ("id", "name", "schedule", "component")
+_COMPONENT = ("id", "role", "sensor", "power_kw", "speed", "threshold")
+
+# Speeds above 1.0 cover fans driven past design speed by a drive (up to 20 %; common
+# practice, no source).
+SPEED_RANGE = (0.0, 1.2)          # exclusive low, inclusive high [-]
+
+# An allowance is hours around an occupied period; one of days overlaps the next day's (and
+# one of centuries overflowed the clock). At most a day (common practice, no source).
+MAX_ALLOWANCE = pd.Timedelta("1D")
+
+# readings.max_gap at most a day: a longer bridge would count a dead sensor's days as running
+# or off instead of no data (common practice, no source)
+MAX_GAP_LIMIT = pd.Timedelta("24h")
+
+# Upper bounds that keep the arithmetic finite (common practice, no source: fan motors stay far
+# below 100 MW, and no vibration reading unit reaches a million).
+MAX_POWER_KW = 100_000.0          # [kW]
+MAX_THRESHOLD = 1e6               # [reading unit]

@@ -1,0 +1,362 @@
+"""The site file's sections: [site], [readings], [holidays], [schedule], [energy], [[unit]],
+[[unit.component]] and the tables derived from settings dataclasses ([run_state], [findings]).
+
+Keys in error messages: dotted TOML keys (``readings.max_gap``, ``holidays.closed[2]``); units
+and components are named by id where the id is known (``unit[AHU-1].component[supply].power_kw``)
+and by 1-based position otherwise (``unit[#2].component[#1].id``).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import datetime as dt
+import typing
+import zoneinfo
+from pathlib import Path
+
+import pandas as pd
+
+from schedcheck.audit.energy import EXPONENT_RANGE
+from schedcheck.inputs.file_patterns import resolve_patterns
+from schedcheck.inputs.site_rules import (
+    _COMPONENT,
+    _ENERGY,
+    _HOLIDAYS,
+    _READINGS,
+    _SCHEDULE,
+    _SITE,
+    _TOP,
+    _UNIT,
+    MAX_ALLOWANCE,
+    MAX_GAP_LIMIT,
+    MAX_POWER_KW,
+    MAX_THRESHOLD,
+    SPEED_RANGE,
+)
+from schedcheck.inputs.site_values import ValueReader, hint
+from schedcheck.site import (
+    READING_COLUMNS,
+    ROLES,
+    Component,
+    EnergySettings,
+    FindingSettings,
+    HolidaySettings,
+    ReadingsSettings,
+    RunStateSettings,
+    ScheduleSettings,
+    Site,
+    Unit,
+)
+
+
+class SiteValidator(ValueReader):
+    """Walks the parsed TOML section by section, collecting every problem."""
+
+    def __init__(self, path: Path, text: str | None = None, *,
+                 require_readings: bool = True) -> None:
+        super().__init__(path, text)
+        self.require_readings = require_readings
+        self.base = path.parent
+
+    # -- tables --------------------------------------------------------------------------------
+    def site(self, data: dict) -> Site | None:
+        self.unknown(data, "", _TOP)
+        s = self.table(data, "site", "site", _SITE, required=True)
+        name = self.string(s, "name", "site.name", default=self.base.name or self.path.stem)
+        tz = self.timezone(s)
+        readings = self.readings(self.table(data, "readings", "readings", _READINGS, True))
+        hol = self.holidays(self.table(data, "holidays", "holidays", _HOLIDAYS))
+        sched_t = self.table(data, "schedule", "schedule", _SCHEDULE)
+        default_sched = self.schedule(sched_t, {}, "schedule")
+        energy = self.energy(self.table(data, "energy", "energy", _ENERGY))
+        units = self.units(data, sched_t)
+        run_state = self.derived(data, "run_state", RunStateSettings)
+        findings = self.derived(data, "findings", FindingSettings)
+        if self.problems:
+            return None
+        return Site(name=name, timezone=tz, path=self.path, readings=readings, holidays=hol,
+                    schedule=default_sched, energy=energy, units=units,
+                    run_state=run_state, findings=findings)
+
+    def timezone(self, s: dict) -> str:
+        tz = self.string(s, "timezone", "site.timezone", required=True)
+        if tz is None:
+            return "UTC"
+        try:
+            zoneinfo.ZoneInfo(tz)
+        except (zoneinfo.ZoneInfoNotFoundError, ValueError, OSError):
+            names = sorted(zoneinfo.available_timezones())
+            self.err("site.timezone", f"{tz!r} is not an IANA time zone name (such as "
+                     f"'Europe/Oslo')" + hint(tz, names).replace("; allowed:", "; e.g.")[:120])
+        return tz
+
+    def readings(self, r: dict) -> ReadingsSettings:
+        key = "readings.files"
+        files = self.strings(r, "files", key)
+        if "files" not in r:
+            self.err(key, "missing (required): the readings files or glob patterns")
+        if files is not None:
+            if not files:
+                self.err(key, "is empty: give at least one file or glob pattern")
+            for i, (pat, hits) in enumerate(resolve_patterns(self.base, tuple(files)), 1):
+                if not hits and self.require_readings:
+                    k = key if len(files) == 1 else f"{key}[{i}]"
+                    where = Path(pat).expanduser()
+                    where = where if where.is_absolute() else self.base / where
+                    if where.is_dir():
+                        self.err(k, f"{pat!r} is a folder; name the files in it, e.g. "
+                                 f"\"{pat.rstrip('/')}/*.csv\" or \"{pat.rstrip('/')}/*.parquet\"")
+                    else:
+                        self.err(k, f"{pat!r} matches no file (relative to "
+                                 f"{self.base.resolve()})")
+        unit = self.string(r, "unit", "readings.unit", default=ReadingsSettings.unit)
+        naive = self.string(r, "naive_time", "readings.naive_time", choices=("local", "utc"))
+        max_gap = self.duration(r, "max_gap", "readings.max_gap", ReadingsSettings.max_gap, True,
+                                most=MAX_GAP_LIMIT)
+        columns: dict[str, str | tuple[str, ...]] = {}
+        cols = r.get("columns", {})
+        if not isinstance(cols, dict):
+            self.err("readings.columns", "must be a table such as { timestamp = \"Time\" }")
+        else:
+            seen: dict[str, str] = {}
+            for ours, theirs in cols.items():
+                k = f"readings.columns.{ours}"
+                # one name, or a list of names tried in order (files from different exports)
+                names = theirs if isinstance(theirs, list) and theirs else [theirs]
+                if ours not in READING_COLUMNS:
+                    self.err(k, "unknown column" + hint(ours, READING_COLUMNS))
+                elif not all(isinstance(t, str) and t.strip() for t in names):
+                    self.err(k, "must be the column name in the file, or a list of names, not "
+                             f"{theirs!r}")
+                elif any(t in seen for t in names) or len(set(names)) < len(names):
+                    t = next((t for t in names if t in seen), None)
+                    self.err(k, f"column {t!r} is already used for {seen[t]}" if t else
+                             "a name is listed twice")
+                else:
+                    seen.update((t, ours) for t in names)
+                    columns[ours] = theirs if isinstance(theirs, str) else tuple(names)
+        skip = self.boolean(r, "skip_bad_rows", "readings.skip_bad_rows")
+        return ReadingsSettings(files=tuple(files or ()), unit=unit, naive_time=naive,
+                                max_gap=max_gap, columns=columns, skip_bad_rows=skip)
+
+    def holidays(self, h: dict) -> HolidaySettings:
+        country = self.string(h, "country", "holidays.country")
+        if isinstance(h.get("subdivision"), int) and not isinstance(h["subdivision"], bool):
+            # subdivision = 3 would lose the leading zero of "03": ask for text
+            self.err("holidays.subdivision", f"write it as text in quotes, e.g. "
+                     f"\"{h['subdivision']:0>2}\"")
+            subdiv = None
+        else:
+            subdiv = self.string(h, "subdivision", "holidays.subdivision")
+        cats = h.get("categories", list(HolidaySettings.categories))
+        cats = [cats] if isinstance(cats, str) else cats   # one name needs no list
+        if not isinstance(cats, list) or not cats or not all(isinstance(c, str) for c in cats):
+            self.err("holidays.categories", f"must be a list of names such as [\"public\"], "
+                     f"not {cats!r}")
+            cats = list(HolidaySettings.categories)
+        language = self.string(h, "language", "holidays.language", default=HolidaySettings.language)
+        if country is not None:
+            self.holiday_country(country, subdiv, cats, language, "language" in h)
+        elif subdiv is not None:
+            self.err("holidays.subdivision", "needs holidays.country")
+        closed = []
+        raw = h.get("closed", [])
+        raw = [raw] if isinstance(raw, (str, dt.date)) else raw   # one date needs no list
+        if not isinstance(raw, list):
+            self.err("holidays.closed", "must be a list of dates or ranges, e.g. "
+                     "[\"2026-12-24\", \"2026-07-13/2026-07-31\"]")
+            raw = []
+        for i, item in enumerate(raw, 1):
+            rng = self.closed_item(item, f"holidays.closed[{i}]")
+            if rng is not None:
+                closed.append(rng)
+        return HolidaySettings(country=country, subdivision=subdiv, categories=tuple(cats),
+                               closed=tuple(closed), language=language)
+
+    def holiday_country(self, country, subdiv, cats, language, language_given) -> None:
+        import holidays as hol
+
+        supported = hol.list_supported_countries(include_aliases=False)
+        if country not in supported:
+            self.err("holidays.country", f"{country!r} is not a country the holidays package "
+                     "knows (ISO 3166-1 alpha-2 code such as 'NO')" + hint(country, supported))
+            return
+        cal = hol.country_holidays(country)
+        subs = list(supported[country])
+        aliases = getattr(cal, "subdivisions_aliases", {}) or {}
+        if subdiv is not None and subdiv not in subs and subdiv not in aliases:
+            listing = ", ".join(subs[:40]) + (" ..." if len(subs) > 40 else "")
+            self.err("holidays.subdivision", f"{subdiv!r} is not a subdivision of {country}"
+                     + (f"; valid: {listing}" if subs else f"; {country} has none"))
+        for c in cats:
+            if c not in cal.supported_categories:
+                self.err("holidays.categories", f"{c!r} is not a holiday category for {country}"
+                         f"; valid: {', '.join(cal.supported_categories)}")
+        langs = cal.supported_languages or ()
+        if language_given and langs and language not in langs:
+            self.err("holidays.language", f"{language!r} is not available for {country}; "
+                     f"valid: {', '.join(langs)}")
+
+    def closed_item(self, item, key):
+        def one(x):
+            if isinstance(x, dt.date) and not isinstance(x, dt.datetime):
+                return x
+            return dt.date.fromisoformat(str(x).strip())
+
+        try:
+            if isinstance(item, str) and "/" in item:
+                a, b = item.split("/", 1)
+                first, last = one(a), one(b)
+            elif isinstance(item, (str, dt.date)) and not isinstance(item, dt.datetime):
+                first = last = one(item)
+            else:
+                raise ValueError
+        except ValueError:
+            self.err(key, f"{item!r} is not a date (\"2026-12-24\") or an inclusive range "
+                     "(\"2026-07-13/2026-07-31\")")
+            return None
+        if last < first:
+            self.err(key, f"{item!r}: the range ends before it starts")
+            return None
+        return (first, last)
+
+    def calendars(self, t: dict, name: str, key: str) -> tuple[Path, ...] | None:
+        files = self.strings(t, name, key)
+        if files is None:
+            return None
+        out = []
+        for i, f in enumerate(files, 1):
+            p = Path(f).expanduser()
+            p = (p if p.is_absolute() else self.base / p).resolve()
+            if p.is_dir():
+                k = key if len(files) == 1 else f"{key}[{i}]"
+                self.err(k, f"{f!r} is a folder; name the calendar file (.ics) in it")
+            elif not p.is_file():
+                k = key if len(files) == 1 else f"{key}[{i}]"
+                self.err(k, f"calendar file {f!r} does not exist (relative to "
+                         f"{self.base.resolve()})")
+            out.append(p)
+        return tuple(out)
+
+    def schedule(self, t: dict, base: dict, key: str) -> ScheduleSettings:
+        """Schedule from table ``t`` where given, else from ``base`` (already validated)."""
+        occ = self.calendars(t, "occupied", f"{key}.occupied")
+        allowed = self.calendars(t, "allowed", f"{key}.allowed")
+        early = self.duration(t, "early_start", f"{key}.early_start", most=MAX_ALLOWANCE)
+        late = self.duration(t, "late_stop", f"{key}.late_stop", most=MAX_ALLOWANCE)
+        given = {"occupied": occ, "allowed": allowed, "early_start": early, "late_stop": late}
+        return dataclasses.replace(ScheduleSettings(**base),
+                                   **{k: v for k, v in given.items() if v is not None})
+
+    def energy(self, e: dict) -> EnergySettings:
+        lo, hi = EXPONENT_RANGE
+        return EnergySettings(
+            price=self.number(e, "price", "energy.price", EnergySettings.price, lo=0.0),
+            currency=self.string(e, "currency", "energy.currency",
+                                 default=EnergySettings.currency) or "",
+            co2_per_kwh=self.number(e, "co2_per_kwh", "energy.co2_per_kwh",
+                                    EnergySettings.co2_per_kwh, lo=0.0),
+            exponent=self.number(e, "exponent", "energy.exponent", EnergySettings.exponent,
+                                 lo=lo, hi=hi),
+        )
+
+    def units(self, data: dict, sched_t: dict) -> tuple[Unit, ...]:
+        raw = data.get("unit")
+        if raw is None:
+            self.err("unit", "no [[unit]] in the site file: describe at least one unit")
+            return ()
+        if not isinstance(raw, list) or not all(isinstance(u, dict) for u in raw):
+            self.err("unit", "must be written as [[unit]] tables")
+            return ()
+        # the site default, validated once (its problems are reported under [schedule])
+        quiet = SiteValidator(self.path)
+        d = quiet.schedule(sched_t, {}, "schedule")
+        base = {k: getattr(d, k) for k in _SCHEDULE if k in sched_t}
+        units, unit_ids, sensors = [], set(), {}
+        for i, u in enumerate(raw, 1):
+            uid = u.get("id") if isinstance(u.get("id"), str) and u.get("id").strip() else None
+            ukey = f"unit[{uid}]" if uid else f"unit[#{i}]"
+            self.prefixes[ukey] = ("unit", i)
+            self.unknown(u, ukey, _UNIT)
+            uid = self.string(u, "id", f"{ukey}.id", required=True)
+            if uid is not None:
+                if uid in unit_ids:
+                    self.err(f"{ukey}.id", f"unit id {uid!r} is used twice")
+                unit_ids.add(uid)
+            name = self.string(u, "name", f"{ukey}.name", default=uid or "")
+            override = u.get("schedule", {})
+            if not isinstance(override, dict):
+                self.err(f"{ukey}.schedule", "must be a table such as { occupied = \"x.ics\" }")
+                override = {}
+            self.unknown(override, f"{ukey}.schedule", _SCHEDULE)
+            sched = self.schedule(override, base, f"{ukey}.schedule")
+            if not sched.occupied:
+                self.err(f"{ukey}.schedule.occupied", "no occupied calendar: set occupied in "
+                         "[schedule] or in this unit's schedule")
+            comps = self.components(u, uid or f"#{i}", ukey, sensors)
+            units.append(Unit(id=uid or "", name=name or "", schedule=sched, components=comps))
+        return tuple(units)
+
+    def components(self, u: dict, uid: str, ukey: str, sensors: dict) -> tuple[Component, ...]:
+        raw = u.get("component")
+        if not isinstance(raw, list) or not raw or not all(isinstance(c, dict) for c in raw):
+            self.err(f"{ukey}.component", "needs at least one [[unit.component]] table")
+            return ()
+        out, ids = [], set()
+        lo, hi = SPEED_RANGE
+        for j, c in enumerate(raw, 1):
+            cid = c.get("id") if isinstance(c.get("id"), str) and c.get("id").strip() else None
+            k = f"{ukey}.component[{cid}]" if cid else f"{ukey}.component[#{j}]"
+            self.prefixes[k] = self.prefixes.get(ukey, ()) + ("component", j)
+            self.unknown(c, k, _COMPONENT)
+            cid = self.string(c, "id", f"{k}.id", required=True)
+            if cid is not None:
+                if cid in ids:
+                    self.err(f"{k}.id", f"component id {cid!r} is used twice in unit {uid}")
+                ids.add(cid)
+            role = self.string(c, "role", f"{k}.role", required=True, choices=ROLES)
+            sensor = self.string(c, "sensor", f"{k}.sensor", required=True)
+            if sensor is not None:
+                if sensor in sensors:
+                    self.err(f"{k}.sensor", f"sensor {sensor!r} is already mapped to "
+                             f"{sensors[sensor]}; one sensor watches one component")
+                else:
+                    sensors[sensor] = f"{uid}/{cid}"
+            power = self.number(c, "power_kw", f"{k}.power_kw", required=True, lo=0.0,
+                                lo_open=True, hi=MAX_POWER_KW)
+            speed = self.number(c, "speed", f"{k}.speed", required=True, lo=lo, hi=hi,
+                                lo_open=True)
+            thr = self.number(c, "threshold", f"{k}.threshold", lo=0.0, lo_open=True,
+                              hi=MAX_THRESHOLD)
+            out.append(Component(id=cid or "", unit=uid, role=role or "other",
+                                 sensor=sensor or "", power_kw=power or 0.0,
+                                 speed=speed or 0.0, threshold=thr))
+        return tuple(out)
+
+    def derived(self, data: dict, name: str, cls):
+        """A table whose keys and types come from the fields of dataclass ``cls``."""
+        hints = typing.get_type_hints(cls)
+        fields = [f.name for f in dataclasses.fields(cls)]
+        lows = {f.name: f.metadata.get("min", 0) for f in dataclasses.fields(cls)}
+        t = self.table(data, name, name, fields)
+        values = {}
+        for f in fields:
+            if f not in t:
+                continue
+            kinds = [a for a in typing.get_args(hints[f]) if a is not type(None)] or [hints[f]]
+            kind, key = kinds[0], f"{name}.{f}"
+            if kind is pd.Timedelta:
+                val = self.duration(t, f, key)
+            elif kind is bool:
+                val = self.boolean(t, f, key, None)
+            elif kind is int:
+                val = self.number(t, f, key, lo=int(lows[f]), integer=True)
+            elif kind is float:
+                val = self.number(t, f, key, lo=float(lows[f]))
+            elif kind is str:
+                val = self.string(t, f, key)
+            else:  # pragma: no cover - a field type the validator does not know yet
+                val = t[f]
+            if val is not None:
+                values[f] = val
+        return cls(**values)
