@@ -17,6 +17,7 @@ def _mix(rng, parts):
     [(-1.5, 0.2, 300), (0.1, 0.1, 9000)],
     [(0.0, 1.0, 4000)],
 ])
+@pytest.mark.validation   # expected values from the outside source named in the comments
 def test_otsu_equals_scikit_image(seed, parts):
     # validation: scikit-image's threshold_otsu (skimage.filters, 256 bins) on the same values
     v = _mix(np.random.default_rng(seed), parts)
@@ -28,6 +29,7 @@ def test_otsu_single_value_returns_it():
     assert th.otsu_threshold(np.full(10, 0.3)) == 0.3 == threshold_otsu(np.full(10, 0.3))
 
 
+@pytest.mark.validation   # expected values from the outside source named in the comments
 def test_multi_otsu_equals_scikit_image():
     # validation: scikit-image's threshold_multiotsu(classes=3) on the same values
     v = _mix(np.random.default_rng(5), [(-1.5, 0.1, 5000), (-0.7, 0.05, 1500), (0, 0.05, 2000)])

@@ -187,7 +187,7 @@ def test_report_escapes_names(result, tmp_path):
 
 
 def test_files_read_back_by_the_report_reader(result, tmp_path):
-    saved = pytest.importorskip("schedcheck.outputs.saved")
+    from schedcheck.outputs import saved
     write_audit_files(result, tmp_path)
     back = saved.read_saved_audit(tmp_path)
     assert back.first_date == dt.date(2026, 10, 24) and back.last_date == dt.date(2026, 10, 26)

@@ -177,6 +177,7 @@ def test_night_event_across_dst_change_follows_wall_clock(tz, day, expected_h):
     assert all(e[11:16] == "06:00" for e in ends)
 
 
+@pytest.mark.validation   # expected values from the outside source named in the comments
 def test_gap_time_uses_offset_before_the_gap():
     # RFC 5545 section 3.3.5: "TZID=America/New_York:20070311T023000 indicates March 11, 2007
     # at 3:30 A.M. EDT (UTC-04:00), one hour after 1:30 A.M. EST (UTC-05:00)".
@@ -186,6 +187,7 @@ def test_gap_time_uses_offset_before_the_gap():
     assert local_spans(res, NY)[0][0] == "2007-03-11T03:30:00-04:00"
 
 
+@pytest.mark.validation   # expected values from the outside source named in the comments
 def test_fold_time_is_the_first_occurrence():
     # RFC 5545 section 3.3.5: "TZID=America/New_York:20071104T013000 indicates November 4,
     # 2007 at 1:30 A.M. EDT (UTC-04:00)".

@@ -13,12 +13,14 @@ import pytest
 from schedcheck.audit.energy import DEFAULT_EXPONENT, affinity_power, energy_kwh, price
 
 
+@pytest.mark.validation   # expected values from the outside source named in the comments
 def test_default_exponent_is_the_cube_law():
     # DOE Motor Systems Tip Sheet #11: input power "varies as the cube or third power of the
     # speed ratio" for centrifugal fans with no static lift
     assert DEFAULT_EXPONENT == 3.0
 
 
+@pytest.mark.validation   # expected values from the outside source named in the comments
 def test_doe_tip_sheet_statement_twenty_percent_less_speed_about_half_the_power():
     # Validation against a published government fact sheet: U.S. Department of Energy,
     # Advanced Manufacturing Office, "Motor Systems Tip Sheet #11: Adjustable Speed Drive

@@ -22,6 +22,8 @@ import pytest
 from schedcheck.errors import InputError
 from schedcheck.schedule.calendars import expand_calendar
 
+pytestmark = pytest.mark.validation   # the whole module checks against RFC 5545
+
 NY = "America/New_York"
 
 

@@ -525,13 +525,13 @@ def test_clock_on_standard_time_all_year_is_one_finding_from_spring_to_autumn():
 # the generator's fault records (faults_document: what truth/faults.json holds), not from a
 # snapshot of this tool's output.
 @pytest.fixture(scope="module")
-def demo_findings(tmp_path_factory):
-    demo_mod = pytest.importorskip("schedcheck.demo.build")   # the demo generator's module
-    demo_files = pytest.importorskip("schedcheck.outputs.demo_files")
+def demo_findings(demo_site, tmp_path_factory):
+    from schedcheck.demo import build as demo_mod  # the demo generator's module
     from schedcheck.inputs.site_file import load_site
     from schedcheck.jobs.schedule import unit_schedules
+    from schedcheck.outputs import demo_files
 
-    demo = demo_mod.build_demo()
+    demo = demo_site   # built once per session (tests/conftest.py)
     folder = tmp_path_factory.mktemp("demo")
     (folder / "site.toml").write_text(demo.site_toml, encoding="utf-8")
     (folder / "calendars").mkdir()

@@ -8,11 +8,11 @@ from html.parser import HTMLParser
 
 import pandas as pd
 import pytest
-from report_fixture import write_fixture
 
 from schedcheck.cli import main
 from schedcheck.outputs.report import render_report, report_context, write_report
 from schedcheck.outputs.saved import read_saved_audit
+from tests.report_fixture import write_fixture
 
 HOSTILE_SITE = '<script>alert("site")</script> & Sons'
 HOSTILE_UNIT = "<img src=x onerror=alert(1)>"

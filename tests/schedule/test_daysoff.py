@@ -68,6 +68,7 @@ US_FEDERAL_2026_ALL = sorted(US_FEDERAL_2026 + [D(2026, 7, 4)])
     ("GB", "ENG", ENGLAND_2026),
     ("US", None, US_FEDERAL_2026),
 ])
+@pytest.mark.validation   # expected values from the outside source named in the comments
 def test_2026_public_holidays_match_official_lists_on_working_days(country, subdivision,
                                                                    expected):
     got = public_holidays(country, *YEAR, subdivision=subdivision)
@@ -80,6 +81,7 @@ def test_2026_public_holidays_match_official_lists_on_working_days(country, subd
     ("GB", "ENG", ENGLAND_2026_ALL),
     ("US", None, US_FEDERAL_2026_ALL),
 ])
+@pytest.mark.validation   # expected values from the outside source named in the comments
 def test_2026_public_holidays_match_official_lists_including_weekend_days(country, subdivision,
                                                                          expected):
     # the same sources as above; weekend days matter for a site that runs on Saturdays

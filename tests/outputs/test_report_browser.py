@@ -13,10 +13,10 @@ import os
 
 import numpy as np
 import pytest
-from chromium_cdp import Browser, chromium_path, pdf_pages, run_cli
-from report_fixture import write_fixture
 
 from schedcheck.outputs.report import write_report
+from tests.chromium_cdp import Browser, chromium_path, pdf_pages, run_cli
+from tests.report_fixture import write_fixture
 
 pytestmark = pytest.mark.browser
 
@@ -94,12 +94,11 @@ def test_print_to_pdf_flag_writes_a_document(chromium, report, tmp_path):
 
 
 @pytest.mark.slow
-def test_demo_audit_report_in_the_browser(chromium, tmp_path):
+def test_demo_audit_report_in_the_browser(chromium, demo_month, tmp_path):
     """The real pipeline: a one-month demo site, audited, its report opened and printed."""
     from schedcheck.jobs.audit import audit_site
-    from schedcheck.jobs.demo import make_demo
 
-    made = make_demo(tmp_path / "site", months=1)
+    made = demo_month   # written once per session (tests/conftest.py)
     result = audit_site(made.site_file, out=tmp_path / "audit")
     report = result.files["report.html"]
     assert report.stat().st_size < 2_000_000

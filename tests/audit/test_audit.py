@@ -21,19 +21,16 @@ TZ = "Europe/Oslo"
 MIN_H = 1 / 60
 
 
-@pytest.fixture(scope="session")
-def demo(tmp_path_factory):
-    from schedcheck.jobs.audit import audit_site
-    from schedcheck.jobs.demo import make_demo
+@pytest.fixture(scope="module")
+def demo(demo_audit):
+    """The session's demo audit (tests/conftest.py) with its output files read back."""
     from schedcheck.outputs.demo_files import read_demo_truth
 
-    folder = tmp_path_factory.mktemp("demo")
-    made = make_demo(folder / "site")
-    result = audit_site(made.site_file, out=folder / "audit")
+    result = demo_audit.result
     out = result.outdir
     return {
         "result": result,
-        "truth": read_demo_truth(folder / "site"),
+        "truth": read_demo_truth(demo_audit.folder),
         "summary": json.loads((out / "summary.json").read_text()),
         "daily": pd.read_csv(out / "daily.csv", keep_default_na=False),
         "schedule": pd.read_csv(out / "schedule.csv"),

@@ -12,7 +12,6 @@ import pandas as pd
 import pytest
 import recurring_ical_events
 from dateutil.easter import easter
-from helpers import assert_tiles_window
 
 from schedcheck.cli import main
 from schedcheck.demo import build as demo_mod
@@ -23,20 +22,21 @@ from schedcheck.intervals import Intervals, to_ns
 from schedcheck.jobs.demo import make_demo
 from schedcheck.outputs.demo_files import read_demo_truth, write_demo
 from schedcheck.window import day_window
+from tests.helpers import assert_tiles_window
 
 TZ = "Europe/Oslo"
 KINDS = {"holiday", "night", "clock_offset", "missed", "continuous"}
 
 
 @pytest.fixture(scope="module")
-def site():
-    return demo_mod.build_demo()
+def site(demo_site):
+    return demo_site   # built once per session (tests/conftest.py)
 
 
 @pytest.fixture(scope="module")
-def written(tmp_path_factory):
+def written(demo_month):
     """A one-month demo written to disk (small and quick; the truth logic is the same)."""
-    return make_demo(tmp_path_factory.mktemp("demo") / "d", months=1)
+    return demo_month   # written once per session (tests/conftest.py)
 
 
 def _runs(site, key) -> Intervals:

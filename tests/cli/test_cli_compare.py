@@ -302,13 +302,11 @@ def test_bad_options_give_one_error_line(site, capsys, args, words):
 
 
 @pytest.mark.slow
-def test_demo_controls_change_is_found_and_the_clean_unit_has_none(tmp_path, capsys):
+def test_demo_controls_change_is_found_and_the_clean_unit_has_none(demo_audit, capsys):
     # The demo plants (truth/faults.json) a "continuous" fault on AHU-4 from a controls change
     # on 2026-04-20; AHU-5 is the clean unit.
-    from schedcheck.jobs.demo import make_demo
-
-    demo = make_demo(tmp_path / "demo")
-    faults = json.loads((tmp_path / "demo" / "truth" / "faults.json").read_text())["faults"]
+    demo = demo_audit   # the session's demo site (tests/conftest.py)
+    faults = json.loads((demo.folder / "truth" / "faults.json").read_text())["faults"]
     stuck = next(f for f in faults
                  if f["kind"] == "continuous" and f["component"] == "AHU-4/supply")
     change = stuck["dates"][0]

@@ -62,6 +62,7 @@ def weekly_series(
 # --- PELT against ruptures --------------------------------------------------------------------
 
 
+@pytest.mark.validation   # expected values from the outside source named in the comments
 @pytest.mark.parametrize("seed", range(12))
 def test_pelt_matches_ruptures_l2(seed):
     # Validation: ruptures.Pelt(model="l2", jump=1) minimises the same penalised squared error
@@ -78,6 +79,7 @@ def test_pelt_matches_ruptures_l2(seed):
     assert pelt_mean_shift(y, pen, min_size=min_size) == ref
 
 
+@pytest.mark.validation   # expected values from the outside source named in the comments
 @pytest.mark.parametrize("seed", range(6))
 def test_pelt_with_day_types_matches_ruptures_linear(seed):
     # Validation: a separate mean per day type in each segment is least squares on one-hot
@@ -223,6 +225,7 @@ def daily(values, first=MONDAY) -> pd.Series:
     return pd.Series(values, index=[first + dt.timedelta(days=i) for i in range(len(values))])
 
 
+@pytest.mark.validation   # expected values from the outside source named in the comments
 def test_single_day_type_matches_scipy_welch_interval():
     rng = np.random.default_rng(11)
     b, a = rng.normal(2.0, 1.0, 20), rng.normal(5.0, 2.5, 20)

@@ -9,7 +9,7 @@ import pytest
 from schedcheck.cli import main
 from schedcheck.jobs.check import check_site
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 
 CAL = """BEGIN:VCALENDAR\r
 VERSION:2.0\r
