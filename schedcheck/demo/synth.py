@@ -29,12 +29,23 @@ The reading model (per reading, per axis)
   log-normal scatter (sigma 0.08), only while the truth says ``run``;
 * carried: ``carried_level`` (same drift, scatter sigma 0.10) while the *sibling's* truth
   (``carried``) says ``run``, whatever this component does;
+* idle: ``idle_level`` (scatter sigma 0.15) while the truth says ``off`` inside one of the
+  ``idle`` periods (vibration carried from machines outside the unit, or an idle state): a low
+  group of readings while the component is stopped;
+* ``level_factor``: a slow change of the running (and carried) level, linear between the given
+  instants (a filter loading up, a belt wearing, a sensor re-mounted; a jump back is two
+  instants close together);
 * all scatters are multiplied by ``scatter`` (0 gives noise-free levels for exact-recovery
   tests);
 * the three add in quadrature (independent sources) and are split over the axes by fixed
-  per-sensor weights; peaks are the RMS times a crest factor of about 1.5 (common practice,
+  per-sensor weights (with ``noise_per_axis`` the background is ``noise_floor`` on *each* axis,
+  as a MEMS sensor's own noise is, so the stopped magnitude is about sqrt(axes) times it);
+  peaks are the RMS times a crest factor of about 1.5 (common practice,
   no source: about sqrt(2) for a sine, more with impacts), times ``transient_factor`` during
   the first two minutes after each start.
+
+With ``resolution`` every RMS and peak value is rounded to whole multiples of it (a sensor
+reporting in whole mg), never below one step.
 
 Readings are due at ``start + k * period``. Their times get uniform jitter of up to
 +-``jitter`` (in whole seconds when ``jitter`` is a second or more, as gateways stamp
@@ -170,6 +181,13 @@ def _run_set(truth: pd.DataFrame | None) -> Intervals:
     return Intervals.from_frame(truth[truth["state"] == "run"])
 
 
+def _quantised(values: np.ndarray, step: float) -> np.ndarray:
+    """Values rounded to whole multiples of ``step``, at least one step (0 = unchanged)."""
+    if step <= 0:
+        return values
+    return np.maximum(np.round(values / step), 1.0) * step
+
+
 def readings_for_component(
     truth: pd.DataFrame,
     *,
@@ -194,6 +212,11 @@ def readings_for_component(
     axes: str = "xyz",
     peaks: bool = True,
     scatter: float = 1.0,
+    noise_per_axis: bool = False,
+    resolution: float = 0.0,
+    idle_level: float = 0.0,
+    idle: Iterable[tuple] = (),
+    level_factor: pd.Series | None = None,
 ) -> pd.DataFrame:
     """Readings of one sensor on a component whose true run intervals are ``truth``.
 
@@ -206,7 +229,10 @@ def readings_for_component(
     rng : numpy.random.Generator
         The only source of randomness.
     start, end : tz-aware instants
-        Readings are due at ``start + k * period`` inside ``[start, end)``.
+        With ``resolution`` every RMS and peak value is rounded to whole multiples of it (a sensor
+reporting in whole mg), never below one step.
+
+Readings are due at ``start + k * period`` inside ``[start, end)``.
     period : str
         Nominal reading interval [duration].
     jitter : str
@@ -242,6 +268,18 @@ def readings_for_component(
     scatter : float
         Multiplies every random scatter of the levels [-]; 0 gives noise-free levels (the
         background is then exactly ``noise_floor``).
+    noise_per_axis : bool
+        ``noise_floor`` is the background of each axis (not of the magnitude).
+    resolution : float
+        Reading step: values are rounded to whole multiples of it, at least one step [reading
+        unit]; 0 = not rounded.
+    idle_level : float
+        Level of the idle group while stopped inside ``idle`` [reading unit].
+    idle : iterable of (start, end)
+        Periods in which a stopped component shows ``idle_level``.
+    level_factor : Series, optional
+        Multiplies the running and carried levels [-], indexed by UTC instants, linear in
+        between, constant before the first and after the last.
 
     Returns
     -------
@@ -273,6 +311,11 @@ def readings_for_component(
         idx, val = idx[order], np.asarray(speed.to_numpy(dtype=float))[order]
         k = np.searchsorted(idx, t, side="right") - 1
         sp = np.where(k >= 0, val[np.clip(k, 0, None)], 1.0)
+    if level_factor is not None and len(level_factor):
+        fi = to_ns(pd.DatetimeIndex(level_factor.index))
+        fo = np.argsort(fi, kind="stable")
+        drift = drift * np.interp(t.astype(float), fi[fo].astype(float),
+                                  np.asarray(level_factor.to_numpy(dtype=float))[fo])
     r_level = running_level * np.power(np.clip(sp, 0, None), speed_exponent) * drift
     r_level = np.where(running, r_level * np.exp(rng.normal(0, 0.08 * scatter, n)), 0.0)
     c_level = np.zeros(n)
@@ -280,6 +323,14 @@ def readings_for_component(
         c_run = _run_set(carried).contains(t)
         c_wobble = np.exp(rng.normal(0, 0.10 * scatter, n))
         c_level = np.where(c_run, carried_level * drift * c_wobble, 0.0)
+
+    i_level = np.zeros(n)
+    if idle_level > 0:   # drawn only when asked for: existing seeds give the same readings
+        idle_on = np.zeros(n, bool)
+        for a, b in idle:
+            idle_on |= (t >= to_ns(_utc(a))) & (t < to_ns(_utc(b)))
+        i_level = np.where(idle_on & ~running,
+                           idle_level * np.exp(rng.normal(0, 0.15 * scatter, n)), 0.0)
 
     # start transients: first TRANSIENT_TIME of every run that follows an off period
     after_start = np.zeros(n, bool)
@@ -294,12 +345,15 @@ def readings_for_component(
     weights = weights / np.sqrt((weights**2).sum())
     cols: dict[str, np.ndarray] = {}
     for i, ax in enumerate(axes):
-        bg = noise_floor / np.sqrt(len(axes)) * np.exp(rng.normal(0, 0.25 * scatter, n))
-        rms = np.sqrt((weights[i] * r_level) ** 2 + (weights[i] * c_level) ** 2 + bg**2)
-        cols[f"{ax}_rms"] = rms
+        per_axis = noise_floor if noise_per_axis else noise_floor / np.sqrt(len(axes))
+        bg = per_axis * np.exp(rng.normal(0, 0.25 * scatter, n))
+        rms = np.sqrt((weights[i] * r_level) ** 2 + (weights[i] * c_level) ** 2
+                      + (weights[i] * i_level) ** 2 + bg**2)
+        cols[f"{ax}_rms"] = _quantised(rms, resolution)
         if peaks:
             crest = CREST_FACTOR * np.exp(rng.normal(0, 0.1 * scatter, n))
-            cols[f"{ax}_peak"] = rms * crest * np.where(after_start, transient_factor, 1.0)
+            peak = rms * crest * np.where(after_start, transient_factor, 1.0)
+            cols[f"{ax}_peak"] = _quantised(peak, resolution)
 
     keep = rng.random(n) >= packet_loss
     for a, b in outages:
