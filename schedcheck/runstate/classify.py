@@ -46,6 +46,7 @@ import pandas as pd
 
 from schedcheck.errors import InputError
 from schedcheck.intervals import to_ns
+from schedcheck.runstate import lowgroups, sensor
 from schedcheck.runstate import thresholds as th
 from schedcheck.runstate.onofflevel import (  # noqa: F401 - re-exported: the classifier's public names
     CARRIED_SHARE,
@@ -292,11 +293,41 @@ def classify_component(
         See :func:`choose_threshold`; one entry per finite reading, in time order.
     """
     settings = settings if settings is not None else RunStateSettings()
-    floor, fw = default_floor(settings, level_unit)
+    base, fw = default_floor(settings, level_unit)
+    floor, step = _sensor_facts(frame, settings, base)
     t, lv, pk, L = _prepared(frame, component.sensor, floor)
-    thr = choose_threshold(L, configured=component.threshold, floor=floor,
-                           sibling_moving=sibling_moving)
-    return _finish(component, t, lv, pk, L, thr, start, end, max_gap, settings, fw)
+    gap, tw = sensor.timing(t, pd.Timedelta(max_gap), component.sensor)
+    thr = choose_threshold(_grouping_levels(lv, L, step, floor), configured=component.threshold,
+                           floor=floor, sibling_moving=sibling_moving,
+                           **_learning_settings(settings, step, t))
+    return _finish(component, t, lv, pk, L, thr, start, end, gap, settings, fw + tw)
+
+
+def _sensor_facts(frame: pd.DataFrame | None, settings: RunStateSettings,
+                  base: float) -> tuple[float, float]:
+    """The floor level in force and the reading step of one sensor [reading unit].
+
+    The default floor (the table ``FLOOR_BY_UNIT``) is for three axes combined: the magnitude
+    of n axes of independent noise is sqrt(n) times one axis's, so a sensor with fewer axes
+    gets sqrt(n / 3) of it. A floor set in the site file is used as it is.
+    """
+    axes = sensor.axes_count(frame)
+    floor = base if settings.floor is not None else base * np.sqrt(axes / 3)
+    step = settings.resolution if settings.resolution is not None else sensor.reading_step(frame)
+    return float(floor), float(step)
+
+
+def _grouping_levels(lv: np.ndarray, L: np.ndarray, step: float, floor: float) -> np.ndarray:
+    """log10 levels to learn from: dithered over one reading step when readings are quantised."""
+    return log_levels(sensor.dithered(lv, step), floor) if step > 0 else L
+
+
+def _learning_settings(settings: RunStateSettings, step: float, t: np.ndarray) -> dict:
+    return {"step": step, "times": t,
+            "idle_ratio": (settings.idle_ratio if settings.idle_ratio is not None
+                           else lowgroups.IDLE_RATIO),
+            "shift_days": (settings.shift_days if settings.shift_days is not None
+                           else lowgroups.SHIFT_DAYS)}
 
 
 def _finish(component, t, lv, pk, L, thr, start, end, max_gap, settings, warnings):
@@ -351,21 +382,27 @@ def classify_unit(
         ``Component.key`` -> :class:`ComponentStates`.
     """
     settings = settings if settings is not None else RunStateSettings()
-    floor, fw = default_floor(settings, level_unit)
-    prep, groups, moving = {}, {}, {}
+    base, fw = default_floor(settings, level_unit)
+    prep, groups, moving, facts, gaps = {}, {}, {}, {}, {}
     for c in unit.components:
-        prep[c.key] = _prepared(readings.get(c.sensor), c.sensor, floor)
-        t, lv, pk, L = prep[c.key]
-        groups[c.key] = th.level_groups(L) if L.size else None
-        moving[c.key] = (t, _moving(t, L, groups[c.key], floor) if L.size else L.astype(bool))
+        frame = readings.get(c.sensor)
+        floor, step = facts[c.key] = _sensor_facts(frame, settings, base)
+        t, lv, pk, L = _prepared(frame, c.sensor, floor)
+        Lg = _grouping_levels(lv, L, step, floor)
+        prep[c.key] = t, lv, pk, L, Lg
+        gaps[c.key] = sensor.timing(t, pd.Timedelta(max_gap), c.sensor)
+        groups[c.key] = th.level_groups(Lg) if Lg.size else None
+        moving[c.key] = (t, _moving(t, Lg, groups[c.key], floor) if Lg.size else Lg.astype(bool))
     out: dict[str, ComponentStates] = {}
-    mg = int(pd.Timedelta(max_gap).value)
     for c in unit.components:
-        t, lv, pk, L = prep[c.key]
+        t, lv, pk, L, Lg = prep[c.key]
+        floor, step = facts[c.key]
+        gap, tw = gaps[c.key]
         others = [moving[o.key] for o in unit.components
                   if o.key != c.key and o.sensor != c.sensor]
+        mg = max([int(gaps[o.key][0].value) for o in unit.components])
         sib = _sibling_moving(t, others, mg)
-        thr = choose_threshold(L, configured=c.threshold, floor=floor, sibling_moving=sib,
-                               groups=groups[c.key])
-        out[c.key] = _finish(c, t, lv, pk, L, thr, start, end, max_gap, settings, fw)
+        thr = choose_threshold(Lg, configured=c.threshold, floor=floor, sibling_moving=sib,
+                               groups=groups[c.key], **_learning_settings(settings, step, t))
+        out[c.key] = _finish(c, t, lv, pk, L, thr, start, end, gap, settings, fw + tw)
     return out
