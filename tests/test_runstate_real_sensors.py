@@ -156,3 +156,16 @@ def test_floor_follows_the_number_of_axes():
     assert floor == pytest.approx(0.2 / np.sqrt(3))
     assert runstate._sensor_facts(one, RunStateSettings(floor=0.5), 0.5)[0] == 0.5
     assert log_levels(np.array([0.0, 1.0]), floor)[0] < np.log10(floor)
+
+
+def test_a_fan_that_never_stops_at_three_speeds_runs_throughout():
+    rng = np.random.default_rng(8)
+    truth = synth.truth_from_runs([(S, E)], S, E)
+    idx = pd.date_range(S, E, freq="2h")
+    speed = pd.Series(np.resize([0.6, 0.8, 1.0], idx.size), index=idx)
+    r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=S, end=E, speed=speed)
+    c = Component(id="supply", unit="AHU-9", role="supply_fan", sensor="S1", power_kw=3.0,
+                  speed=1.0)
+    cs = runstate.classify_component(c, r, S, E, pd.Timedelta("5min"))
+    assert len(cs.threshold.groups) == 3, cs.threshold.reason
+    assert set(cs.intervals["state"]) == {"run"} and "never stopped" in cs.threshold.reason

@@ -329,6 +329,15 @@ def _three_groups(ev: _Evidence) -> _Choice:
     if med[2] <= F:
         # the scatter of a stopped machine's background can split into groups too
         return _never_running(ev, three + " all")
+    if med[0] > F and not lowgroups.idle_reason(10**med[0], 10**med[2], floor, ev.step,
+                                                 ev.idle_ratio):
+        # every group above the floor and the lowest no stopped or idle level: never stopped
+        c = _Choice(F, "floor", np.nan, med[0], f"{three} all above the floor level {floor:g}: "
+                    "running levels (speeds), never stopped")
+        c.warn.append(f"counted as running all the time; if the group at {10**med[0]:.3g} is a "
+                      "stopped machine shaken by its neighbours, set `threshold` to about "
+                      f"{10 ** ((med[0] + med[1]) / 2):.3g}")
+        return c
     shift = _shift_warning(ev, mid, ~low, med[1], med[2])
     if shift:
         as_run.reason += "; the middle group is the running level of some weeks: running"
