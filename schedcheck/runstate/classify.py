@@ -319,7 +319,8 @@ def _sensor_facts(frame: pd.DataFrame | None, settings: RunStateSettings,
 
 def _grouping_levels(lv: np.ndarray, L: np.ndarray, step: float, floor: float) -> np.ndarray:
     """log10 levels to learn from: dithered over one reading step when readings are quantised."""
-    return log_levels(sensor.dithered(lv, step), floor) if step > 0 else L
+    # dithered levels are at least half a step, so no zero needs raising as in log_levels
+    return np.log10(sensor.dithered(lv, step)) if step > 0 and lv.size else L
 
 
 def _learning_settings(settings: RunStateSettings, step: float, t: np.ndarray) -> dict:

@@ -51,12 +51,13 @@ def reading_step(frame: pd.DataFrame | None) -> float:
     if frame is None or len(frame) == 0:
         return 0.0
     cols = [c for c in RMS if c in frame.columns]
-    v = frame[cols].to_numpy(dtype=float).ravel()
+    rows = frame[cols]
+    if len(rows) > _SAMPLE:   # an evenly spaced sample of rows is enough to see the step
+        rows = rows.iloc[np.linspace(0, len(rows) - 1, _SAMPLE).astype(np.int64)]
+    v = rows.to_numpy(dtype=float).ravel()
     v = v[np.isfinite(v) & (v > 0)]
     if v.size < 20:
         return 0.0
-    if v.size > _SAMPLE:
-        v = v[np.linspace(0, v.size - 1, _SAMPLE).astype(np.int64)]
     u = np.unique(v)
     if u.size < 2 or u.size > v.size / 4:      # nearly every value distinct: not quantised
         return 0.0
