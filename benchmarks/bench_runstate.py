@@ -2,8 +2,8 @@
 
 Target (issue 3): 525,600 readings classified in under 0.5 s on the project machine.
 Usage: ``python benchmarks/bench_runstate.py [--repeat N] [--whole-mg]``. Prints the best of N
-wall-clock times, the peak memory traced by tracemalloc during one run, and how well the states match
-the generator's truth (a sanity check that the figure is for real work).
+wall-clock times, the peak memory traced by tracemalloc during one run, and how well the states
+match the generator's truth (a sanity check that the figure is for real work).
 """
 
 from __future__ import annotations
