@@ -15,7 +15,9 @@ Steps, for each component (see ``docs/run-states.md`` for the user's view):
 3. **Hysteresis.** A reading at or above ``on_level`` means run, at or below ``off_level``
    means off, in between keeps the previous state; an in-between reading whose peak is a start
    transient (crest factor >= ``TRANSIENT_CREST``) counts as run.
-4. **Gaps.** Each reading stands for the time up to half-way to its neighbours. A silence
+4. **Gaps.** ``max_gap`` follows the sensor's reading interval when the interval is more than
+   half of it (:func:`schedcheck.runstate.sensor.timing`, which also warns about intervals too
+   coarse for starts). Each reading stands for the time up to half-way to its neighbours. A silence
    longer than ``max_gap`` is ``no_data`` (half a reading period after the last reading to
    half a period before the next) and no state is carried across it. A silence between a
    window edge and the nearest reading is bridged when it is no longer than ``max_gap``.

@@ -6,16 +6,18 @@ histogram valley) live in :mod:`.thresholds`; this module decides which one appl
 
 Defaults (each with its source):
 
-* ``FLOOR_BY_UNIT`` -- the floor level per reading unit. MEMS accelerometers of the kind used in
-  wireless vibration sensors have noise densities of roughly 25-300 ug/sqrt(Hz) (datasheet
-  figures, from memory); integrated to velocity over 10-1000 Hz that is about 0.01-0.15 mm/s
-  RMS (computed: v = a_n / (2 pi) * sqrt(1/10 Hz - 1/1000 Hz)). The common rule that a running
-  machine should read several times its stopped background (common practice, no source; we
-  take about 3x the upper noise figure) gives 0.2 mm/s, which is also well below the
-  vibration of a healthy running fan (ISO 10816-3 zone A reaches 1.4-2.3 mm/s, from memory).
-  The other units are the same level converted at a typical 30 Hz fan frequency (from memory).
+* ``FLOOR_BY_UNIT`` -- the floor level per reading unit, for three axes combined (a sensor with
+  fewer axes gets sqrt(axes / 3) of it; see :func:`schedcheck.runstate.classify`). Common
+  practice, no source: MEMS accelerometers of the kind used in wireless vibration sensors have
+  noise densities of roughly 25-300 ug/sqrt(Hz) (a typical datasheet range); integrated to
+  velocity over 10-1000 Hz that is about 0.01-0.15 mm/s RMS (computed: v = a_n / (2 pi) *
+  sqrt(1/10 Hz - 1/1000 Hz)); a running machine should read several times its stopped
+  background, which gives 0.2 mm/s. The other units are the same level converted at a typical
+  30 Hz fan frequency. Where the readings show a stopped group, its level is learned instead
+  (:mod:`.lowgroups`).
 * ``HYSTERESIS`` = 0.1 decade either side (about +-26 %), narrowed to a quarter of the distance
   to each group's median when the groups are known (common practice, no source).
+* ``CLOSE_TO_FLOOR``, ``SLOWER_SHARE``: see their comments (common practice, no source).
 * ``CARRIED_SHARE`` = 0.95: a middle group is carried vibration when at least this share of its
   readings fall while a sibling moves and at most 1 - this share of the lowest group's
   (common practice, no source).
@@ -59,7 +61,9 @@ class Threshold:
     ``effectiveness`` Otsu's eta of that split (both NaN when one side is empty); ``counts`` /
     ``edges_log10`` a histogram of log10 levels for pictures; ``groups`` the medians of the
     level groups found [reading unit]; ``reason`` one plain sentence; ``floor`` the floor level
-    in force [reading unit].
+    in force and ``step`` the reading step (0 = not quantised) [reading unit]; ``confidence``
+    ``high`` / ``medium`` / ``low`` with ``near_share`` (share of readings near the level [-])
+    and ``concerns`` (why not high, in words; see :mod:`.confidence`).
     """
 
     level: float
