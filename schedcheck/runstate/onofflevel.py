@@ -354,15 +354,15 @@ def _three_groups(ev: _Evidence) -> _Choice:
     if med[1] <= F:
         as_off.reason += f"; the middle group lies below the floor level {floor:g}: counted as off"
         return as_off
-    if n_mid and p_mid <= SLOWER_SHARE:
-        as_run.reason += (f"; the middle group also appears while the rest of the unit is "
-                          f"stopped ({1 - p_mid:.0%} of its readings): a slower running level")
-        return as_run
     idle = lowgroups.idle_reason(10**med[1], 10**med[2], floor, 0.0, ev.idle_ratio,
                                  lowest=False)
     if idle:
         as_off.reason += f"; {idle.replace('the low group', 'the middle group')}, counted as off"
         return as_off
+    if n_mid and p_mid <= SLOWER_SHARE:
+        as_run.reason += (f"; the middle group also appears while the rest of the unit is "
+                          f"stopped ({1 - p_mid:.0%} of its readings): a slower running level")
+        return as_run
     why = "no other component of the unit to compare with" if not n_mid else (
         f"{p_mid:.0%} of its readings fall while another component runs")
     as_run.reason += f"; the middle group counted as running ({why})"

@@ -79,10 +79,12 @@ def dithered(level: np.ndarray, step: float) -> np.ndarray:
 
 
 def median_interval(t: np.ndarray) -> pd.Timedelta | None:
-    """Median time between consecutive readings [duration]; None with fewer than two."""
+    """Median time between consecutive readings, rounded [duration]; None with fewer than two."""
     if t.size < 2:
         return None
-    return pd.Timedelta(int(np.median(np.diff(t))), "ns")
+    period = pd.Timedelta(int(np.median(np.diff(t))), "ns")
+    # said in whole seconds, or whole minutes from two minutes on (jitter is not news)
+    return period.round("1min") if period >= pd.Timedelta("2min") else period.round("1s")
 
 
 def timing(t: np.ndarray, max_gap: pd.Timedelta, sensor: str) -> tuple[pd.Timedelta, list[str]]:
