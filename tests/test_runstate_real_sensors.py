@@ -49,6 +49,10 @@ CASES = {
     "level drifts down for a month": dict(level_factor=DRIFT_DOWN),
     "all at once": dict(period="15min", jitter="30s", unit="mg", idle_level=12.0, idle=IDLE,
                         level_factor=STEP_DOWN, **MG),
+    # the idle vibration merges with the stopped level into one low group at about 5 %
+    "all at once, idle merged with the stopped level": dict(
+        period="15min", jitter="30s", unit="mg", idle_level=10.0, idle=IDLE,
+        level_factor=STEP_DOWN, max_gap="45min", **MG),
 }
 
 
@@ -191,3 +195,32 @@ def test_idle_group_while_the_whole_unit_is_stopped_is_off_with_siblings():
         score = synth.score_states(truth, res[key].intervals, S, E, tolerance="16min")
         assert score["known_share_correct"] >= 0.97 and score["unmatched"] == [], (key, score)
     assert "idle" in res["AHU-9/supply"].threshold.reason
+
+
+@pytest.mark.parametrize(("run", "idle", "noise"), [(200, 16, 4), (150, 12, 5), (100, 8, 4)])
+def test_idle_at_eight_percent_of_the_running_level_is_off(run, idle, noise):
+    # 8 % is the top of the idle range; the stopped noise adds in quadrature to the idle group
+    cs, score = run_case(1, unit="mg", idle_level=idle, idle=IDLE, running_level=run,
+                         noise_floor=noise, noise_per_axis=True, resolution=1.0)
+    assert score["known_share_correct"] >= 0.97 and score["unmatched"] == [], (
+        cs.threshold.reason)
+
+
+@pytest.mark.parametrize("exponent", [2.0, 1.5])
+def test_a_setback_between_stops_is_a_running_level(exponent):
+    # runs 05:00-22:00 UTC on weekdays, the last four hours at 30 % speed; stopped otherwise:
+    # three groups (stopped, setback, full speed), and the setback is running
+    rng = np.random.default_rng(12)
+    days = pd.date_range(S, E, freq="D")
+    days = days[days.day_of_week < 5]
+    truth = synth.truth_from_runs([(d + pd.Timedelta("5h"), d + pd.Timedelta("22h"))
+                                   for d in days], S, E)
+    idx = pd.date_range(S, E, freq="h")
+    speed = pd.Series(np.where(idx.hour >= 18, 0.3, 1.0), index=idx)
+    r = synth.readings_for_component(truth, sensor="S1", rng=rng, start=S, end=E, speed=speed,
+                                     speed_exponent=exponent, **MG)
+    c = Component(id="supply", unit="AHU-9", role="supply_fan", sensor="S1", power_kw=3.0,
+                  speed=1.0)
+    cs = runstate.classify_component(c, r, S, E, pd.Timedelta("5min"), level_unit="mg")
+    score = synth.score_states(truth, cs.intervals, S, E)
+    assert score["known_share_correct"] >= 0.99 and score["unmatched"] == [], cs.threshold.reason

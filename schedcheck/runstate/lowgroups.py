@@ -13,13 +13,14 @@ Defaults (each with its source):
 
 * ``STOPPED_STEPS`` = 10: a lowest group within ten reading steps of zero is the sensor at rest
   (a whole-mg sensor's own noise is a few mg per axis; common practice, no source).
-* ``IDLE_RATIO`` = 0.08 (setting ``idle_ratio``): a low group at most this share of the running
-  level (the lowest group also within ``IDLE_NEAR_FLOOR`` = 2 floors) is idle vibration of a
-  stopped machine. A fan set back to 30 % speed reads about 0.3^2 = 9 % of its full level if
-  vibration follows the square of speed (an imbalance force, F = m e w^2, in any machine
-  dynamics text) and more (10-20 %) where it follows a lower power; idle vibration carried from
-  neighbours is typically 3-8 % (common practice, no source). A setback fan down to about 30 %
-  speed is therefore *running* by default.
+* ``IDLE_RATIO`` = 0.085 (setting ``idle_ratio``): a low group at most this share of the running
+  level (both measured above the noise of a stopped group below, in quadrature) is idle
+  vibration of a stopped machine. A
+  fan set back to 30 % speed reads about 0.3^2 = 9 % of its full level if vibration follows
+  the square of speed (an imbalance force, F = m e w^2, in any machine dynamics text) and more
+  (10-20 %) where it follows a lower power; idle vibration carried from neighbours is
+  typically 3-8 % (common practice, no source); the default lies between. A setback fan down
+  to about 30 % speed is therefore *running* by default.
 * ``SHIFT_DAYS`` = 7 (setting ``shift_days``): blocks of at least a week on average, with at
   least ``BLOCK_SHARE`` = 90 % of the lower group's readings on days where it holds at least
   90 % of the running readings, are a level shift, not a second speed (common practice, no
@@ -33,38 +34,37 @@ import datetime as dt
 import numpy as np
 
 STOPPED_STEPS = 10.0       # [reading steps]
-IDLE_RATIO = 0.08          # [-]
-IDLE_NEAR_FLOOR = 2.0      # [floor levels]
+IDLE_RATIO = 0.085         # [-]
 SHIFT_DAYS = 7             # [d]
 BLOCK_SHARE = 0.9          # [-]
 _DAY = 86_400 * 10**9
 
 
-def idle_reason(low: float, running: float, floor: float, step: float,
-                idle_ratio: float = IDLE_RATIO, *, lowest: bool = True) -> str | None:
+def idle_reason(low: float, running: float, step: float,
+                idle_ratio: float = IDLE_RATIO, *, noise: float = 0.0) -> str | None:
     """Why a low group (median ``low``) counts as stopped, or None when it is a running level.
 
     Parameters
     ----------
     low, running : float
         Medians of the low group and of the running group above it [reading unit].
-    floor : float
-        The floor level in force [reading unit].
     step : float
         The reading step (0 = not quantised) [reading unit].
     idle_ratio : float
         Largest share of the running level an idle group may have [-].
-    lowest : bool
-        Whether the group is the lowest one. A middle group (a stopped group lies below it) is
-        idle on the ratio alone; the lowest group must also lie near the floor.
+    noise : float
+        Median of a stopped group below (0: none) [reading unit]. Independent vibrations add
+        in quadrature (RMS of uncorrelated signals), so the ratio compares the levels above
+        this noise: sqrt(low^2 - noise^2) against sqrt(running^2 - noise^2).
     """
     if step > 0 and low <= STOPPED_STEPS * step:
         return (f"the low group (median {low:.3g}) lies within {STOPPED_STEPS:g} reading steps "
                 f"({step:g}) of zero, the sensor's own noise: stopped")
-    if low <= idle_ratio * running and (not lowest or low <= IDLE_NEAR_FLOOR * floor):
-        near = f"lies near the floor level {floor:.3g} and " if lowest else ""
-        return (f"the low group (median {low:.3g}) {near}reads {low / running:.1%} of the "
-                f"running level (at most {idle_ratio:.0%}): idle vibration of a stopped machine")
+    own, top = np.sqrt(max(low**2 - noise**2, 0.0)), np.sqrt(max(running**2 - noise**2, 0.0))
+    if top > 0 and own <= idle_ratio * top:
+        above = " above the stopped level's noise" if noise > 0 else ""
+        return (f"the low group (median {low:.3g}) reads {own / top:.1%} of the running "
+                f"level{above} (at most {idle_ratio:.1%}): idle vibration of a stopped machine")
     return None
 
 

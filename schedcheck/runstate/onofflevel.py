@@ -293,7 +293,7 @@ def _two_groups(ev: _Evidence) -> _Choice:
         return learned
     # both groups above the floor: a stopped machine above the floor, a level shift, carried
     # vibration, or two speeds of a fan that never stopped
-    idle = lowgroups.idle_reason(10**med[0], 10**med[1], floor, ev.step, ev.idle_ratio)
+    idle = lowgroups.idle_reason(10**med[0], 10**med[1], ev.step, ev.idle_ratio)
     if idle:
         learned.reason += f"; {idle}"
         return learned
@@ -333,7 +333,7 @@ def _three_groups(ev: _Evidence) -> _Choice:
     if med[2] <= F:
         # the scatter of a stopped machine's background can split into groups too
         return _never_running(ev, three + " all")
-    if med[0] > F and not lowgroups.idle_reason(10**med[0], 10**med[2], floor, ev.step,
+    if med[0] > F and not lowgroups.idle_reason(10**med[0], 10**med[2], ev.step,
                                                  ev.idle_ratio):
         # every group above the floor and the lowest no stopped or idle level: never stopped
         c = _Choice(F, "floor", np.nan, med[0], f"{three} all above the floor level {floor:g}: "
@@ -354,8 +354,8 @@ def _three_groups(ev: _Evidence) -> _Choice:
     if med[1] <= F:
         as_off.reason += f"; the middle group lies below the floor level {floor:g}: counted as off"
         return as_off
-    idle = lowgroups.idle_reason(10**med[1], 10**med[2], floor, 0.0, ev.idle_ratio,
-                                 lowest=False)
+    idle = lowgroups.idle_reason(10**med[1], 10**med[2], 0.0, ev.idle_ratio,
+                                 noise=10**med[0])
     if idle:
         as_off.reason += f"; {idle.replace('the low group', 'the middle group')}, counted as off"
         return as_off
