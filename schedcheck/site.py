@@ -109,6 +109,9 @@ class RunStateSettings:
     min_run: pd.Timedelta | None = None     # shortest run kept [duration]; None = default
     min_stop: pd.Timedelta | None = None    # shortest stop kept [duration]; None = default
     floor: float | None = None              # absolute floor level [reading unit]; None = default
+    resolution: float | None = None         # reading step [reading unit]; None = from the data
+    idle_ratio: float | None = None         # low group at most this x running level may be idle
+    shift_days: int | None = field(default=None, metadata={"min": 1})  # level-shift block [d]
 
 
 @dataclass(frozen=True)

@@ -21,7 +21,8 @@ def _cell(x, fmt: str) -> str:
 
 
 def states_table(result) -> object:
-    """A rich Table: component, level, source, separation, running share, starts/day, warnings."""
+    """A rich Table: component, level, source, separation, confidence, running share,
+    starts/day, warnings."""
     from rich.table import Table
 
     unit = result.site.readings.unit
@@ -29,7 +30,8 @@ def states_table(result) -> object:
              f"({result.site.timezone} local dates)")
     table = Table(title=title, title_justify="left", show_lines=True)
     for head, just in (("Component", "left"), (f"Level [{unit}]", "right"),
-                       ("Source", "left"), ("Separation", "right"), ("Running", "right"),
+                       ("Source", "left"), ("Separation", "right"), ("Confidence", "left"),
+                       ("Running", "right"),
                        ("Starts/day", "right"), ("Why this level; warnings", "left")):
         table.add_column(head, justify=just, overflow="fold")
     for r in result.records:
@@ -37,7 +39,8 @@ def states_table(result) -> object:
         sep_text = "-" if sep is None else (f">{sep:.0f}" if sep >= 1000 else f"{sep:.1f}")
         share = "-" if r["running_share"] is None else f"{r['running_share']:.1%}"
         why = r["reason"] + "".join(f"\nwarning: {w}" for w in r["warnings"])
-        table.add_row(r["component"], _cell(r["level"], ".3g"), r["source"], sep_text, share,
+        table.add_row(r["component"], _cell(r["level"], ".3g"), r["source"], sep_text,
+                      r.get("confidence") or "-", share,
                       _cell(r["starts_per_day"], ".1f"), why)
     return table
 

@@ -29,12 +29,23 @@ The reading model (per reading, per axis)
   log-normal scatter (sigma 0.08), only while the truth says ``run``;
 * carried: ``carried_level`` (same drift, scatter sigma 0.10) while the *sibling's* truth
   (``carried``) says ``run``, whatever this component does;
+* idle: ``idle_level`` (scatter sigma 0.15) while the truth says ``off`` inside one of the
+  ``idle`` periods (vibration carried from machines outside the unit, or an idle state): a low
+  group of readings while the component is stopped;
+* ``level_factor``: a slow change of the running (and carried) level, linear between the given
+  instants (a filter loading up, a belt wearing, a sensor re-mounted; a jump back is two
+  instants close together);
 * all scatters are multiplied by ``scatter`` (0 gives noise-free levels for exact-recovery
   tests);
 * the three add in quadrature (independent sources) and are split over the axes by fixed
-  per-sensor weights; peaks are the RMS times a crest factor of about 1.5 (common practice,
+  per-sensor weights (with ``noise_per_axis`` the background is ``noise_floor`` on *each* axis,
+  as a MEMS sensor's own noise is, so the stopped magnitude is about sqrt(axes) times it);
+  peaks are the RMS times a crest factor of about 1.5 (common practice,
   no source: about sqrt(2) for a sine, more with impacts), times ``transient_factor`` during
   the first two minutes after each start.
+
+With ``resolution`` every RMS and peak value is rounded to whole multiples of it (a sensor
+reporting in whole mg), never below one step.
 
 Readings are due at ``start + k * period``. Their times get uniform jitter of up to
 +-``jitter`` (in whole seconds when ``jitter`` is a second or more, as gateways stamp
@@ -45,129 +56,35 @@ its neighbour in the file.
 
 from __future__ import annotations
 
-import datetime as dt
-from collections.abc import Iterable, Sequence
+from collections.abc import Iterable
 
 import numpy as np
 import pandas as pd
 
-from schedcheck.intervals import Intervals, from_ns, to_ns
+from schedcheck.demo.truth import (  # noqa: F401 - re-exported: the generator's truth helpers
+    _run_set,
+    _state_at,
+    _utc,
+    score_states,
+    truth_from_runs,
+    truth_with_gaps,
+    weekday_truth,
+)
+from schedcheck.intervals import from_ns, to_ns
+from schedcheck.site import READING_COLUMNS  # noqa: F401 - the columns the generator writes
 
 AXES = ("x", "y", "z")
-READING_COLUMNS = ("timestamp", "sensor", "x_rms", "y_rms", "z_rms", "x_peak", "y_peak", "z_peak")
 CREST_FACTOR = 1.5        # peak / RMS of a running fan (common practice, no source)
-TRANSIENT_TIME = pd.Timedelta("2min")   # start transient lasts about this long (from memory)
+TRANSIENT_TIME = pd.Timedelta("2min")   # start transient lasts about this long (common
+#                                         practice, no source)
 _NS_MIN = 60_000_000_000
 
 
-def _utc(ts) -> pd.Timestamp:
-    t = pd.Timestamp(ts)
-    if t.tzinfo is None:
-        raise ValueError(f"naive instant {ts!r}: give a zone")
-    return t.tz_convert("UTC").as_unit("ns")
-
-
-def _truth_frame(starts: np.ndarray, ends: np.ndarray, states: Sequence[str]) -> pd.DataFrame:
-    return pd.DataFrame(
-        {"start": from_ns(starts), "end": from_ns(ends), "state": np.asarray(states, dtype=object)}
-    )
-
-
-def _labelled(run: Intervals, start_ns: int, end_ns: int) -> pd.DataFrame:
-    """Run set inside the window -> contiguous run/off table covering it."""
-    run = run.clip(start_ns, end_ns) if len(run) else run
-    off = run.complement(start_ns, end_ns)
-    s = np.concatenate([run.starts, off.starts])
-    e = np.concatenate([run.ends, off.ends])
-    lab = np.array(["run"] * len(run) + ["off"] * len(off), dtype=object)
-    order = np.argsort(s, kind="stable")
-    return _truth_frame(s[order], e[order], lab[order])
-
-
-def truth_from_runs(runs: Iterable[tuple], start, end) -> pd.DataFrame:
-    """Run periods -> a truth table covering ``[start, end)``.
-
-    Parameters
-    ----------
-    runs : iterable of (start, end)
-        Run periods (tz-aware instants); overlapping or touching ones merge; parts outside the
-        window are cut off.
-    start, end : tz-aware instants
-        The window.
-
-    Returns
-    -------
-    DataFrame
-        ``start, end, state`` (``run`` / ``off``), UTC, contiguous, covering the window.
-    """
-    s0, e0 = to_ns(_utc(start)), to_ns(_utc(end))
-    runs = list(runs)
-    if runs:
-        rs = np.array([to_ns(_utc(a)) for a, _ in runs], dtype=np.int64)
-        re_ = np.array([to_ns(_utc(b)) for _, b in runs], dtype=np.int64)
-        run = Intervals.from_arrays(rs, re_)
-    else:
-        run = Intervals.empty()
-    return _labelled(run, s0, e0)
-
-
-def weekday_truth(
-    start,
-    end,
-    tz: str,
-    rng: np.random.Generator,
-    *,
-    on: str = "06:00",
-    off: str = "18:00",
-    days: Sequence[int] = (0, 1, 2, 3, 4),
-    scatter: str = "10min",
-    extra_runs: Iterable[tuple] = (),
-) -> pd.DataFrame:
-    """A weekday office pattern as a truth table.
-
-    Parameters
-    ----------
-    start, end : tz-aware instants
-        The window.
-    tz : str
-        IANA zone the on/off times are local to.
-    rng : numpy.random.Generator
-        Source of the start/stop scatter.
-    on, off : str
-        Local start and stop times ``HH:MM``.
-    days : sequence of int
-        Weekdays with a run (Monday = 0).
-    scatter : str
-        Each start and stop moves by a uniform amount of up to +- this [duration].
-    extra_runs : iterable of (start, end)
-        Further run periods (overrides, night runs), tz-aware.
-    """
-    s0, e0 = _utc(start), _utc(end)
-    t_on, t_off = dt.time.fromisoformat(on), dt.time.fromisoformat(off)
-    sc = pd.Timedelta(scatter).value
-    first = s0.tz_convert(tz).date() - dt.timedelta(days=1)
-    last = e0.tz_convert(tz).date() + dt.timedelta(days=1)
-    dates = pd.date_range(first, last, freq="D")
-    dates = dates[np.isin(dates.day_of_week, list(days))]
-    on_local = dates + pd.Timedelta(hours=t_on.hour, minutes=t_on.minute)
-    off_local = dates + pd.Timedelta(hours=t_off.hour, minutes=t_off.minute)
-    loc = dict(nonexistent="shift_forward", ambiguous=True)
-    rs = to_ns(pd.DatetimeIndex(on_local).tz_localize(tz, **loc))
-    re_ = to_ns(pd.DatetimeIndex(off_local).tz_localize(tz, **loc))
-    if sc:
-        rs = rs + rng.integers(-sc, sc + 1, rs.size)
-        re_ = re_ + rng.integers(-sc, sc + 1, re_.size)
-    extra = list(extra_runs)
-    if extra:
-        rs = np.concatenate([rs, [to_ns(_utc(a)) for a, _ in extra]]).astype(np.int64)
-        re_ = np.concatenate([re_, [to_ns(_utc(b)) for _, b in extra]]).astype(np.int64)
-    return _labelled(Intervals.from_arrays(rs, re_), to_ns(s0), to_ns(e0))
-
-
-def _run_set(truth: pd.DataFrame | None) -> Intervals:
-    if truth is None or len(truth) == 0:
-        return Intervals.empty()
-    return Intervals.from_frame(truth[truth["state"] == "run"])
+def _quantised(values: np.ndarray, step: float) -> np.ndarray:
+    """Values rounded to whole multiples of ``step``, at least one step (0 = unchanged)."""
+    if step <= 0:
+        return values
+    return np.maximum(np.round(values / step), 1.0) * step
 
 
 def readings_for_component(
@@ -194,6 +111,11 @@ def readings_for_component(
     axes: str = "xyz",
     peaks: bool = True,
     scatter: float = 1.0,
+    noise_per_axis: bool = False,
+    resolution: float = 0.0,
+    idle_level: float = 0.0,
+    idle: Iterable[tuple] = (),
+    level_factor: pd.Series | None = None,
 ) -> pd.DataFrame:
     """Readings of one sensor on a component whose true run intervals are ``truth``.
 
@@ -206,7 +128,10 @@ def readings_for_component(
     rng : numpy.random.Generator
         The only source of randomness.
     start, end : tz-aware instants
-        Readings are due at ``start + k * period`` inside ``[start, end)``.
+        With ``resolution`` every RMS and peak value is rounded to whole multiples of it (a sensor
+reporting in whole mg), never below one step.
+
+Readings are due at ``start + k * period`` inside ``[start, end)``.
     period : str
         Nominal reading interval [duration].
     jitter : str
@@ -242,6 +167,18 @@ def readings_for_component(
     scatter : float
         Multiplies every random scatter of the levels [-]; 0 gives noise-free levels (the
         background is then exactly ``noise_floor``).
+    noise_per_axis : bool
+        ``noise_floor`` is the background of each axis (not of the magnitude).
+    resolution : float
+        Reading step: values are rounded to whole multiples of it, at least one step [reading
+        unit]; 0 = not rounded.
+    idle_level : float
+        Level of the idle group while stopped inside ``idle`` [reading unit].
+    idle : iterable of (start, end)
+        Periods in which a stopped component shows ``idle_level``.
+    level_factor : Series, optional
+        Multiplies the running and carried levels [-], indexed by UTC instants, linear in
+        between, constant before the first and after the last.
 
     Returns
     -------
@@ -273,6 +210,11 @@ def readings_for_component(
         idx, val = idx[order], np.asarray(speed.to_numpy(dtype=float))[order]
         k = np.searchsorted(idx, t, side="right") - 1
         sp = np.where(k >= 0, val[np.clip(k, 0, None)], 1.0)
+    if level_factor is not None and len(level_factor):
+        fi = to_ns(pd.DatetimeIndex(level_factor.index))
+        fo = np.argsort(fi, kind="stable")
+        drift = drift * np.interp(t.astype(float), fi[fo].astype(float),
+                                  np.asarray(level_factor.to_numpy(dtype=float))[fo])
     r_level = running_level * np.power(np.clip(sp, 0, None), speed_exponent) * drift
     r_level = np.where(running, r_level * np.exp(rng.normal(0, 0.08 * scatter, n)), 0.0)
     c_level = np.zeros(n)
@@ -280,6 +222,14 @@ def readings_for_component(
         c_run = _run_set(carried).contains(t)
         c_wobble = np.exp(rng.normal(0, 0.10 * scatter, n))
         c_level = np.where(c_run, carried_level * drift * c_wobble, 0.0)
+
+    i_level = np.zeros(n)
+    if idle_level > 0:   # drawn only when asked for: existing seeds give the same readings
+        idle_on = np.zeros(n, bool)
+        for a, b in idle:
+            idle_on |= (t >= to_ns(_utc(a))) & (t < to_ns(_utc(b)))
+        i_level = np.where(idle_on & ~running,
+                           idle_level * np.exp(rng.normal(0, 0.15 * scatter, n)), 0.0)
 
     # start transients: first TRANSIENT_TIME of every run that follows an off period
     after_start = np.zeros(n, bool)
@@ -294,12 +244,15 @@ def readings_for_component(
     weights = weights / np.sqrt((weights**2).sum())
     cols: dict[str, np.ndarray] = {}
     for i, ax in enumerate(axes):
-        bg = noise_floor / np.sqrt(len(axes)) * np.exp(rng.normal(0, 0.25 * scatter, n))
-        rms = np.sqrt((weights[i] * r_level) ** 2 + (weights[i] * c_level) ** 2 + bg**2)
-        cols[f"{ax}_rms"] = rms
+        per_axis = noise_floor if noise_per_axis else noise_floor / np.sqrt(len(axes))
+        bg = per_axis * np.exp(rng.normal(0, 0.25 * scatter, n))
+        rms = np.sqrt((weights[i] * r_level) ** 2 + (weights[i] * c_level) ** 2
+                      + (weights[i] * i_level) ** 2 + bg**2)
+        cols[f"{ax}_rms"] = _quantised(rms, resolution)
         if peaks:
             crest = CREST_FACTOR * np.exp(rng.normal(0, 0.1 * scatter, n))
-            cols[f"{ax}_peak"] = rms * crest * np.where(after_start, transient_factor, 1.0)
+            peak = rms * crest * np.where(after_start, transient_factor, 1.0)
+            cols[f"{ax}_peak"] = _quantised(peak, resolution)
 
     keep = rng.random(n) >= packet_loss
     for a, b in outages:
@@ -321,118 +274,3 @@ def readings_for_component(
     return pd.DataFrame(out)
 
 
-def truth_with_gaps(truth: pd.DataFrame, outages: Iterable[tuple], start, end) -> pd.DataFrame:
-    """The truth the classifier should recover: ``no_data`` over the outages.
-
-    Parameters
-    ----------
-    truth : DataFrame
-        ``start, end, state`` covering the window.
-    outages : iterable of (start, end)
-        Periods with no readings.
-    start, end : tz-aware instants
-        The window.
-
-    Returns
-    -------
-    DataFrame
-        ``start, end, state`` (``run`` / ``off`` / ``no_data``) covering ``[start, end)``,
-        adjacent rows differing in state.
-    """
-    s0, e0 = to_ns(_utc(start)), to_ns(_utc(end))
-    outs = list(outages)
-    gap = (
-        Intervals.from_arrays([to_ns(_utc(a)) for a, _ in outs], [to_ns(_utc(b)) for _, b in outs])
-        if outs else Intervals.empty()
-    ).clip(s0, e0)
-    run = _run_set(truth).clip(s0, e0) - gap
-    off = Intervals.window(s0, e0) - gap - run
-    parts = [(run, "run"), (off, "off"), (gap, "no_data")]
-    s = np.concatenate([p.starts for p, _ in parts])
-    e = np.concatenate([p.ends for p, _ in parts])
-    lab = np.concatenate([np.full(len(p), name, dtype=object) for p, name in parts])
-    order = np.argsort(s, kind="stable")
-    return _truth_frame(s[order], e[order], lab[order])
-
-
-def _state_at(table: pd.DataFrame, t: np.ndarray) -> np.ndarray:
-    s = to_ns(table["start"])
-    k = np.clip(np.searchsorted(s, t, side="right") - 1, 0, None)
-    e = to_ns(table["end"])
-    lab = table["state"].to_numpy(dtype=object)[k]
-    return np.where((t >= s[k]) & (t < e[k]), lab, "outside")
-
-
-def score_states(
-    truth: pd.DataFrame,
-    found: pd.DataFrame,
-    start,
-    end,
-    *,
-    step: str = "60s",
-    tolerance: str = "2min",
-) -> dict:
-    """Compare found run states with the truth, minute by minute and transition by transition.
-
-    Parameters
-    ----------
-    truth, found : DataFrame
-        ``start, end, state`` tables (``found`` e.g. ``ComponentStates.intervals``).
-    start, end : tz-aware instants
-        Window scored, sampled every ``step`` at the middle of each step.
-    step : str
-        Sampling step [duration].
-    tolerance : str
-        A true run/off transition counts as matched when ``found`` has the same transition
-        within this distance [duration].
-
-    Returns
-    -------
-    dict
-        ``known_share_correct`` (share of sample instants with a known true state, i.e. not
-        ``no_data``, where ``found`` says the same), ``known`` (their number), ``no_data_share``
-        of ``found`` over those known instants, ``transitions`` (number of true run/off
-        changes), ``unmatched`` (list of true transition instants with no match) and
-        ``max_error`` (largest distance to the nearest matching found transition) [Timedelta].
-    """
-    s0, e0 = to_ns(_utc(start)), to_ns(_utc(end))
-    st = pd.Timedelta(step).value
-    t = np.arange(s0, e0, st, dtype=np.int64) + st // 2
-    a, b = _state_at(truth, t), _state_at(found, t)
-    known = (a == "run") | (a == "off")
-    nk = int(known.sum())
-    share = float((a[known] == b[known]).mean()) if nk else float("nan")
-
-    def changes(tab: pd.DataFrame) -> tuple[np.ndarray, np.ndarray]:
-        lab = tab["state"].to_numpy(dtype=object)
-        ok = (lab[:-1] != "no_data") & (lab[1:] != "no_data") & (lab[:-1] != lab[1:])
-        at = to_ns(tab["start"])[1:][ok]
-        kind = lab[1:][ok]
-        inside = (at > s0) & (at < e0)
-        return at[inside], kind[inside]
-
-    ta, ka = changes(truth)
-    fb, kb = changes(found)
-    tol = pd.Timedelta(tolerance).value
-    unmatched, worst = [], 0
-    for kind in ("run", "off"):
-        x, y = ta[ka == kind], np.sort(fb[kb == kind])
-        if x.size == 0:
-            continue
-        if y.size == 0:
-            unmatched.extend(x.tolist())
-            continue
-        j = np.clip(np.searchsorted(y, x), 1, y.size - 1) if y.size > 1 else np.zeros(x.size, int)
-        d = np.abs(y[j] - x)
-        if y.size > 1:
-            d = np.minimum(d, np.abs(y[j - 1] - x))
-        worst = max(worst, int(d.max()))
-        unmatched.extend(x[d > tol].tolist())
-    return {
-        "known_share_correct": share,
-        "known": nk,
-        "no_data_share": float((b[known] == "no_data").mean()) if nk else float("nan"),
-        "transitions": int(ta.size),
-        "unmatched": [from_ns([u])[0] for u in sorted(unmatched)],
-        "max_error": pd.Timedelta(worst),
-    }

@@ -98,7 +98,9 @@ def _threshold(comp) -> dict:
             counts, edges = hist[0], hist[1]
         hist = {"edges": edges, "counts": counts}
     out = {key: _plain(get(key, None)) for key in
-           ("level", "source", "separation", "effectiveness", "on_level", "off_level", "floor")}
+           ("level", "source", "separation", "effectiveness", "on_level", "off_level", "floor",
+            "step", "confidence", "near_share")}
+    out["concerns"] = [str(x) for x in get("concerns", ()) or ()]
     out["histogram"] = _plain(hist) if hist is not None else {"edges": [], "counts": []}
     out["groups"] = _plain(get("groups", ()) or ())
     out["reason"] = str(get("reason", "") or "")

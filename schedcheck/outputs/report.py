@@ -61,7 +61,7 @@ HOUR_KEYS = ("period", "scheduled", "running", "in_schedule", "in_allowance", "o
 ENERGY_KEYS = ("running_kwh", "running_kw", "running_cost", "running_co2_kg", "off_schedule_kwh",
                "off_schedule_cost", "off_schedule_co2_kg")
 THRESHOLD_KEYS = ("level", "source", "separation", "effectiveness", "on_level", "off_level",
-                  "histogram", "warnings")
+                  "histogram", "warnings", "confidence", "concerns")
 SENSOR_KEYS = ("sensor", "component", "first", "last", "count", "median_interval_s", "gaps",
                "gap_hours", "duplicates", "conflicting", "out_of_order", "coverage")
 
@@ -256,6 +256,7 @@ def report_context(data: SavedAudit) -> dict:
         "legend": Markup(svg.legend_svg("lg")),
         "dst_days": _dst_days(data.timezone, first, last),
         "intended": _intended(data.schedule, units),
+        "uncertain": [c["id"] for c in comps if c["threshold"].get("confidence") == "low"],
     }
 
 

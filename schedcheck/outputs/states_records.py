@@ -25,7 +25,9 @@ def component_record(cs: ComponentStates) -> dict:
     at 1000), ``effectiveness`` (Otsu's eta), ``groups`` (level group medians), ``floor`` (the floor
     level in force) [reading unit], ``running_share``
     (running / known time), ``starts``, ``starts_per_day`` (per 24 h of known time),
-    ``known_hours``, ``no_data_hours`` [h], ``reason`` and ``warnings``.
+    ``known_hours``, ``no_data_hours`` [h], ``confidence`` (``high`` / ``medium`` / ``low``),
+    ``near_share`` (share of readings near the level), ``concerns`` (why the confidence is not
+    high, in words), ``reason`` and ``warnings``.
     """
     th = cs.threshold
     hours = hours_by_state(cs.intervals)
@@ -44,6 +46,8 @@ def component_record(cs: ComponentStates) -> dict:
         "starts": int(cs.starts),
         "starts_per_day": _num(cs.starts / (known / 24.0), 2) if known > 0 else None,
         "known_hours": round(known, 2), "no_data_hours": round(no_data, 2),
+        "confidence": th.confidence or None, "near_share": _num(th.near_share, 4),
+        "concerns": list(th.concerns),
         "reason": th.reason,
         "warnings": list(th.warnings) + list(cs.warnings),
     }

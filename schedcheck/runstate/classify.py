@@ -15,7 +15,9 @@ Steps, for each component (see ``docs/run-states.md`` for the user's view):
 3. **Hysteresis.** A reading at or above ``on_level`` means run, at or below ``off_level``
    means off, in between keeps the previous state; an in-between reading whose peak is a start
    transient (crest factor >= ``TRANSIENT_CREST``) counts as run.
-4. **Gaps.** Each reading stands for the time up to half-way to its neighbours. A silence
+4. **Gaps.** ``max_gap`` follows the sensor's reading interval when the interval is more than
+   half of it (:func:`schedcheck.runstate.sensor.timing`, which also warns about intervals too
+   coarse for starts). Each reading stands for the time up to half-way to its neighbours. A silence
    longer than ``max_gap`` is ``no_data`` (half a reading period after the last reading to
    half a period before the next) and no state is carried across it. A silence between a
    window edge and the nearest reading is bridged when it is no longer than ``max_gap``.
@@ -47,21 +49,25 @@ import pandas as pd
 
 from schedcheck.errors import InputError
 from schedcheck.intervals import Intervals, from_ns, to_ns
+from schedcheck.runstate import lowgroups, sensor
 from schedcheck.runstate import thresholds as th
+from schedcheck.runstate.levels import (  # noqa: F401 - re-exported: the classifier's public names
+    PEAK,
+    RMS,
+    log_levels,
+    reading_levels,
+)
 from schedcheck.runstate.onofflevel import (  # noqa: F401 - re-exported: the classifier's public names
     CARRIED_SHARE,
     FLOOR_BY_UNIT,
     HYSTERESIS,
-    PEAK,
-    RMS,
     SEPARATION_CAP,
     Threshold,
     choose_threshold,
     default_floor,
-    log_levels,
-    reading_levels,
 )
 from schedcheck.runstate.states import NO_DATA, NO_DATA_WARN, OFF, RUN, STATES, StateSets
+from schedcheck.runstate.switching import hysteresis_states, min_dwell  # noqa: F401 - re-exported
 from schedcheck.site import Component, RunStateSettings, Unit
 
 MIN_RUN = pd.Timedelta("3min")
@@ -143,65 +149,6 @@ class _Levels:
 
 
 # -- states ----------------------------------------------------------------------------------
-def hysteresis_states(
-    L: np.ndarray, log_on: float, log_off: float, segment: np.ndarray,
-    transient: np.ndarray | None = None,
-) -> np.ndarray:
-    """Two-level switching: True (run) from a reading >= ``log_on`` until one <= ``log_off``.
-
-    Parameters
-    ----------
-    L : ndarray
-        log10 levels, time-ordered [log10 reading unit].
-    log_on, log_off : float
-        Switching levels, ``log_off <= log_on`` [log10 reading unit].
-    segment : ndarray of int
-        Data segment of each reading (non-decreasing); no state is carried between segments.
-    transient : ndarray of bool, optional
-        Readings whose peak shows a start transient: an in-between one of these counts as run.
-
-    Returns
-    -------
-    ndarray of bool
-        Run state per reading. An in-between reading with no earlier decisive reading in its
-        segment is run when above the mid-level of the band.
-    """
-    n = L.size
-    decisive = np.where(L >= log_on, 1, np.where(L <= log_off, -1, 0))
-    if transient is not None:
-        decisive = np.where((decisive == 0) & transient, 1, decisive)
-    idx = np.where(decisive != 0, np.arange(n), -1)
-    last = np.maximum.accumulate(idx) if n else idx
-    seg_first = np.searchsorted(segment, segment, side="left")
-    known = last >= seg_first
-    own = L >= (log_on + log_off) / 2
-    return np.where(known, decisive[np.clip(last, 0, None)] > 0, own)
-
-
-def min_dwell(
-    starts: np.ndarray, ends: np.ndarray, run: np.ndarray, segment: np.ndarray,
-    min_run: int, min_stop: int,
-) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """Absorb runs shorter than ``min_run`` and stops shorter than ``min_stop`` [ns].
-
-    Only pieces with a neighbour on both sides in the same data segment change (at a gap or a
-    window edge nobody knows how long a piece really lasted). Runs are absorbed first, then
-    stops; neighbours of equal state are merged after each pass.
-    """
-    for target, shortest in ((True, min_run), (False, min_stop)):
-        if starts.size < 3:
-            break
-        inner = np.zeros(starts.size, bool)
-        inner[1:-1] = (segment[:-2] == segment[1:-1]) & (segment[2:] == segment[1:-1])
-        flip = inner & (run == target) & (ends - starts < shortest)
-        run = np.where(flip, ~run, run)
-        keep = np.concatenate([[True], (run[1:] != run[:-1]) | (segment[1:] != segment[:-1])])
-        idx = np.flatnonzero(keep)
-        ends = np.concatenate([ends[idx[1:] - 1], ends[-1:]])
-        starts, run, segment = starts[idx], run[idx], segment[idx]
-    return starts, ends, run, segment
-
-
 _CODES = np.array([OFF, RUN, NO_DATA], dtype=object)
 
 
@@ -343,12 +290,44 @@ def classify_component(
         See :func:`choose_threshold`; one entry per finite reading, in time order.
     """
     settings = settings if settings is not None else RunStateSettings()
-    floor, fw = default_floor(settings, level_unit)
+    base, fw = default_floor(settings, level_unit)
+    floor, step = _sensor_facts(frame, settings, base)
     levels = _prepared(frame, component.sensor, floor)
-    thr = choose_threshold(levels.log_level, configured=component.threshold, floor=floor,
-                           sibling_moving=sibling_moving)
-    return _finish(component, levels, thr, start=start, end=end, max_gap=max_gap,
-                   settings=settings, warnings=fw)
+    gap, tw = sensor.timing(levels.t, pd.Timedelta(max_gap), component.sensor)
+    thr = choose_threshold(_grouping_levels(levels.level, levels.log_level, step, floor),
+                           configured=component.threshold, floor=floor,
+                           sibling_moving=sibling_moving,
+                           **_learning_settings(settings, step, levels.t))
+    return _finish(component, levels, thr, start=start, end=end, max_gap=gap,
+                   settings=settings, warnings=fw + tw)
+
+
+def _sensor_facts(frame: pd.DataFrame | None, settings: RunStateSettings,
+                  base: float) -> tuple[float, float]:
+    """The floor level in force and the reading step of one sensor [reading unit].
+
+    The default floor (the table ``FLOOR_BY_UNIT``) is for three axes combined: the magnitude
+    of n axes of independent noise is sqrt(n) times one axis's, so a sensor with fewer axes
+    gets sqrt(n / 3) of it. A floor set in the site file is used as it is.
+    """
+    axes = sensor.axes_count(frame)
+    floor = base if settings.floor is not None else base * np.sqrt(axes / 3)
+    step = settings.resolution if settings.resolution is not None else sensor.reading_step(frame)
+    return float(floor), float(step)
+
+
+def _grouping_levels(lv: np.ndarray, L: np.ndarray, step: float, floor: float) -> np.ndarray:
+    """log10 levels to learn from: dithered over one reading step when readings are quantised."""
+    # dithered levels are at least half a step, so no zero needs raising as in log_levels
+    return np.log10(sensor.dithered(lv, step)) if step > 0 and lv.size else L
+
+
+def _learning_settings(settings: RunStateSettings, step: float, t: np.ndarray) -> dict:
+    return {"step": step, "times": t,
+            "idle_ratio": (settings.idle_ratio if settings.idle_ratio is not None
+                           else lowgroups.IDLE_RATIO),
+            "shift_days": (settings.shift_days if settings.shift_days is not None
+                           else lowgroups.SHIFT_DAYS)}
 
 
 def _finish(
@@ -418,22 +397,30 @@ def classify_unit(
         ``Component.key`` -> :class:`ComponentStates`.
     """
     settings = settings if settings is not None else RunStateSettings()
-    floor, fw = default_floor(settings, level_unit)
-    prep, groups, moving = {}, {}, {}
+    base, fw = default_floor(settings, level_unit)
+    prep, groups, moving, facts, gaps = {}, {}, {}, {}, {}
     for c in unit.components:
-        prep[c.key] = _prepared(readings.get(c.sensor), c.sensor, floor)
-        t, L = prep[c.key].t, prep[c.key].log_level
-        groups[c.key] = th.level_groups(L) if L.size else None
-        moving[c.key] = (t, _moving(t, L, groups[c.key], floor) if L.size else L.astype(bool))
+        frame = readings.get(c.sensor)
+        floor, step = facts[c.key] = _sensor_facts(frame, settings, base)
+        levels = _prepared(frame, c.sensor, floor)
+        Lg = _grouping_levels(levels.level, levels.log_level, step, floor)
+        prep[c.key] = levels, Lg
+        t = levels.t
+        gaps[c.key] = sensor.timing(t, pd.Timedelta(max_gap), c.sensor)
+        groups[c.key] = th.level_groups(Lg) if Lg.size else None
+        moving[c.key] = (t, _moving(t, Lg, groups[c.key], floor) if Lg.size else Lg.astype(bool))
     out: dict[str, ComponentStates] = {}
-    mg = int(pd.Timedelta(max_gap).value)
     for c in unit.components:
-        t, L = prep[c.key].t, prep[c.key].log_level
+        levels, Lg = prep[c.key]
+        t = levels.t
+        floor, step = facts[c.key]
+        gap, tw = gaps[c.key]
         others = [moving[o.key] for o in unit.components
                   if o.key != c.key and o.sensor != c.sensor]
+        mg = max([int(gaps[o.key][0].value) for o in unit.components])
         sib = _sibling_moving(t, others, mg)
-        thr = choose_threshold(L, configured=c.threshold, floor=floor, sibling_moving=sib,
-                               groups=groups[c.key])
-        out[c.key] = _finish(c, prep[c.key], thr, start=start, end=end, max_gap=max_gap,
-                             settings=settings, warnings=fw)
+        thr = choose_threshold(Lg, configured=c.threshold, floor=floor, sibling_moving=sib,
+                               groups=groups[c.key], **_learning_settings(settings, step, t))
+        out[c.key] = _finish(c, levels, thr, start=start, end=end, max_gap=gap,
+                             settings=settings, warnings=fw + tw)
     return out
