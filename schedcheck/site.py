@@ -95,7 +95,9 @@ class EnergySettings:
     price: float = 0.0            # per kWh [currency/kWh]
     currency: str = ""
     co2_per_kwh: float = 0.0      # [kg CO2e/kWh]
-    exponent: float = 3.0         # fan affinity law exponent, power against speed [-]
+    # fan affinity law exponent, power against speed [-]: the cube law (U.S. DOE Motor Systems
+    # Tip Sheet #11); audit/energy.py takes its DEFAULT_EXPONENT from here
+    exponent: float = 3.0
 
 
 @dataclass(frozen=True)

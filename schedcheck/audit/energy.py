@@ -32,9 +32,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from schedcheck.site import EnergySettings
+
 #: Affinity-law exponent of power against speed. Source: the fan laws, power ~ speed cubed
-#: (U.S. DOE Motor Systems Tip Sheet #11; see the module docstring).
-DEFAULT_EXPONENT = 3.0
+#: (U.S. DOE Motor Systems Tip Sheet #11; see the module docstring). Defined once, as the
+#: site file's default.
+DEFAULT_EXPONENT = EnergySettings.exponent
 
 #: Accepted exponents, inclusive [-]. The exponent is 3 in theory; measured fan systems fall
 #: between about 1.5 (a VAV system holding static pressure) and 3.5 (common practice, no source).
