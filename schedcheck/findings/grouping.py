@@ -105,6 +105,8 @@ def group_by_unit(
         :data:`GROUPED_COLUMNS`, one row per unit finding, sorted by start, unit and kind.
     """
     f = findings.reset_index(drop=True)
+    if len(f) == 0:
+        return pd.DataFrame({c: pd.Series([], dtype=object) for c in GROUPED_COLUMNS})
     if "date" not in f or f["date"].isna().any():
         f["date"] = [pd.Timestamp(s).tz_convert(tz).date().isoformat() for s in f["start"]]
     if "detail_template" not in f:
@@ -117,8 +119,6 @@ def group_by_unit(
         idx = part.index.to_numpy()
         for g in _groups(s[idx], e[idx], tol):
             rows.append(_joined(f.loc[idx[g]], lead_of, describe))
-    if not rows:
-        return pd.DataFrame({c: pd.Series([], dtype=object) for c in GROUPED_COLUMNS})
     out = pd.DataFrame(rows)
     out = out.sort_values(["start", "unit", "kind"], kind="stable").reset_index(drop=True)
     out["id"] = _ids(out)
