@@ -67,10 +67,12 @@ def headline_lines(result) -> list[str]:
              + (f" ({n_comp} per component)." if n_comp != len(result.findings) else ".")]
     p = result.projection or {}
     if p.get("yearly_cost") is not None:
-        lines.append(f"Recurring patterns: about {p['yearly_cost']:,.0f} {cur} a year; "
-                     f"one-off events in this window: {p['one_off_cost']:,.0f} {cur} "
-                     "(not scaled to a year).")
-    if p.get("basis"):
+        from schedcheck.findings.projection import pattern_words
+
+        lines.append(f"Recurring patterns ({pattern_words(p['recurring'])}): about "
+                     f"{p['yearly_cost']:,.0f} {cur} a year; one-off events in this window: "
+                     f"{p['one_off_cost']:,.0f} {cur} (not scaled to a year).")
+    elif p.get("basis"):
         lines.append(str(p["basis"]))
     return lines
 

@@ -105,6 +105,12 @@ def project_year(
     return out
 
 
+def pattern_words(recurring: list[dict]) -> str:
+    """The recurring patterns in words: ``AHU-1 holiday running on 6 dates in 4 weeks``."""
+    return "; ".join(f"{r.get('unit')} {str(r.get('kind')).replace('_', ' ')} running on "
+                     f"{r.get('dates')} dates in {r.get('weeks')} weeks" for r in recurring)
+
+
 def _basis(p: dict, ndays: int, weeks: int) -> str:
     if p["recurring"]:
         n = len(p["recurring"])

@@ -18,6 +18,7 @@ import pandas as pd
 from markupsafe import Markup
 
 from schedcheck.errors import InputError
+from schedcheck.findings.projection import pattern_words
 from schedcheck.outputs import svg
 from schedcheck.outputs.histogram import histogram_svg
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
@@ -277,7 +278,8 @@ def _projection(p: dict | None) -> dict:
     p = p if isinstance(p, dict) else {}
     return {"yearly_cost": p.get("yearly_cost"), "basis": str(p.get("basis") or ""),
             "one_off_cost": p.get("one_off_cost"), "recurring": list(p.get("recurring") or []),
-            "known": bool(p)}
+            "patterns": pattern_words(p.get("recurring") or []), "known": bool(p)}
+
 
 
 SPEED_STEP = 0.05  # speed fraction +/- for the sensitivity line (common practice, no source)

@@ -58,3 +58,29 @@ def test_ids_are_unique_and_name_unit_kind_and_local_date(demo_audit):
     for f in s["findings"]:
         assert f["id"].startswith(f"{f['unit']}-{f['kind']}-{f['date']}")
         assert f["start"][:10] == f["date"]
+
+
+def test_headline_counts_unit_hours_and_projects_only_the_recurring_pattern(demo_audit):
+    from schedcheck.cli.audit import headline_lines
+
+    out = demo_audit.result.outdir
+    s = json.loads((out / "summary.json").read_text())
+    t = s["totals"]
+    # fans of one unit counted once: fewer unit-hours than component-hours, never fewer than
+    # the largest component's
+    assert max(c["hours"]["off_schedule"] for c in s["components"]) <= t["unit_hours"]
+    assert t["unit_hours"] < t["component_hours"] == pytest.approx(t["off_schedule"])
+    assert t["findings"] < t["component_findings"]
+    p = s["projection"]
+    # the demo's holiday running on AHU-1 (planted on 6 days off in 4 weeks) recurs; the
+    # 27-day continuous run of AHU-4 and the clock offset of AHU-3 are one-off events
+    assert [(r["unit"], r["kind"]) for r in p["recurring"]] == [("AHU-1", "holiday")]
+    assert "AHU-4-continuous-2026-04-20" in p["one_off"]
+    assert p["one_off_cost"] + sum(r["cost"] for r in p["recurring"]) == pytest.approx(
+        sum(f["cost"] for f in s["findings"]), abs=0.05)
+    page = (out / "report.html").read_text(encoding="utf-8")
+    assert f"{t['unit_hours']:,.1f} unit-hours" in page
+    assert f"{p['yearly_cost']:,.0f} NOK a year" in page
+    assert all(f["id"] in page for f in s["findings"])
+    lines = "\n".join(headline_lines(demo_audit.result))
+    assert f"{t['unit_hours']:,.1f} unit-hours" in lines and "a year" in lines
