@@ -131,6 +131,9 @@ class FindingSettings:
     max_pause: pd.Timedelta | None = None          # shorter stops do not end an episode
     min_overrun: pd.Timedelta | None = None        # shorter early starts / late stops are ignored
     repeat_days: int | None = field(default=None, metadata={"min": 1})  # overrun days a week
+    together: pd.Timedelta | None = None           # one unit's findings this close are one
+    recurring_dates: int | None = field(default=None, metadata={"min": 1})  # dates of a pattern
+    recurring_weeks: int | None = field(default=None, metadata={"min": 1})  # weeks of a pattern
 
 
 @dataclass(frozen=True)

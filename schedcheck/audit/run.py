@@ -28,12 +28,15 @@ import pandas as pd
 from schedcheck.audit.accounting import ComponentAccount, ScheduleSets, account
 from schedcheck.audit.energy import affinity_power, price
 from schedcheck.errors import TableError
-from schedcheck.findings.find import energy_words, find_in_sets
-from schedcheck.intervals import NS_PER_H, to_ns
+from schedcheck.findings.find import energy_words, find_in_sets, resolved
+from schedcheck.findings.grouping import group_by_unit
+from schedcheck.findings.projection import project_year
+from schedcheck.intervals import NS_PER_H, to_ns, union_all
 from schedcheck.readings.cleaning import SensorHealth
 from schedcheck.runstate.classify import ComponentStates
 from schedcheck.runstate.onofflevel import Threshold
 from schedcheck.runstate.states import NO_DATA_WARN
+from schedcheck.schedule.daysoff import days_off as days_off_between
 from schedcheck.schedule.intended import UnitSchedule
 from schedcheck.site import Component, Site, Unit
 from schedcheck.window import last_local_date
@@ -76,13 +79,21 @@ class AuditResult:
     last_date: dt.date                # last local date (inclusive)
     components: list[ComponentResult]
     schedules: dict[str, UnitSchedule]  # unit id -> its intended schedule
-    findings: pd.DataFrame            # FINDING_COLUMNS, start/end UTC
+    findings: pd.DataFrame            # one per unit and problem (findings.grouping), UTC
     health: dict[str, SensorHealth] = field(default_factory=dict)   # sensor -> data health
     bad_rows: dict[str, object] = field(default_factory=lambda: {"count": 0, "examples": []})
     warnings: list[str] = field(default_factory=list)
     generated: pd.Timestamp = field(default_factory=lambda: pd.Timestamp.now("UTC").floor("s"))
     outdir: Path | None = None        # set by the job once the files are written
     files: dict[str, Path] = field(default_factory=dict)         # file name -> Path
+    component_findings: pd.DataFrame | None = None   # FINDING_COLUMNS, one per component
+    unit_hours: dict[str, float] = field(default_factory=dict)   # unit -> off-schedule unit-h
+    projection: dict = field(default_factory=dict)   # findings.projection.project_year
+
+    @property
+    def component_hours(self) -> float:
+        """Off-schedule running summed over every component [h]."""
+        return sum(c.account.ns["off_schedule"] for c in self.components) / NS_PER_H
 
     def component(self, key: str) -> ComponentResult:
         for c in self.components:
@@ -195,8 +206,53 @@ def run_audit(
         health=dict(health or {}), bad_rows=bad_rows or {"count": 0, "examples": []},
         warnings=all_warnings,
     )
-    result.findings = price_findings((find or collect_findings)(result), result)
+    result.component_findings = price_findings((find or collect_findings)(result), result)
+    result.findings = unit_findings(result.component_findings, result)
+    result.unit_hours = unit_off_schedule_hours(result)
+    result.projection = projection(result)
     return result
+
+
+def unit_findings(component_findings: pd.DataFrame, result: AuditResult) -> pd.DataFrame:
+    """One finding per unit and problem (:func:`schedcheck.findings.grouping.group_by_unit`),
+    with the site's ``[findings] together`` tolerance and the unit's energy in the sentence."""
+    site = result.site
+    en = site.energy
+    p = resolved(site.findings)
+    unit_of = {c.key: c.unit.id for c in result.components}
+    lead_of = {u.id: u.state_component.key for u in site.units if u.state_component is not None}
+    return group_by_unit(component_findings, unit_of, lead_of, site.timezone,
+                         together=p.together,
+                         describe=lambda k, c: energy_words(k, c, en.price, en.currency))
+
+
+def unit_off_schedule_hours(result: AuditResult) -> dict[str, float]:
+    """Unit id -> unit-hours off schedule: the hours in which at least one of the unit's
+    components ran off-schedule (the union of their off-schedule running) [h]."""
+    out: dict[str, float] = {}
+    for unit in result.site.units:
+        sets = [c.account.off_schedule for c in result.components if c.unit.id == unit.id]
+        out[unit.id] = union_all(sets).duration_ns() / NS_PER_H if sets else 0.0
+    return out
+
+
+# Days off that count for a yearly holiday pattern: those on Monday to Friday, where a unit
+# whose controller lacks the holiday calendar runs its working-day program. Common practice,
+# no source.
+WORKING_WEEKDAYS = 5
+
+
+def projection(result: AuditResult) -> dict:
+    """The honest yearly projection (:func:`schedcheck.findings.projection.project_year`)."""
+    site = result.site
+    p = resolved(site.findings)
+    year = days_off_between(site.holidays, result.first_date,
+                            result.first_date + dt.timedelta(days=364), path=site.path)
+    dates = {d if type(d) is dt.date else pd.Timestamp(d).date() for d in year["date"]}
+    weekdays = sum(1 for d in dates if d.weekday() < WORKING_WEEKDAYS)
+    return project_year(result.findings, result.first_date, result.last_date,
+                        days_off_in_year=weekdays, recurring_dates=p.recurring_dates,
+                        recurring_weeks=p.recurring_weeks)
 
 
 def empty_findings() -> pd.DataFrame:
@@ -261,6 +317,7 @@ def price_findings(found: pd.DataFrame | None, result: AuditResult) -> pd.DataFr
     for col, computed in (("kwh", p.kwh), ("cost", p.cost), ("co2_kg", p.co2_kg)):
         given = f[col].astype(float) if col in f else pd.Series(np.nan, index=f.index)
         f[col] = given.fillna(pd.Series(np.atleast_1d(computed)))
+    f["detail_template"] = f["detail"].astype(str)
     f["detail"] = [str(d).replace("{energy}", energy_words(k, c, en.price, en.currency))
                    for d, k, c in zip(f["detail"], f["kwh"].tolist(), f["cost"].tolist(),
                                       strict=True)]

@@ -33,7 +33,10 @@ def summary_table(result) -> object:
              "Off-\nsched.\nkWh", f"Cost\n{cur}".strip(), "Find-\nings")
     for h in heads:
         table.add_column(h, justify="right", overflow="fold")
-    counts = result.findings["component"].value_counts().to_dict()
+    counts: dict[str, int] = {}
+    for comps in result.findings["components"]:
+        for key in comps:
+            counts[key] = counts.get(key, 0) + 1
     tot = [0.0] * len(heads)
     for comp in result.components:
         ns = comp.account.ns
@@ -47,8 +50,31 @@ def summary_table(result) -> object:
                       f"{vals[4]:.1f}", f"{vals[5]:.0f}", f"{vals[6]:.0f}", str(vals[7]))
     table.add_section()
     table.add_row("Total", *[f"{v:.1f}" for v in tot[:5]], f"{tot[5]:.0f}", f"{tot[6]:.0f}",
-                  str(int(tot[7])), style="bold")
+                  str(len(result.findings)), style="bold")
     return table
+
+
+def headline_lines(result) -> list[str]:
+    """Unit-hours (component-hours beside them where they differ) and the yearly projection."""
+    unit_h = sum(result.unit_hours.values())
+    comp_h = result.component_hours
+    cur = result.site.energy.currency
+    line = f"Off-schedule running: {unit_h:,.1f} unit-hours"
+    if abs(comp_h - unit_h) >= 0.05:
+        line += f" ({comp_h:,.1f} component-hours: fans and wheels of one unit counted apart)"
+    n_comp = len(result.component_findings) if result.component_findings is not None else 0
+    lines = [line + ".", f"{len(result.findings)} finding(s), one per unit and problem"
+             + (f" ({n_comp} per component)." if n_comp != len(result.findings) else ".")]
+    p = result.projection or {}
+    if p.get("yearly_cost") is not None:
+        from schedcheck.findings.projection import pattern_words
+
+        lines.append(f"Recurring patterns ({pattern_words(p['recurring'])}): about "
+                     f"{p['yearly_cost']:,.0f} {cur} a year; one-off events in this window: "
+                     f"{p['one_off_cost']:,.0f} {cur} (not scaled to a year).")
+    elif p.get("basis"):
+        lines.append(str(p["basis"]))
+    return lines
 
 
 @app.command()
@@ -87,8 +113,9 @@ def audit(
         console.print(f"warning: {w}", markup=False, soft_wrap=True)
     if len(warnings) > 10:
         console.print(f"... and {len(warnings) - 10} more warnings in summary.json")
-    console.print(f"{len(result.findings)} finding(s). Files written to {result.outdir}:",
-                  markup=False, soft_wrap=True)
+    for line in headline_lines(result):
+        console.print(line, markup=False, soft_wrap=True)
+    console.print(f"Files written to {result.outdir}:", markup=False, soft_wrap=True)
     for name in ("report.html", "summary.json", "daily.csv", "runs.csv", "findings.csv",
                  "findings.ics", "schedule.csv"):
         if name in result.files:

@@ -68,7 +68,9 @@ from schedcheck.audit.accounting import ScheduleSets
 from schedcheck.errors import InputError
 from schedcheck.findings import clock as findings_clock
 from schedcheck.findings import rules as findings_rules
+from schedcheck.findings.grouping import DEFAULT_TOGETHER
 from schedcheck.findings.kinds import KINDS  # noqa: F401 - re-exported
+from schedcheck.findings.projection import DEFAULT_RECURRING_DATES, DEFAULT_RECURRING_WEEKS
 from schedcheck.findings.rules import Context, Params
 from schedcheck.intervals import check_labels, from_ns, to_ns
 from schedcheck.runstate.states import StateSets
@@ -134,7 +136,16 @@ def default_settings() -> dict[str, object]:
         "max_pause": DEFAULT_MAX_PAUSE,
         "min_overrun": DEFAULT_MIN_OVERRUN,
         "repeat_days": DEFAULT_REPEAT_DAYS,
+        "together": DEFAULT_TOGETHER,
+        "recurring_dates": DEFAULT_RECURRING_DATES,
+        "recurring_weeks": DEFAULT_RECURRING_WEEKS,
     }
+
+
+def resolved(settings: FindingSettings | None) -> Params:
+    """The finding settings with the defaults filled in, checked (an InputError names the
+    ``findings.KEY`` that is out of range)."""
+    return _params(settings)
 
 
 def _params(settings: FindingSettings | None) -> Params:

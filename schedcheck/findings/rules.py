@@ -37,6 +37,9 @@ class Params:
     min_overrun: pd.Timedelta
     repeat_days: int
     no_data_bridge: pd.Timedelta
+    together: pd.Timedelta
+    recurring_dates: int
+    recurring_weeks: int
 
 
 @dataclass

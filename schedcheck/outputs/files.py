@@ -8,10 +8,7 @@ and ``summary.json`` also carries the exact ``seconds``).
 
 from __future__ import annotations
 
-import dataclasses
-import hashlib
 import json
-import math
 from pathlib import Path
 
 import numpy as np
@@ -21,67 +18,31 @@ from schedcheck import __version__ as _version
 from schedcheck.audit.accounting import FIGURES
 from schedcheck.audit.run import AuditResult
 from schedcheck.intervals import NS_PER_H, NS_PER_S, from_ns, to_ns
+from schedcheck.outputs.findings_files import (  # noqa: F401 - re-exported
+    FINDINGS_COLUMNS,
+    KIND_WORDS,
+    finding_records,
+    finding_uid,
+    findings_calendar,
+    findings_frame,
+    projection_record,
+)
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
+from schedcheck.outputs.values import (  # noqa: F401 - re-exported
+    COST_DECIMALS,
+    ENERGY_DECIMALS,
+    HOURS_DECIMALS,
+    _plain,
+    _r,
+    local_iso,
+)
 from schedcheck.runstate.states import STATES, StateSets
-
-HOURS_DECIMALS = 3      # 0.001 h = 3.6 s: finer than the one-minute readings
-ENERGY_DECIMALS = 3     # kWh and kg CO2e
-COST_DECIMALS = 2
 
 DAILY_COLUMNS = ("component", "date", "weekday", "day_off", "period_h", "scheduled_h",
                  "running_h", "in_schedule_h", "in_allowance_h", "off_schedule_h", "missed_h",
                  "off_h", "no_data_h", "first_start", "last_stop", "starts", "off_schedule_kwh")
 RUNS_COLUMNS = ("component", "state", "start", "end", "hours", "level")
-FINDINGS_COLUMNS = ("component", "kind", "start", "end", "hours", "kwh", "cost", "co2_kg",
-                    "detail")
 SCHEDULE_COLUMNS = ("unit", "kind", "start", "end", "source")
-
-#: plain words for each finding kind, used in calendar event titles
-KIND_WORDS = {
-    "night": "off-schedule running (working day or night)", "weekend": "weekend running",
-    "holiday": "holiday running",
-    "continuous": "continuous running", "clock_offset": "clock offset",
-    "early_start": "early starts", "late_stop": "late stops", "missed": "missed operation",
-    "short_cycling": "short cycling",
-}
-
-
-def local_iso(ts, tz: str) -> str:
-    """A UTC instant as local ISO 8601 with offset, to the second; '' for none."""
-    if ts is None or (not isinstance(ts, str) and pd.isna(ts)):
-        return ""
-    return pd.Timestamp(ts).tz_convert(tz).isoformat(timespec="seconds")
-
-
-def _r(x: float, nd: int) -> float:
-    x = float(x)
-    return round(x, nd) + 0.0 if math.isfinite(x) else None
-
-
-def _plain(value):
-    """JSON-safe scalars and containers from numpy/pandas/dataclass values."""
-    if dataclasses.is_dataclass(value) and not isinstance(value, type):
-        return {f.name: _plain(getattr(value, f.name)) for f in dataclasses.fields(value)}
-    if isinstance(value, dict):
-        return {str(k): _plain(v) for k, v in value.items()}
-    if isinstance(value, (list, tuple, np.ndarray, pd.Index, pd.Series)):
-        return [_plain(v) for v in list(value)]
-    if isinstance(value, (bool, np.bool_)):
-        return bool(value)
-    if isinstance(value, (int, np.integer)):
-        return int(value)
-    if isinstance(value, (float, np.floating)):
-        return _r(value, 6)
-    if isinstance(value, pd.Timedelta):
-        return value.total_seconds()
-    if isinstance(value, pd.Timestamp):
-        return None if pd.isna(value) else value.isoformat()
-    if value is None or (not isinstance(value, str) and pd.isna(value)):
-        return None
-    if hasattr(value, "isoformat"):
-        return value.isoformat()
-    return str(value)
-
 
 # -- summary.json ---------------------------------------------------------------------------
 
@@ -111,7 +72,7 @@ def _threshold(comp) -> dict:
 def _component_summary(comp, result: AuditResult) -> dict:
     acc = comp.account
     c = comp.component
-    n_find = int((result.findings["component"] == comp.key).sum())
+    n_find = sum(comp.key in list(c) for c in result.findings["components"])
     en = comp.energy
     return {
         "id": comp.key, "unit": c.unit, "name": comp.unit.name, "component": c.id,
@@ -179,25 +140,11 @@ def _days_off_rows(result: AuditResult) -> list[dict]:
     return rows
 
 
-def finding_records(result: AuditResult) -> list[dict]:
-    """The findings as JSON-ready records (local instants, rounded figures)."""
-    tz = result.site.timezone
-    out = []
-    for row in result.findings.itertuples(index=False):
-        out.append({
-            "component": row.component, "kind": row.kind,
-            "start": local_iso(row.start, tz), "end": local_iso(row.end, tz),
-            "hours": _r(row.hours, HOURS_DECIMALS), "kwh": _r(row.kwh, ENERGY_DECIMALS),
-            "cost": _r(row.cost, COST_DECIMALS), "co2_kg": _r(row.co2_kg, ENERGY_DECIMALS),
-            "detail": str(row.detail),
-        })
-    return out
-
-
 def _unit_summary(unit, result: AuditResult) -> dict:
     """A unit's entry: its state is its state component's (its supply fan where it has one)."""
     sc = unit.state_component
-    out = {"id": unit.id, "name": unit.name, "state_component": sc.key if sc else None}
+    out = {"id": unit.id, "name": unit.name, "state_component": sc.key if sc else None,
+           "off_schedule_unit_hours": _r(result.unit_hours.get(unit.id, 0.0), HOURS_DECIMALS)}
     if sc is not None:
         acc = result.component(sc.key).account
         out["hours"] = {k: _r(acc.ns[k] / NS_PER_H, HOURS_DECIMALS) for k in FIGURES}
@@ -217,6 +164,10 @@ def summary_dict(result: AuditResult) -> dict:
     total["off_schedule_co2_kg"] = _r(sum(c.energy["off_schedule_co2_kg"]
                                           for c in result.components), ENERGY_DECIMALS)
     total["findings"] = len(result.findings)
+    total["component_findings"] = (len(result.component_findings)
+                                   if result.component_findings is not None else None)
+    total["unit_hours"] = _r(sum(result.unit_hours.values()), HOURS_DECIMALS)
+    total["component_hours"] = _r(result.component_hours, HOURS_DECIMALS)
     return {
         "schema": SUMMARY_SCHEMA,
         "generated": result.generated.tz_convert("UTC").isoformat().replace("+00:00", "Z"),
@@ -233,6 +184,7 @@ def summary_dict(result: AuditResult) -> dict:
         "components": comps,
         "totals": total,
         "findings": finding_records(result),
+        "projection": projection_record(result),
         "sensors": _sensor_rows(result),
         "days_off": _days_off_rows(result),
         "bad_rows": _plain(result.bad_rows),
@@ -310,12 +262,6 @@ def _state_frame(states: StateSets) -> pd.DataFrame:
     return out.reset_index(drop=True)
 
 
-def findings_frame(result: AuditResult) -> pd.DataFrame:
-    """The rows of ``findings.csv``."""
-    recs = finding_records(result)
-    return pd.DataFrame(recs, columns=list(FINDINGS_COLUMNS))
-
-
 def schedule_frame(result: AuditResult) -> pd.DataFrame:
     """The rows of ``schedule.csv``: each unit's intended intervals inside the window."""
     tz = result.site.timezone
@@ -336,49 +282,6 @@ def schedule_frame(result: AuditResult) -> pd.DataFrame:
 def _write_csv(frame: pd.DataFrame, path: Path) -> Path:
     frame.to_csv(path, index=False, encoding="utf-8", lineterminator="\n")
     return path
-
-
-# -- findings.ics ---------------------------------------------------------------------------
-
-def finding_uid(component: str, kind: str, start: pd.Timestamp) -> str:
-    """A UID that stays the same for the same finding in a later audit (RFC 5545 3.8.4.7)."""
-    key = f"{component}|{kind}|{pd.Timestamp(start).tz_convert('UTC').isoformat()}"
-    return hashlib.sha1(key.encode("utf-8")).hexdigest()[:24] + "@schedcheck.invalid"
-
-
-def findings_calendar(result: AuditResult) -> bytes:
-    """The findings as an iCalendar (RFC 5545) file, one VEVENT per finding, times in UTC."""
-    import icalendar
-
-    cal = icalendar.Calendar()
-    cal.add("prodid", f"-//schedcheck//audit findings {_version}//EN")
-    cal.add("version", "2.0")
-    cal.add("calscale", "GREGORIAN")
-    cal.add("name", f"{result.site.name}: schedule findings")   # RFC 7986 section 5.1
-    stamp = result.generated.tz_convert("UTC").to_pydatetime()
-    for row in result.findings.itertuples(index=False):
-        ev = icalendar.Event()
-        ev.add("uid", finding_uid(row.component, row.kind, row.start))
-        ev.add("dtstamp", stamp)
-        ev.add("dtstart", pd.Timestamp(row.start).tz_convert("UTC").floor("s").to_pydatetime())
-        ev.add("dtend", pd.Timestamp(row.end).tz_convert("UTC").ceil("s").to_pydatetime())
-        words = KIND_WORDS.get(row.kind, str(row.kind).replace("_", " "))
-        ev.add("summary", f"{row.component}: {words}, {row.hours:.1f} h")
-        ev.add("description", str(row.detail))
-        ev.add("categories", [str(row.kind)])
-        ev.add("transp", "TRANSPARENT")
-        cal.add_component(ev)
-    if len(result.findings) == 0:
-        # RFC 5545 section 3.6 needs at least one component in a calendar; a journal entry
-        # records the clean audit without putting anything in anyone's diary.
-        note = icalendar.Journal()
-        note.add("uid", finding_uid(result.site.name, "no_findings", result.start))
-        note.add("dtstamp", stamp)
-        note.add("dtstart", result.first_date)
-        note.add("summary", f"{result.site.name}: no findings from {result.first_date} to "
-                            f"{result.last_date}")
-        cal.add_component(note)
-    return cal.to_ical()
 
 
 # -- all of them ----------------------------------------------------------------------------

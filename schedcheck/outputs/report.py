@@ -18,6 +18,7 @@ import pandas as pd
 from markupsafe import Markup
 
 from schedcheck.errors import InputError
+from schedcheck.findings.projection import pattern_words
 from schedcheck.outputs import svg
 from schedcheck.outputs.histogram import histogram_svg
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
@@ -158,10 +159,17 @@ def _findings(data: SavedAudit, comps: dict[str, dict]) -> list[dict]:
         return []
     f["sort_cost"] = f["cost"].fillna(0.0) if "cost" in f else 0.0
     f = f.sort_values(["sort_cost", "kwh", "hours"], ascending=False, kind="stable")
+    records = {str(r.get("id")): r for r in data.summary.get("findings") or [] if r.get("id")}
     out = []
     for row in f.itertuples(index=False):
         comp = comps.get(row.component, {})
+        rec = records.get(str(getattr(row, "id", "")), {})
+        members = [str(c) for c in rec.get("components") or [row.component]]
         out.append({
+            "id": str(getattr(row, "id", "") or ""), "components": members,
+            "unit": rec.get("unit") or comp.get("unit") or row.component.split("/")[0],
+            "parts": rec.get("parts") or [],
+            "component_hours": rec.get("component_hours", row.hours),
             "component": row.component, "unit_name": comp.get("unit_name", ""),
             "kind": KIND_LABELS.get(row.kind, row.kind), "kind_code": row.kind,
             "when": _span(row.start, row.end, data.timezone), "hours": row.hours, "kwh": row.kwh,
@@ -180,13 +188,14 @@ def _asks(findings: list[dict], comps: dict[str, dict]) -> list[dict]:
     groups: dict[tuple[str, str], dict] = {}
     for f in findings:
         comp = comps.get(f["component"], {})
-        unit = comp.get("unit") or f["component"].split("/")[0]
+        unit = f["unit"]
         g = groups.setdefault((unit, f["kind_code"]), {
             "unit": unit, "unit_name": comp.get("unit_name", ""), "components": [],
             "kind": f["kind"], "count": 0, "hours": 0.0, "cost": 0.0, "kwh": 0.0,
             "priced": f["kind_code"] != "missed"})
-        if f["component"] not in g["components"]:
-            g["components"].append(f["component"])
+        for member in f["components"]:
+            if member not in g["components"]:
+                g["components"].append(member)
         g["count"] += 1
         g["hours"] += f["hours"] or 0.0
         g["kwh"] += f["kwh"] or 0.0
@@ -239,7 +248,9 @@ def report_context(data: SavedAudit) -> dict:
     }
     totals["no_data_share"] = (totals["no_data_h"] / totals["period_h"]
                                if totals["period_h"] else 0.0)
-    totals["per_year_cost"] = totals["off_schedule_cost"] * 365.0 / ndays if ndays else 0.0
+    saved_totals = s.get("totals") or {}
+    totals["unit_h"] = saved_totals.get("unit_hours", totals["off_schedule_h"])
+    totals["hours_differ"] = abs(totals["off_schedule_h"] - (totals["unit_h"] or 0.0)) >= 0.05
     totals.update(_sensitivity(comps))
     return {
         "site": site, "currency": site.get("currency") or "", "price": site.get("price"),
@@ -249,6 +260,8 @@ def report_context(data: SavedAudit) -> dict:
         "totals": totals, "findings": findings[:FINDINGS_SHOWN],
         "findings_hidden": findings[FINDINGS_SHOWN:], "n_findings": len(findings),
         "asks": _asks(findings, by_id),
+        "projection": _projection(s.get("projection")),
+        "n_component_findings": (s.get("totals") or {}).get("component_findings"),
         "sensors": _sensors(s.get("sensors") or [], data.timezone),
         "days_off": _days_off_rows(days_off, [u["id"] for u in units]),
         "bad_rows": s.get("bad_rows") or {}, "warnings": s.get("warnings") or [],
@@ -258,6 +271,15 @@ def report_context(data: SavedAudit) -> dict:
         "intended": _intended(data.schedule, units),
         "uncertain": [c["id"] for c in comps if c["threshold"].get("confidence") == "low"],
     }
+
+
+def _projection(p: dict | None) -> dict:
+    """summary.json's projection for the headline; an audit saved before it had none."""
+    p = p if isinstance(p, dict) else {}
+    return {"yearly_cost": p.get("yearly_cost"), "basis": str(p.get("basis") or ""),
+            "one_off_cost": p.get("one_off_cost"), "recurring": list(p.get("recurring") or []),
+            "patterns": pattern_words(p.get("recurring") or []), "known": bool(p)}
+
 
 
 SPEED_STEP = 0.05  # speed fraction +/- for the sensitivity line (common practice, no source)

@@ -307,8 +307,10 @@ def test_cli_demo_audits_what_it_wrote(tmp_path, capsys):
     """End to end on one month: the only planted fault then is AHU-2's night override."""
     assert main(["demo", str(tmp_path / "d"), "--months", "1"]) == 0
     summary = json.loads((tmp_path / "d/audit/summary.json").read_text())
-    kinds = {(f["component"], f["kind"]) for f in summary["findings"]}
+    # one finding per unit and problem: each night names all three components of AHU-2
+    kinds = {(c, f["kind"]) for f in summary["findings"] for c in f["components"]}
     assert kinds == {(c, "night") for c in ("AHU-2/supply", "AHU-2/exhaust", "AHU-2/wheel")}
+    assert {f["unit"] for f in summary["findings"]} == {"AHU-2"}
     truth = read_demo_truth(tmp_path / "d")
     for comp in summary["components"]:
         planted = sum(f["hours"] for f in truth.faults_of(comp["id"]))

@@ -156,7 +156,8 @@ def test_findings_ics_reads_back_with_icalendar(result, tmp_path):
     assert "check the time program" in str(ev["description"])
     assert ev.decoded("dtstart") == t("2026-10-24 08:00").to_pydatetime()
     assert ev.decoded("dtend") == t("2026-10-25 12:00").to_pydatetime()
-    assert str(ev["uid"]) == finding_uid("AHU-9/supply", "weekend", t("2026-10-24 08:00"))
+    # the UID is the finding's id (unit, kind, local date) plus the site's hash
+    assert str(ev["uid"]) == finding_uid(result.site.name, "AHU-9-weekend-2026-10-24")
     assert "DTSTAMP" in ev
     assert "schedule findings" in str(cal["name"])  # RFC 7986 NAME
     # RFC 5545 3.1: content lines are folded at 75 octets and end in CRLF
@@ -172,8 +173,9 @@ def test_schedule_csv_and_findings_csv(result, tmp_path):
                                       "end": "2026-10-26T17:00:00+01:00",
                                       "source": "office.ics"}]
     f = pd.read_csv(files["findings.csv"])
-    assert list(f.columns) == ["component", "kind", "start", "end", "hours", "kwh", "cost",
-                               "co2_kg", "detail"]
+    assert list(f.columns) == ["id", "unit", "component", "components", "kind", "start", "end",
+                               "hours", "component_hours", "kwh", "cost", "co2_kg",
+                               "kwh_by_component", "detail"]
     assert f["cost"].iloc[0] == pytest.approx(148.48)
 
 

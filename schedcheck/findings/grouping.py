@@ -1,0 +1,165 @@
+"""One finding per unit and problem: the components of a unit that move together.
+
+The finding rules run per component, so a unit whose supply and exhaust fans (and heat wheel)
+are kept on by one time program gives one finding per component for one problem. The
+:func:`group_by_unit` step joins them: findings of **one unit and one kind whose spans overlap,
+or lie within** ``together`` **of each other** (default :data:`DEFAULT_TOGETHER`, the setting
+``[findings] together``) are one finding. Joining is transitive (A with B and B with C make one).
+
+The joined finding carries:
+
+- ``id``: ``UNIT-KIND-YYYY-MM-DD`` from the unit, the kind and the local date it began (a
+  second finding of the same unit, kind and date gets ``-2``, a third ``-3``, in order of
+  start), so the same finding keeps its id when the audit window changes;
+- ``unit``, ``components`` (the components involved, the unit's state component first) and
+  ``component`` (the first of them, as interface.md section 4 asks for one);
+- ``start`` / ``end``: the earliest start and the latest end of its parts;
+- ``hours``: unit-hours, the longest of its parts' hours (a unit running off-schedule for an
+  hour is one unit-hour however many of its components ran), and ``component_hours``, their sum;
+- ``kwh``, ``cost``, ``co2_kg``: the sums of the parts, and ``parts``: each component's own
+  ``component, start, end, hours, kwh, cost, co2_kg``;
+- ``detail``: the sentence of the lead part (the state component's, else the longest), with
+  the unit's energy and, where more than one component is involved, each one's energy.
+"""
+
+from __future__ import annotations
+
+import re
+
+import numpy as np
+import pandas as pd
+
+from schedcheck.intervals import to_ns
+
+# Findings of one unit and kind this close in time are one problem. Common practice, no
+# source: fans of one unit that share a time program start and stop within a minute or two
+# of each other; half an hour also joins a wheel that follows its fans with a delay, and is
+# far shorter than the gap between two nights.
+DEFAULT_TOGETHER = pd.Timedelta("30min")
+
+#: Columns of :func:`group_by_unit`'s table, in order (more may follow).
+GROUPED_COLUMNS = ("id", "unit", "component", "components", "kind", "start", "end", "date",
+                   "hours", "component_hours", "kwh", "cost", "co2_kg", "detail", "parts")
+
+PART_FIELDS = ("component", "start", "end", "hours", "kwh", "cost", "co2_kg")
+
+
+def finding_id(unit: str, kind: str, date: str) -> str:
+    """A readable id from the unit, the kind and the local date the finding began.
+
+    Characters other than letters, digits, ``.``, ``_`` and ``-`` become ``-`` so the id is
+    safe in a file name, a CSV cell and an iCalendar UID (RFC 5545 section 3.8.4.7 asks only
+    for a globally unique text).
+    """
+    safe = re.sub(r"[^A-Za-z0-9._-]+", "-", str(unit)).strip("-") or "unit"
+    return f"{safe}-{kind}-{date}"
+
+
+def _groups(starts: np.ndarray, ends: np.ndarray, tol: int) -> list[list[int]]:
+    """Indices (sorted by start) joined where a span begins within ``tol`` of the reach so far."""
+    order = np.argsort(starts, kind="stable")
+    out: list[list[int]] = []
+    reach = None
+    for i in order.tolist():
+        if reach is not None and starts[i] <= reach + tol:
+            out[-1].append(i)
+            reach = max(reach, int(ends[i]))
+        else:
+            out.append([i])
+            reach = int(ends[i])
+    return out
+
+
+def group_by_unit(
+    findings: pd.DataFrame,
+    unit_of: dict[str, str],
+    lead_of: dict[str, str],
+    tz: str,
+    *,
+    together: pd.Timedelta = DEFAULT_TOGETHER,
+    describe=None,
+) -> pd.DataFrame:
+    """Join per-component findings into one finding per unit and problem.
+
+    Parameters
+    ----------
+    findings : DataFrame
+        Priced per-component findings: ``component, kind, start, end`` (UTC), ``hours`` [h],
+        ``kwh`` [kWh], ``cost`` [currency], ``co2_kg`` [kg] and ``detail``; an optional
+        ``detail_template`` (the sentence with ``{energy}`` still in it) and ``date`` (local
+        ISO date the finding began; derived from ``start`` when absent).
+    unit_of : dict
+        Component key -> unit id.
+    lead_of : dict
+        Unit id -> its state component's key (the supply fan where it has one).
+    tz : str
+        The site's IANA zone (local dates of the ids).
+    together : Timedelta
+        Findings of one unit and kind whose spans overlap or lie this close are one [duration].
+    describe : callable, optional
+        ``describe(kwh, cost) -> str``: the words that replace ``{energy}`` in the sentence.
+
+    Returns
+    -------
+    DataFrame
+        :data:`GROUPED_COLUMNS`, one row per unit finding, sorted by start, unit and kind.
+    """
+    f = findings.reset_index(drop=True)
+    if len(f) == 0:
+        return pd.DataFrame({c: pd.Series([], dtype=object) for c in GROUPED_COLUMNS})
+    if "date" not in f or f["date"].isna().any():
+        f["date"] = [pd.Timestamp(s).tz_convert(tz).date().isoformat() for s in f["start"]]
+    if "detail_template" not in f:
+        f["detail_template"] = f["detail"] if "detail" in f else ""
+    f["unit"] = f["component"].map(unit_of)
+    s, e = np.asarray(to_ns(f["start"])), np.asarray(to_ns(f["end"]))
+    tol = int(pd.Timedelta(together).value)
+    rows: list[dict] = []
+    for (_unit, _kind), part in f.groupby(["unit", "kind"], sort=False):
+        idx = part.index.to_numpy()
+        for g in _groups(s[idx], e[idx], tol):
+            rows.append(_joined(f.loc[idx[g]], lead_of, describe))
+    out = pd.DataFrame(rows)
+    out = out.sort_values(["start", "unit", "kind"], kind="stable").reset_index(drop=True)
+    out["id"] = _ids(out)
+    return out[list(GROUPED_COLUMNS)]
+
+
+def _joined(part: pd.DataFrame, lead_of: dict[str, str], describe) -> dict:
+    unit = str(part["unit"].iloc[0])
+    lead_key = lead_of.get(unit)
+    by_hours = part.sort_values(["hours", "start"], ascending=[False, True], kind="stable")
+    lead = (part[part["component"] == lead_key].iloc[0] if (part["component"] == lead_key).any()
+            else by_hours.iloc[0])
+    comps = list(dict.fromkeys([lead["component"]] + part.sort_values(
+        "start", kind="stable")["component"].tolist()))
+    kwh, cost, co2 = (float(part[c].fillna(0.0).sum()) for c in ("kwh", "cost", "co2_kg"))
+    parts = []
+    for key in comps:
+        mine = part[part["component"] == key]
+        parts.append({"component": key, "start": mine["start"].min(), "end": mine["end"].max(),
+                      "hours": float(mine["hours"].sum()), "kwh": float(mine["kwh"].sum()),
+                      "cost": float(mine["cost"].fillna(0.0).sum()),
+                      "co2_kg": float(mine["co2_kg"].fillna(0.0).sum())})
+    detail = str(lead["detail_template"])
+    if describe is not None:
+        detail = detail.replace("{energy}", describe(kwh, cost))
+    if len(comps) > 1:
+        shown = ", ".join(
+            f"{p['component']}" + (f" {p['kwh']:,.1f} kWh" if kwh > 0 else "") for p in parts)
+        detail += f" Components involved: {shown}."
+    first = part.sort_values("start", kind="stable").iloc[0]
+    return {"unit": unit, "component": comps[0], "components": comps, "kind": lead["kind"],
+            "start": part["start"].min(), "end": part["end"].max(), "date": first["date"],
+            "hours": float(part["hours"].max()), "component_hours": float(part["hours"].sum()),
+            "kwh": kwh, "cost": cost, "co2_kg": co2, "detail": detail, "parts": parts}
+
+
+def _ids(out: pd.DataFrame) -> list[str]:
+    seen: dict[str, int] = {}
+    ids = []
+    for unit, kind, date in zip(out["unit"], out["kind"], out["date"], strict=True):
+        base = finding_id(unit, kind, str(date))
+        seen[base] = seen.get(base, 0) + 1
+        ids.append(base if seen[base] == 1 else f"{base}-{seen[base]}")
+    return ids
