@@ -83,6 +83,7 @@ class AuditResult:
     generated: pd.Timestamp = field(default_factory=lambda: pd.Timestamp.now("UTC").floor("s"))
     outdir: Path | None = None        # set by the job once the files are written
     files: dict[str, Path] = field(default_factory=dict)         # file name -> Path
+    levels: pd.DataFrame | None = None  # per-minute levels behind findings (audit.evidence)
 
     def component(self, key: str) -> ComponentResult:
         for c in self.components:
