@@ -115,8 +115,9 @@ def strip_settings() -> dict:
 
 def css_string(text: str) -> Markup:
     """A CSS string literal of ``text``, safe inside ``<style>``: everything but letters,
-    digits and spaces is written as a CSS hex escape (CSS Syntax Level 3, 4.3.7)."""
-    body = "".join(c if (c.isalnum() or c == " ") else f"\\{ord(c):06x}" for c in str(text))
+    digits and spaces is written as a CSS hex escape ended by one space, which the escape
+    consumes (CSS Syntax Level 3, section 4.3.7)."""
+    body = "".join(c if (c.isalnum() or c == " ") else f"\\{ord(c):x} " for c in str(text))
     return Markup(f'"{body}"')
 
 
