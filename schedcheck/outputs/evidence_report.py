@@ -139,7 +139,12 @@ def provenance_rows(summary: dict) -> dict | None:
                 ", ".join(map(str, value)) if isinstance(value, list) else str(value))
             lines.append((prefix, shown or "–"))
 
-    walk("", prov.get("settings") or {})
+    settings = dict(prov.get("settings") or {})
+    units = settings.get("units")
+    if isinstance(units, dict):   # each component's figures are in the report's own tables
+        settings["units"] = {u: {k: v for k, v in (body or {}).items() if k != "components"}
+                             for u, body in units.items()}
+    walk("", settings)
     period = summary.get("period") or {}
     return {"version": prov.get("version", ""), "inputs": inputs,
             "total_bytes": sum(int(i.get("bytes") or 0) for i in inputs),
