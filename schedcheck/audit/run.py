@@ -86,6 +86,7 @@ class AuditResult:
     generated: pd.Timestamp = field(default_factory=lambda: pd.Timestamp.now("UTC").floor("s"))
     outdir: Path | None = None        # set by the job once the files are written
     files: dict[str, Path] = field(default_factory=dict)         # file name -> Path
+    levels: pd.DataFrame | None = None  # per-minute levels behind findings (audit.evidence)
     component_findings: pd.DataFrame | None = None   # FINDING_COLUMNS, one per component
     unit_hours: dict[str, float] = field(default_factory=dict)   # unit -> off-schedule unit-h
     projection: dict = field(default_factory=dict)   # findings.projection.project_year

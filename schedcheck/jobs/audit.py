@@ -14,8 +14,10 @@ import re
 from collections.abc import Callable
 from pathlib import Path
 
+from schedcheck.audit.evidence import evidence_levels
 from schedcheck.audit.run import AuditResult, run_audit
 from schedcheck.errors import InputError
+from schedcheck.inputs.provenance import provenance
 from schedcheck.inputs.readings_files import ReadingsSource
 from schedcheck.readings.window_clip import audit_window, clip_readings, window_warnings
 from schedcheck.site import Site
@@ -66,6 +68,10 @@ def audit_result(
         warnings=load_warnings + [str(w) for w in readings.warnings]
         + [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings],
     )
+    result.levels = evidence_levels(result.findings, {c.key: c.sensor for c in site.components},
+                                    readings.by_sensor, start, end,
+                                    run_starts={c.key: c.account.states.of("run").starts
+                                                for c in result.components})
     return result
 
 
@@ -135,8 +141,11 @@ def audit_site(
     say(f"writing files to {outdir}")
     if outdir.exists() and not outdir.is_dir():
         raise InputError("exists and is not a folder; give another --out", path=outdir)
+    say("hashing the input files")
+    prov = provenance(site)
     try:
-        result.files = write_audit_files(result, outdir)
+        result.files = write_audit_files(result, outdir, provenance=prov,
+                                         levels=result.levels)
         result.files["report.html"] = write_report_file(outdir)
     except OSError as e:
         raise InputError(f"cannot write the audit files here ({e.strerror or e})",

@@ -27,6 +27,7 @@ from schedcheck.outputs.findings_files import (  # noqa: F401 - re-exported
     findings_frame,
     projection_record,
 )
+from schedcheck.outputs.levels_file import LEVELS_FILE, write_levels
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
 from schedcheck.outputs.values import (  # noqa: F401 - re-exported
     COST_DECIMALS,
@@ -151,8 +152,9 @@ def _unit_summary(unit, result: AuditResult) -> dict:
     return out
 
 
-def summary_dict(result: AuditResult) -> dict:
-    """Everything ``summary.json`` holds, as a plain dict."""
+def summary_dict(result: AuditResult, provenance: dict | None = None) -> dict:
+    """Everything ``summary.json`` holds, as a plain dict (``provenance`` where given: see
+    :func:`schedcheck.inputs.provenance.provenance`)."""
     site, tz = result.site, result.site.timezone
     comps = [_component_summary(c, result) for c in result.components]
     total = {k: _r(sum(c.account.ns[k] for c in result.components) / NS_PER_H, HOURS_DECIMALS)
@@ -189,13 +191,13 @@ def summary_dict(result: AuditResult) -> dict:
         "days_off": _days_off_rows(result),
         "bad_rows": _plain(result.bad_rows),
         "warnings": list(result.warnings),
-    }
+    } | ({"provenance": _plain(provenance)} if provenance is not None else {})
 
 
-def write_summary(result: AuditResult, path: Path) -> Path:
+def write_summary(result: AuditResult, path: Path, provenance: dict | None = None) -> Path:
     """Write ``summary.json`` (UTF-8, indented)."""
-    path.write_text(json.dumps(summary_dict(result), indent=2, ensure_ascii=False) + "\n",
-                    encoding="utf-8")
+    text = json.dumps(summary_dict(result, provenance), indent=2, ensure_ascii=False)
+    path.write_text(text + "\n", encoding="utf-8")
     return path
 
 
@@ -286,15 +288,21 @@ def _write_csv(frame: pd.DataFrame, path: Path) -> Path:
 
 # -- all of them ----------------------------------------------------------------------------
 
-def write_audit_files(result: AuditResult, outdir: Path) -> dict[str, Path]:
+def write_audit_files(result: AuditResult, outdir: Path, *, provenance: dict | None = None,
+                      levels: pd.DataFrame | None = None) -> dict[str, Path]:
     """Write every data file of the audit into ``outdir`` (created if needed).
 
+    ``provenance`` goes into ``summary.json``; ``levels`` (from
+    :func:`schedcheck.audit.evidence.evidence_levels`) into ``levels.csv.gz``.
     Returns file name -> path; ``report.html`` is written separately (see ``outputs.report``).
     """
     outdir = Path(outdir)
     outdir.mkdir(parents=True, exist_ok=True)
-    files = {
-        "summary.json": write_summary(result, outdir / "summary.json"),
+    files = {}
+    if levels is not None:
+        files[LEVELS_FILE] = write_levels(levels, result.site.timezone, outdir / LEVELS_FILE)
+    files |= {
+        "summary.json": write_summary(result, outdir / "summary.json", provenance),
         "daily.csv": _write_csv(daily_frame(result), outdir / "daily.csv"),
         "runs.csv": _write_csv(runs_frame(result), outdir / "runs.csv"),
         "findings.csv": _write_csv(findings_frame(result), outdir / "findings.csv"),

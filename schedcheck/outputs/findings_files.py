@@ -80,8 +80,8 @@ def findings_frame(result: AuditResult) -> pd.DataFrame:
     """The rows of ``findings.csv``."""
     recs = finding_records(result)
     for r in recs:
-        r["components"] = " ".join(r["components"])
-        r["kwh_by_component"] = " ".join(f"{p['component']}={p['kwh']}" for p in r["parts"])
+        r["components"] = "; ".join(r["components"])
+        r["kwh_by_component"] = "; ".join(f"{p['component']}={p['kwh']}" for p in r["parts"])
     return pd.DataFrame(recs, columns=list(FINDINGS_COLUMNS))
 
 

@@ -17,9 +17,16 @@ import numpy as np
 import pandas as pd
 from markupsafe import Markup
 
+from schedcheck.audit.evidence import finding_keys
 from schedcheck.errors import InputError
 from schedcheck.findings.projection import pattern_words
 from schedcheck.outputs import svg
+from schedcheck.outputs.evidence_report import (
+    css_string,
+    evidence_strips,
+    provenance_rows,
+    strip_settings,
+)
 from schedcheck.outputs.histogram import histogram_svg
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
 
@@ -160,8 +167,9 @@ def _findings(data: SavedAudit, comps: dict[str, dict]) -> list[dict]:
     f["sort_cost"] = f["cost"].fillna(0.0) if "cost" in f else 0.0
     f = f.sort_values(["sort_cost", "kwh", "hours"], ascending=False, kind="stable")
     records = {str(r.get("id")): r for r in data.summary.get("findings") or [] if r.get("id")}
+    keys = finding_keys(data.findings)
     out = []
-    for row in f.itertuples(index=False):
+    for pos, row in zip(f.index, f.itertuples(index=False), strict=True):
         comp = comps.get(row.component, {})
         rec = records.get(str(getattr(row, "id", "")), {})
         members = [str(c) for c in rec.get("components") or [row.component]]
@@ -170,6 +178,7 @@ def _findings(data: SavedAudit, comps: dict[str, dict]) -> list[dict]:
             "unit": rec.get("unit") or comp.get("unit") or row.component.split("/")[0],
             "parts": rec.get("parts") or [],
             "component_hours": rec.get("component_hours", row.hours),
+            "key": keys[data.findings.index.get_loc(pos)],
             "component": row.component, "unit_name": comp.get("unit_name", ""),
             "kind": KIND_LABELS.get(row.kind, row.kind), "kind_code": row.kind,
             "when": _span(row.start, row.end, data.timezone), "hours": row.hours, "kwh": row.kwh,
@@ -224,6 +233,10 @@ def report_context(data: SavedAudit) -> dict:
     for c in comps:
         _charts(data, c, days_off)
     findings = _findings(data, by_id)
+    strips = evidence_strips(data, by_id, KIND_LABELS, _span)
+    shown = {st["key"]: st["anchor"] for st in strips}
+    for f in findings:
+        f["anchor"] = shown.get(f["key"])
     units = []
     for u in s.get("units") or [{"id": uid, "name": ""} for uid in dict.fromkeys(
             c["unit"] for c in comps)]:
@@ -270,6 +283,9 @@ def report_context(data: SavedAudit) -> dict:
         "dst_days": _dst_days(data.timezone, first, last),
         "intended": _intended(data.schedule, units),
         "uncertain": [c["id"] for c in comps if c["threshold"].get("confidence") == "low"],
+        "strips": strips, "strip": strip_settings(), "provenance": provenance_rows(s),
+        "page_footer": css_string(f"{site['name']} · {first:%d %b %Y} to {last:%d %b %Y}"
+                                  f" · audit made {_when(s.get('generated'))}"),
     }
 
 

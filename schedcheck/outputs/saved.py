@@ -21,6 +21,7 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.errors import InputError
+from schedcheck.outputs.levels_file import LEVELS_FILE, read_levels
 from schedcheck.outputs.schema import SUMMARY_SCHEMA as SCHEMA
 from schedcheck.runstate.states import STATES
 from schedcheck.schedule.kinds import SCHEDULE_KINDS
@@ -76,6 +77,8 @@ class SavedAudit:
         ``co2_kg`` [kg].
     schedule : DataFrame
         ``schedule.csv``; ``start``/``end`` UTC, ``kind`` one of occupied/allowance/allowed.
+    levels : DataFrame or None
+        ``levels.csv.gz`` (:mod:`schedcheck.outputs.levels_file`), None in a folder without.
     """
 
     outdir: Path
@@ -84,6 +87,7 @@ class SavedAudit:
     runs: pd.DataFrame
     findings: pd.DataFrame
     schedule: pd.DataFrame
+    levels: pd.DataFrame | None = None
 
     @property
     def timezone(self) -> str:
@@ -137,7 +141,8 @@ def read_saved_audit(outdir: str | Path) -> SavedAudit:
     frames = {name: read_csv_file(outdir / name) for name in _CSV_SPECS}
     return SavedAudit(outdir=outdir, summary=summary, daily=frames["daily.csv"],
                       runs=frames["runs.csv"], findings=frames["findings.csv"],
-                      schedule=frames["schedule.csv"])
+                      schedule=frames["schedule.csv"],
+                      levels=read_levels(outdir / LEVELS_FILE))
 
 
 def read_summary(path: Path) -> dict:

@@ -133,30 +133,43 @@ def _defs(pid: str) -> str:
     )
 
 
+DAILY_LABELS_MAX_DAYS = 31   # a label under every day up to a month, else every Monday
+MONDAY_LABEL_PX = 40.0       # least room between two Monday labels [px]
+# (common practice, no source: a calendar month is what a monthly audit reads day by day)
+
+
 def _date_axis(first: dt.date, ndays: int, cw: float, y: float) -> str:
-    """Tick labels under the date axis: days for short windows, months for long ones."""
+    """Tick labels under the date axis: every day for windows up to
+    :data:`DAILY_LABELS_MAX_DAYS`, else every Monday (every second or fourth where columns are
+    narrow), with the month names on a second line."""
     parts = []
     dates = [first + dt.timedelta(days=i) for i in range(ndays)]
-    if ndays <= 45:
-        step = max(1, int(np.ceil(26 / cw)))
+    if ndays <= DAILY_LABELS_MAX_DAYS:
+        wide = cw >= 50
         for i, d in enumerate(dates):
-            if i % step == 0:
-                label = d.strftime("%a %d %b") if cw * step >= 50 else d.strftime("%d")
-                x = LEFT + (i + 0.5) * cw
-                parts.append(f'<text x="{x:.1f}" y="{y:.1f}" text-anchor="middle">{label}</text>')
+            label = d.strftime("%a %d %b") if wide else d.strftime("%d")
+            x = LEFT + (i + 0.5) * cw
+            size = "" if cw >= 14 else ' font-size="8"'
+            weight = ' font-weight="600"' if d.weekday() == 0 else ""
+            parts.append(f'<text x="{x:.1f}" y="{y:.1f}" text-anchor="middle"{size}{weight}>'
+                         f'{label}</text>')
     else:
-        for i, d in enumerate(dates):
-            if ndays <= 130 and d.weekday() == 0:  # small tick on Mondays
-                x = LEFT + i * cw
-                parts.append(f'<line x1="{x:.1f}" y1="{y - 10:.1f}" x2="{x:.1f}" '
-                             f'y2="{y - 8:.1f}" stroke="{GRID}"/>')
-            if d.day == 1 or i == 0:
-                x = LEFT + i * cw
-                parts.append(f'<line x1="{x:.1f}" y1="{y - 10:.1f}" x2="{x:.1f}" y2="{y - 6:.1f}" '
-                             f'stroke="{TEXT}"/>')
-                if (ndays - i) * cw > 24:
-                    label = d.strftime("%b %Y" if d.month == 1 or i == 0 else "%b")
-                    parts.append(f'<text x="{x + 2:.1f}" y="{y:.1f}">{label}</text>')
+        every = next((k for k in (1, 2, 4, 8) if 7 * cw * k >= MONDAY_LABEL_PX), 13)
+        mondays = [i for i, d in enumerate(dates) if d.weekday() == 0]
+        for n, i in enumerate(mondays):
+            x = LEFT + i * cw
+            parts.append(f'<line x1="{x:.1f}" y1="{y - 10:.1f}" x2="{x:.1f}" '
+                         f'y2="{y - 7:.1f}" stroke="{TEXT}"/>')
+            if n % every == 0 and (ndays - i) * cw > 14:
+                parts.append(f'<text x="{x:.1f}" y="{y:.1f}" text-anchor="middle">'
+                             f'{dates[i].strftime("%d")}</text>')
+    for i, d in enumerate(dates):
+        if (d.day == 1 or i == 0) and (ndays - i) * cw > 24:
+            x = LEFT + i * cw
+            label = d.strftime("%b %Y" if d.month == 1 or i == 0 else "%b")
+            parts.append(f'<line x1="{x:.1f}" y1="{y + 3:.1f}" x2="{x:.1f}" y2="{y + 12:.1f}" '
+                         f'stroke="{GRID}"/><text x="{x + 2:.1f}" y="{y + 12:.1f}">{label}'
+                         f'</text>')
     return "".join(parts)
 
 
@@ -206,7 +219,7 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
     cw = column_width(ndays)
     ph = 24 * HOUR_PX
     width = max(LEFT + ndays * cw + 8, MIN_W)
-    height = TOP + ph + 40
+    height = TOP + ph + 48
     k = HOUR_PX / 60.0
     out = [f'<svg xmlns="http://www.w3.org/2000/svg" class="chart carpet" role="img" '
            f'viewBox="0 0 {width:.0f} {height:.0f}" width="{width:.0f}" height="{height:.0f}" '
@@ -261,8 +274,9 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
     out.append(_days_off_marks(days_off, first, ndays, cw, TOP + ph + 3))
     out.append(f'<g font-size="10" fill="{TEXT}">{_date_axis(first, ndays, cw, TOP + ph + 21)}'
                f'</g>')
+    mondays = "; dates mark Mondays" if ndays > DAILY_LABELS_MAX_DAYS else ""
     out.append(f'<text x="{LEFT}" y="12" font-size="10" fill="{TEXT}">local time, one column '
-               f'per day</text></svg>')
+               f'per day{mondays}</text></svg>')
     return "".join(out)
 
 
@@ -300,7 +314,7 @@ def daily_bars_svg(daily: pd.DataFrame, *, first: dt.date, last: dt.date, title:
     k = ph / top
     base_y = TOP + ph
     width = max(LEFT + ndays * cw + 8, MIN_W)
-    height = base_y + below + 36
+    height = base_y + below + 44
     bw = max(cw * 0.8, min(cw, 1.2))
     x = LEFT + day * cw + (cw - bw) / 2
     out = [f'<svg xmlns="http://www.w3.org/2000/svg" class="chart bars" role="img" '

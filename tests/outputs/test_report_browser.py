@@ -84,6 +84,24 @@ def test_prints_on_a4_and_letter(chromium, report, tmp_path):
         assert 3 <= n <= 12, pages
 
 
+def test_printed_pages_carry_site_window_and_page_numbers(chromium, report, tmp_path):
+    pypdf = pytest.importorskip("pypdf")
+    import io
+    import unicodedata
+
+    with Browser(tmp_path / "profile") as browser:
+        browser.open(report.as_uri())
+        pdf = browser.print_pdf(A4_IN)
+    pages = pypdf.PdfReader(io.BytesIO(pdf)).pages
+    n = len(pages)
+    assert n == pdf_pages(pdf) >= 3
+    for i, page in enumerate(pages):
+        text = " ".join(unicodedata.normalize("NFKC", page.extract_text()).split())  # no "ﬃ"
+        assert f"page {i + 1} of {n}" in text
+        # the @page footer: site name and window on every page
+        assert "Harbour Street Offices" in text and "23 Mar 2026 to 05 Apr 2026" in text
+
+
 def test_print_to_pdf_flag_writes_a_document(chromium, report, tmp_path):
     pdf = tmp_path / "report.pdf"
     res = run_cli(["--no-pdf-header-footer", f"--print-to-pdf={pdf}", report.as_uri()],
@@ -108,7 +126,21 @@ def test_demo_audit_report_in_the_browser(chromium, demo_month, tmp_path):
         n = browser.call("Runtime.evaluate", {
             "expression": "document.querySelectorAll('section.comp').length",
             "returnByValue": True})["result"]["value"]
+        strips = browser.call("Runtime.evaluate", {
+            "expression": "document.querySelectorAll('figure.strip svg').length",
+            "returnByValue": True})["result"]["value"]
+        # printed on A4 (about 718 CSS px between the margins), no close-up sticks out
+        browser.call("Emulation.setEmulatedMedia", {"media": "print"})
+        browser.call("Emulation.setDeviceMetricsOverride", {
+            "width": 718, "height": 1000, "deviceScaleFactor": 1, "mobile": False})
+        wide = browser.call("Runtime.evaluate", {
+            "expression": "[...document.querySelectorAll('figure.strip svg')].filter(e => "
+                          "e.getBoundingClientRect().right > 718.5).length",
+            "returnByValue": True})["result"]["value"]
+        browser.call("Emulation.clearDeviceMetricsOverride")
+        browser.call("Emulation.setEmulatedMedia", {"media": ""})
         pages = pdf_pages(browser.print_pdf(A4_IN))
+    assert strips == min(len(result.findings), 40) > 0 and wide == 0
     assert n == len(result.components) > 0
     assert 4 <= pages <= 5 * n
     assert result.first_date <= result.last_date < result.first_date + dt.timedelta(days=40)
