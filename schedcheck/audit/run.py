@@ -29,6 +29,7 @@ from schedcheck.audit.accounting import ComponentAccount, ScheduleSets, account
 from schedcheck.audit.energy import affinity_power, price
 from schedcheck.errors import TableError
 from schedcheck.findings.find import energy_words, find_in_sets
+from schedcheck.findings.rules import Reference
 from schedcheck.intervals import NS_PER_H, to_ns
 from schedcheck.readings.cleaning import SensorHealth
 from schedcheck.runstate.classify import ComponentStates
@@ -82,6 +83,8 @@ class AuditResult:
     warnings: list[str] = field(default_factory=list)
     generated: pd.Timestamp = field(default_factory=lambda: pd.Timestamp.now("UTC").floor("s"))
     outdir: Path | None = None        # set by the job once the files are written
+    lookback_start: pd.Timestamp | None = None   # first instant of the look-back used [UTC]
+    reference: dict[str, Reference] = field(default_factory=dict)   # component key -> look-back
     files: dict[str, Path] = field(default_factory=dict)         # file name -> Path
 
     def component(self, key: str) -> ComponentResult:
@@ -104,6 +107,7 @@ def run_audit(
     bad_rows: dict[str, object] | None = None,
     warnings: list[str] | None = None,
     find: Callable[[AuditResult], pd.DataFrame | None] | None = None,
+    lookback: Lookback | None = None,
 ) -> AuditResult:
     """Compare run states with the intended schedule for every component of a site.
 
@@ -129,6 +133,9 @@ def run_audit(
         optionally ``hours``, ``energy_hours``, ``kwh``, ``cost``, ``co2_kg``, ``detail``, ...);
         by default :func:`collect_findings`. The findings are then priced with the components
         in one step (:func:`price_findings`).
+    lookback : Lookback, optional
+        Run states and schedules over the look-back and the window (:class:`Lookback`): the
+        clock rule's reference days. Every figure and finding stays inside the window.
 
     Returns
     -------
@@ -195,8 +202,36 @@ def run_audit(
         health=dict(health or {}), bad_rows=bad_rows or {"count": 0, "examples": []},
         warnings=all_warnings,
     )
+    if lookback is not None and lookback.start < start:
+        result.lookback_start = pd.Timestamp(lookback.start).tz_convert("UTC").as_unit("ns")
+        result.reference = lookback.references(site, result.lookback_start, end)
     result.findings = price_findings((find or collect_findings)(result), result)
     return result
+
+
+@dataclass(frozen=True)
+class Lookback:
+    """What the classifier saw over the look-back and the window ``[start, window end)``:
+    component key -> :class:`ComponentStates` and unit id -> :class:`UnitSchedule`."""
+
+    start: pd.Timestamp
+    states: Mapping[str, ComponentStates]
+    schedules: Mapping[str, UnitSchedule]
+
+    def references(self, site: Site, start: pd.Timestamp,
+                   end: pd.Timestamp) -> dict[str, Reference]:
+        """One :class:`Reference` per component, each schedule table read once."""
+        out = {}
+        for unit in site.units:
+            sched = self.schedules.get(unit.id)
+            if sched is None:
+                continue
+            sets = ScheduleSets.from_table(sched.intervals, start, end)
+            for comp in unit.components:
+                cs = self.states.get(comp.key)
+                if cs is not None:
+                    out[comp.key] = Reference(cs.sets, sets, start, sched.days_off)
+        return out
 
 
 def empty_findings() -> pd.DataFrame:
@@ -220,6 +255,7 @@ def collect_findings(result: AuditResult) -> pd.DataFrame | None:
         frames.append(find_in_sets(
             comp.component, comp.account.states, comp.account.schedule, sched.days_off,
             start=result.start, end=result.end, tz=site.timezone, settings=site.findings,
+            reference=result.reference.get(comp.key),
         ))
     frames = [f for f in frames if len(f)]
     return pd.concat(frames, ignore_index=True) if frames else None

@@ -14,10 +14,11 @@ import re
 from collections.abc import Callable
 from pathlib import Path
 
-from schedcheck.audit.run import AuditResult, run_audit
+from schedcheck.audit.run import AuditResult, Lookback, run_audit
 from schedcheck.errors import InputError
 from schedcheck.inputs.readings_files import ReadingsSource
 from schedcheck.readings.window_clip import audit_window, clip_readings, window_warnings
+from schedcheck.runstate.lookback import classify_with_lookback, learns_from_all, lookback_dates
 from schedcheck.site import Site
 from schedcheck.window import day_window
 
@@ -43,20 +44,18 @@ def audit_result(
     (:func:`schedcheck.jobs.common.open_readings`).
     """
     from schedcheck.jobs.schedule import unit_schedules
-    from schedcheck.runstate.classify import classify_unit
 
     say = progress or (lambda _msg: None)
-    first, last, start, end, readings = window_readings(
+    first, last, start, end, readings, (lb_first, lb_start, by_sensor) = window_readings(
         site, first, last, skip_bad_rows=skip_bad_rows, say=say, source=source)
-    states: dict[str, object] = {}
-    for unit in site.units:
-        say(f"classifying run states of {unit.id}")
-        states.update(classify_unit(unit, readings.by_sensor, start, end,
-                                    site.readings.max_gap, site.run_state,
-                                    level_unit=site.readings.unit))
+    states, whole = classify_with_lookback(
+        site.units, by_sensor, lb_start, start, end, site.readings.max_gap, site.run_state,
+        level_unit=site.readings.unit, progress=say)
     load_warnings = window_warnings(readings, start, end, site.timezone)
     say("expanding the intended schedule")
     schedules = unit_schedules(site, first, last)
+    lookback = (Lookback(lb_start, whole, unit_schedules(site, lb_first, last))
+                if lb_start < start else None)
     say("comparing and pricing")
     bad = {"count": int(readings.bad_rows_count),
            "examples": list(readings.bad_rows_examples)[:20]}
@@ -65,6 +64,7 @@ def audit_result(
         health=readings.health, bad_rows=bad,
         warnings=load_warnings + [str(w) for w in readings.warnings]
         + [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings],
+        lookback=lookback,
     )
     return result
 
@@ -72,29 +72,49 @@ def audit_result(
 def window_readings(site: Site, first: dt.date | None, last: dt.date | None, *,
                     skip_bad_rows: bool = False, say: Callable[[str], None] = lambda _m: None,
                     source: ReadingsSource | None = None):
-    """The local dates to audit, their UTC window and the readings of it.
+    """The local dates to audit, their UTC window and the readings of it with its look-back.
 
     Missing dates come from the whole days covered by the data: then every reading is loaded
     once and the window is cut from it (:func:`schedcheck.readings.window_clip.clip_readings`).
+    The look-back (:func:`schedcheck.runstate.lookback.lookback_dates`) is read with the
+    window.
 
     Returns
     -------
-    first, last, start, end, readings
+    first, last, start, end, readings, (lookback_first, lookback_start, by_sensor)
+        ``readings`` cut to the window (its health that of the window); the look-back's first
+        local date and instant where readings exist (the window's when none do) and the
+        frames of the look-back and the window by sensor.
     """
-    from schedcheck.jobs.common import load_readings
+    from schedcheck.jobs.common import load_readings, no_readings_error
 
-    if first is None or last is None:
-        say("reading all readings to find the whole days they cover")
+    everything = None
+    if first is None or last is None or learns_from_all(site.run_state):
+        say("reading all readings (the levels are learned from all of them)")
         everything = load_readings(site, skip_bad_rows=skip_bad_rows, source=source)
-        first, last = audit_window(site, first, last, everything)
-        start, end = day_window(first, last, site.timezone)
-        return first, last, start, end, clip_readings(everything, start, end,
-                                                      site.readings.max_gap)
-    first, last = audit_window(site, first, last)
+    first, last = audit_window(site, first, last, everything)
     start, end = day_window(first, last, site.timezone)
-    say(f"reading readings for {first} .. {last}")
-    return first, last, start, end, load_readings(site, start, end,
-                                                  skip_bad_rows=skip_bad_rows, source=source)
+    want = lookback_dates(first, site.timezone, site.run_state)
+    lb_start = day_window(want, last, site.timezone)[0]
+    if everything is None:
+        say(f"reading readings for {want} .. {last} (look-back and window)")
+        everything = load_readings(site, lb_start, end, skip_bad_rows=skip_bad_rows,
+                                   source=source)
+    lb_first = max(want, data_first(everything, site.timezone) or first)
+    lb_first = min(lb_first, first)
+    lb_start = day_window(lb_first, last, site.timezone)[0]
+    window = clip_readings(everything, start, end, site.readings.max_gap)
+    if not any(len(f) for f in window.by_sensor.values()):
+        raise no_readings_error(site, start, end)
+    learn = (everything if learns_from_all(site.run_state)
+             else clip_readings(everything, lb_start, end, site.readings.max_gap))
+    return (first, last, start, end, window, (lb_first, lb_start, learn.by_sensor))
+
+
+def data_first(readings, tz: str) -> dt.date | None:
+    """The local date of the first reading of any sensor (None: no readings)."""
+    firsts = [h.first for h in readings.health.values() if h.first is not None]
+    return min(firsts).tz_convert(tz).date() if firsts else None
 
 
 def audit_site(

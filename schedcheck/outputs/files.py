@@ -22,6 +22,7 @@ from schedcheck.audit.accounting import FIGURES
 from schedcheck.audit.run import AuditResult
 from schedcheck.intervals import NS_PER_H, NS_PER_S, from_ns, to_ns
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
+from schedcheck.runstate.lookback import learns_from_all
 from schedcheck.runstate.states import STATES, StateSets
 
 HOURS_DECIMALS = 3      # 0.001 h = 3.6 s: finer than the one-minute readings
@@ -179,6 +180,17 @@ def _days_off_rows(result: AuditResult) -> list[dict]:
     return rows
 
 
+def lookback_fields(result: AuditResult) -> dict[str, object]:
+    """``lookback_start`` (local, None: the window alone) and ``levels_learned_from`` (in words)
+    for ``summary.json``'s period (see :mod:`schedcheck.runstate.lookback`)."""
+    lb = result.lookback_start
+    tz = result.site.timezone
+    learned = ("all readings in the files" if learns_from_all(result.site.run_state)
+               else "the look-back and the window" if lb is not None else "the window")
+    return {"lookback_start": local_iso(lb, tz) if lb is not None else None,
+            "levels_learned_from": learned}
+
+
 def finding_records(result: AuditResult) -> list[dict]:
     """The findings as JSON-ready records (local instants, rounded figures)."""
     tz = result.site.timezone
@@ -228,7 +240,8 @@ def summary_dict(result: AuditResult) -> dict:
                    "first_date": result.first_date.isoformat(),
                    "last_date": result.last_date.isoformat(),
                    "hours": _r((result.end - result.start) / pd.Timedelta("1h"),
-                               HOURS_DECIMALS)},
+                               HOURS_DECIMALS),
+                   **lookback_fields(result)},
         "units": [_unit_summary(u, result) for u in site.units],
         "components": comps,
         "totals": total,
