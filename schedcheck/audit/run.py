@@ -202,19 +202,23 @@ def run_audit(
         health=dict(health or {}), bad_rows=bad_rows or {"count": 0, "examples": []},
         warnings=all_warnings,
     )
-    if lookback is not None and lookback.start < start:
-        result.lookback_start = pd.Timestamp(lookback.start).tz_convert("UTC").as_unit("ns")
-        result.reference = lookback.references(site, result.lookback_start, end)
+    if lookback is not None and (lookback.start < start or lookback.end > end):
+        lb0 = pd.Timestamp(min(lookback.start, start)).tz_convert("UTC").as_unit("ns")
+        lb1 = pd.Timestamp(max(lookback.end, end)).tz_convert("UTC").as_unit("ns")
+        result.lookback_start = lb0 if lb0 < start else None
+        result.reference = lookback.references(site, lb0, lb1)
     result.findings = price_findings((find or collect_findings)(result), result)
     return result
 
 
 @dataclass(frozen=True)
 class Lookback:
-    """What the classifier saw over the look-back and the window ``[start, window end)``:
-    component key -> :class:`ComponentStates` and unit id -> :class:`UnitSchedule`."""
+    """What the classifier saw over the look-back, the window and the days after it,
+    ``[start, end)``: component key -> :class:`ComponentStates` and unit id ->
+    :class:`UnitSchedule`."""
 
     start: pd.Timestamp
+    end: pd.Timestamp
     states: Mapping[str, ComponentStates]
     schedules: Mapping[str, UnitSchedule]
 
@@ -230,7 +234,7 @@ class Lookback:
             for comp in unit.components:
                 cs = self.states.get(comp.key)
                 if cs is not None:
-                    out[comp.key] = Reference(cs.sets, sets, start, sched.days_off)
+                    out[comp.key] = Reference(cs.sets, sets, start, end, sched.days_off)
         return out
 
 

@@ -5,11 +5,12 @@ the change in spring its programme runs an hour late in local time (starts and s
 and after the change in autumn an hour early. The rule compares each working day's first start
 and last stop, measured from that day's occupied start and end, before and after each change.
 
-A window that starts after a change still needs the days around it: the audit passes the
-look-back's run states and schedule as ``ctx.reference`` (reaching at least
-:data:`CLOCK_REACH` before the latest change, :func:`reference_first`), the rule finds the
-change and its shifted days there, and the finding, its hours and the time it explains stay
-inside the window.
+A window that starts after a change, or ends just after one, still needs the days around it:
+the audit passes the run states and schedule of a look-back (reaching at least
+:data:`CLOCK_REACH` before the latest change, :func:`reference_first`) and of the days after
+the window where readings exist as ``ctx.reference``; the rule finds the change and its
+shifted days there, and the finding, its hours and the time it explains stay inside the
+window.
 """
 
 from __future__ import annotations
@@ -139,7 +140,7 @@ def _zones(ref: Context, days: list[_Day], shift_ns: int) -> Intervals:
 def clock_offset(ctx: Context) -> list[Found]:
     """One finding per daylight-saving change after which the unit kept the old clock."""
     ref = ctx.reference if ctx.reference is not None else ctx
-    first, last = local_dates([ref.start, ctx.end - 1], ctx.tz)
+    first, last = local_dates([ref.start, ref.end - 1], ctx.tz)
     found_changes = changes(first, last, ctx.tz)
     if not found_changes:
         return []
@@ -187,9 +188,9 @@ def clock_offset(ctx: Context) -> list[Found]:
         zone = _zones(ref, after_all, int(abs(delta) * NS_PER_MIN))
         zones.append(zone)
         start = midnight_ns(change, ctx.tz)
-        end = max(start + 1, max(d.last for d in shifted_days))
-        if end <= ctx.start:
-            continue   # over before the window: nothing of it to report here
+        end = min(max(start + 1, max(d.last for d in shifted_days)), ctx.end)
+        if end <= ctx.start or start >= ctx.end:
+            continue   # wholly before or after the window: nothing of it to report here
         running = (ctx.run - ctx.scheduled) & zone
         hours = running.hours()
         began = "began" if delta > 0 else "ended"

@@ -280,7 +280,8 @@ def find_in_sets(
 
     Parameters are as for :func:`find_issues`, but ``states`` and ``schedule`` are already
     interval sets over ``[start, end)`` (checked where they entered the core). ``reference``:
-    the same over the look-back and the window (:class:`schedcheck.findings.rules.Reference`),
+    the same over the look-back, the window and the days after it
+    (:class:`schedcheck.findings.rules.Reference`),
     for the clock rule's reference days; every finding stays inside ``[start, end)``.
 
     Returns
@@ -299,7 +300,8 @@ def find_in_sets(
     )
     if reference is not None:
         ctx.reference = dataclasses.replace(
-            ctx, start=int(to_ns(reference.start)), run=reference.states.run,
+            ctx, start=int(to_ns(reference.start)), end=int(to_ns(reference.end)),
+            run=reference.states.run,
             off=reference.states.off, no_data=reference.states.no_data,
             occupied=reference.schedule.occupied, allowance=reference.schedule.allowance,
             allowed=reference.schedule.allowed, days_off=_days_off(reference.days_off))

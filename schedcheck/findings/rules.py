@@ -85,12 +85,14 @@ class Context:
 
 @dataclass(frozen=True)
 class Reference:
-    """One component's run states and its unit's schedule over the look-back and the window
-    ``[start, window end)`` (UTC), with the days off of that span (see :class:`Context`)."""
+    """One component's run states and its unit's schedule over the look-back, the window and
+    the days after it, ``[start, end)`` (UTC), with the days off of that span (see
+    :class:`Context`)."""
 
     states: StateSets
     schedule: ScheduleSets
     start: pd.Timestamp
+    end: pd.Timestamp
     days_off: pd.DataFrame | None = None
 
 

@@ -12,13 +12,21 @@ from __future__ import annotations
 import datetime as dt
 import re
 from collections.abc import Callable
+from dataclasses import dataclass
 from pathlib import Path
+
+import pandas as pd
 
 from schedcheck.audit.run import AuditResult, Lookback, run_audit
 from schedcheck.errors import InputError
 from schedcheck.inputs.readings_files import ReadingsSource
 from schedcheck.readings.window_clip import audit_window, clip_readings, window_warnings
-from schedcheck.runstate.lookback import classify_with_lookback, learns_from_all, lookback_dates
+from schedcheck.runstate.lookback import (
+    classify_with_lookback,
+    learns_from_all,
+    lookahead_last,
+    lookback_dates,
+)
 from schedcheck.site import Site
 from schedcheck.window import day_window
 
@@ -46,16 +54,17 @@ def audit_result(
     from schedcheck.jobs.schedule import unit_schedules
 
     say = progress or (lambda _msg: None)
-    first, last, start, end, readings, (lb_first, lb_start, by_sensor) = window_readings(
+    first, last, start, end, readings, span = window_readings(
         site, first, last, skip_bad_rows=skip_bad_rows, say=say, source=source)
     states, whole = classify_with_lookback(
-        site.units, by_sensor, lb_start, start, end, site.readings.max_gap, site.run_state,
-        level_unit=site.readings.unit, progress=say)
+        site.units, span.by_sensor, span.start, start, end, site.readings.max_gap,
+        site.run_state, level_unit=site.readings.unit, progress=say, ahead_end=span.end)
     load_warnings = window_warnings(readings, start, end, site.timezone)
     say("expanding the intended schedule")
     schedules = unit_schedules(site, first, last)
-    lookback = (Lookback(lb_start, whole, unit_schedules(site, lb_first, last))
-                if lb_start < start else None)
+    lookback = (Lookback(span.start, span.end, whole,
+                         unit_schedules(site, span.first, span.last))
+                if span.start < start or span.end > end else None)
     say("comparing and pricing")
     bad = {"count": int(readings.bad_rows_count),
            "examples": list(readings.bad_rows_examples)[:20]}
@@ -81,10 +90,11 @@ def window_readings(site: Site, first: dt.date | None, last: dt.date | None, *,
 
     Returns
     -------
-    first, last, start, end, readings, (lookback_first, lookback_start, by_sensor)
-        ``readings`` cut to the window (its health that of the window); the look-back's first
-        local date and instant where readings exist (the window's when none do) and the
-        frames of the look-back and the window by sensor.
+    first, last, start, end, readings, span
+        ``readings`` cut to the window (its health that of the window); ``span`` the
+        :class:`Span` classified: the look-back and the days after the window where readings
+        exist (:func:`schedcheck.runstate.lookback.lookahead_last`), with the frames to learn
+        from.
     """
     from schedcheck.jobs.common import load_readings, no_readings_error
 
@@ -100,21 +110,38 @@ def window_readings(site: Site, first: dt.date | None, last: dt.date | None, *,
         say(f"reading readings for {want} .. {last} (look-back and window)")
         everything = load_readings(site, lb_start, end, skip_bad_rows=skip_bad_rows,
                                    source=source)
-    lb_first = max(want, data_first(everything, site.timezone) or first)
-    lb_first = min(lb_first, first)
-    lb_start = day_window(lb_first, last, site.timezone)[0]
+    d0, d1 = data_dates(everything, site.timezone)
+    lb_first = min(max(want, d0 or first), first)
+    ahead = max(min(lookahead_last(last, site.run_state), d1 or last), last)
+    lb_start, ahead_end = day_window(lb_first, ahead, site.timezone)
     window = clip_readings(everything, start, end, site.readings.max_gap)
     if not any(len(f) for f in window.by_sensor.values()):
         raise no_readings_error(site, start, end)
     learn = (everything if learns_from_all(site.run_state)
              else clip_readings(everything, lb_start, end, site.readings.max_gap))
-    return (first, last, start, end, window, (lb_first, lb_start, learn.by_sensor))
+    return (first, last, start, end, window,
+            Span(lb_first, ahead, lb_start, ahead_end, learn.by_sensor))
 
 
-def data_first(readings, tz: str) -> dt.date | None:
-    """The local date of the first reading of any sensor (None: no readings)."""
+@dataclass(frozen=True)
+class Span:
+    """The local dates ``first`` .. ``last`` and the instants ``[start, end)`` classified for a
+    window (its look-back and the days after it), and the readings to learn from by sensor."""
+
+    first: dt.date
+    last: dt.date
+    start: pd.Timestamp
+    end: pd.Timestamp
+    by_sensor: dict
+
+
+def data_dates(readings, tz: str) -> tuple[dt.date | None, dt.date | None]:
+    """The local dates of the first and the last reading of any sensor (None: no readings)."""
     firsts = [h.first for h in readings.health.values() if h.first is not None]
-    return min(firsts).tz_convert(tz).date() if firsts else None
+    lasts = [h.last for h in readings.health.values() if h.last is not None]
+    if not firsts:
+        return None, None
+    return min(firsts).tz_convert(tz).date(), max(lasts).tz_convert(tz).date()
 
 
 def audit_site(

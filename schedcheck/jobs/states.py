@@ -76,11 +76,11 @@ def site_states(
                          "per component into it", path=plot_dir)
     # the levels are learned as the audit learns them: from the readings of the files (or the
     # look-back) with the window's states cut from the look-back's
-    first, last, start, end, readings, (_f, lb_start, by_sensor) = window_readings(
+    first, last, start, end, readings, span = window_readings(
         site, first, last, skip_bad_rows=skip_bad_rows, source=open_readings(site))
-    states, _whole = classify_with_lookback(site.units, by_sensor, lb_start, start, end,
+    states, _whole = classify_with_lookback(site.units, span.by_sensor, span.start, start, end,
                                             site.readings.max_gap, site.run_state,
-                                            level_unit=site.readings.unit)
+                                            level_unit=site.readings.unit, ahead_end=span.end)
     records = [component_record(states[c.key]) for c in site.components]
     pictures = []
     if plot_dir is not None:

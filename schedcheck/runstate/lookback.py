@@ -1,17 +1,28 @@
-"""The look-back: readings from before the audit window that the classifier learns from.
+"""The look-back: readings around the audit window that the classifier learns from.
 
-A month audited on its own must give that month's figures inside a longer audit. So the
-on/off levels are learned from the look-back and the window together, the states are
-classified over both (a run that began before the window is the same run), and only the
-window's part is reported (:func:`window_states`). The clock check
-(:mod:`schedcheck.findings.clock`) takes the look-back's working days as its reference days.
+A month audited on its own must give that month's figures inside a longer audit. So:
 
-Default (with its source):
+* the on/off levels are learned from every reading in the files (``learn_from_all``, the
+  default), or from the look-back and the window only (``learn_from_all = false``);
+* the states are classified over the look-back and the window together (a run that began
+  before the window is the same run), and only the window's part is reported
+  (:func:`window_states`);
+* the clock check (:mod:`schedcheck.findings.clock`) takes the look-back's working days as its
+  reference days, so the look-back reaches at least
+  :data:`schedcheck.findings.clock.CLOCK_REACH` before the latest daylight-saving change;
+  when the levels are learned from all readings, the states also run on for ``CLOCK_REACH``
+  after the window where readings exist (:func:`lookahead_last`), so a window that ends just
+  after a change sees the days that show the shift.
+
+Defaults (each with its source):
 
 * ``LOOKBACK`` = 8 weeks (56 days) before the window's first local date, where readings exist.
   Common practice, no source: two months hold a few dozen working days and weekends, enough
   for the stopped and the running level groups to show even when the window itself is a fan
-  that never stopped. Set ``[run_state] lookback`` (``0min`` = none).
+  that never stopped. Set ``[run_state] lookback`` (``0min`` = none, the window alone).
+* ``LEARN_FROM_ALL`` = True. Common practice, no source: a level learned from more readings
+  sees every level group the sensor shows (a heat wheel's carried vibration may appear only in
+  the mild months), and it makes every window's states those of the whole audit.
 """
 
 from __future__ import annotations
@@ -23,7 +34,7 @@ import math
 import numpy as np
 import pandas as pd
 
-from schedcheck.findings.clock import reference_first
+from schedcheck.findings.clock import CLOCK_REACH, reference_first
 from schedcheck.intervals import Intervals, to_ns
 from schedcheck.runstate.classify import (
     ComponentStates,
@@ -71,6 +82,13 @@ def lookback_dates(first: dt.date, tz: str, settings: RunStateSettings | None) -
     return min(want, clock) if clock is not None else want
 
 
+def lookahead_last(last: dt.date, settings: RunStateSettings | None) -> dt.date:
+    """The last local date the states are worked out for: ``CLOCK_REACH`` after ``last`` when
+    the levels are learned from every reading (:func:`learns_from_all`), else ``last`` (then
+    an audit of a past window never changes when newer readings arrive)."""
+    return last + CLOCK_REACH if learns_from_all(settings) else last
+
+
 def window_states(cs: ComponentStates, start: pd.Timestamp, end: pd.Timestamp) -> ComponentStates:
     """States classified over a look-back and the window, cut to the window ``[start, end)``.
 
@@ -98,9 +116,9 @@ def window_states(cs: ComponentStates, start: pd.Timestamp, end: pd.Timestamp) -
 def classify_with_lookback(
     units, by_sensor, lookback_start: pd.Timestamp, start: pd.Timestamp, end: pd.Timestamp,
     max_gap: pd.Timedelta, settings: RunStateSettings | None = None, *, level_unit: str = "mm/s",
-    progress=None,
+    progress=None, ahead_end: pd.Timestamp | None = None,
 ) -> tuple[dict[str, ComponentStates], dict[str, ComponentStates]]:
-    """Classify every unit over ``[lookback_start, end)`` and cut the states to the window.
+    """Classify every unit over ``[lookback_start, ahead_end)`` and cut the states to the window.
 
     Parameters
     ----------
@@ -115,18 +133,21 @@ def classify_with_lookback(
         As for :func:`schedcheck.runstate.classify.classify_unit`.
     progress : callable, optional
         Called with a short line per unit.
+    ahead_end : Timestamp, optional
+        The end of the days after the window that are classified too (default ``end``).
 
     Returns
     -------
     window, whole : dict
-        Component key -> states of the window only, and of the look-back and the window.
+        Component key -> states of the window only, and of the whole span classified.
     """
+    until = end if ahead_end is None else max(end, ahead_end)
     say = progress or (lambda _m: None)
     whole: dict[str, ComponentStates] = {}
     for unit in units:
         say(f"classifying run states of {unit.id}")
-        whole.update(classify_unit(unit, by_sensor, min(lookback_start, start), end, max_gap,
+        whole.update(classify_unit(unit, by_sensor, min(lookback_start, start), until, max_gap,
                                    settings, level_unit=level_unit))
-    if lookback_start >= start:
+    if lookback_start >= start and until <= end:
         return dict(whole), whole
     return {k: window_states(cs, start, end) for k, cs in whole.items()}, whole

@@ -22,7 +22,7 @@ def _window_and_reference(first: str, last: str, ref_first: str):
     rs = loc(ref_first)
     window = (StateSets.from_table(states, ws, we), ScheduleSets.from_table(sched, ws, we))
     ref = Reference(StateSets.from_table(states, rs, we), ScheduleSets.from_table(sched, rs, we),
-                    rs)
+                    rs, we)
     return window, ref, ws, we
 
 
