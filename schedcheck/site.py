@@ -114,6 +114,8 @@ class RunStateSettings:
     resolution: float | None = None         # reading step [reading unit]; None = from the data
     idle_ratio: float | None = None         # low group at most this x running level may be idle
     shift_days: int | None = field(default=None, metadata={"min": 1})  # level-shift block [d]
+    lookback: pd.Timedelta | None = None    # states and clock reference days before the window
+    learn_from_all: bool | None = None      # levels from every reading in the files (default)
 
 
 @dataclass(frozen=True)

@@ -31,6 +31,7 @@ from schedcheck.errors import TableError
 from schedcheck.findings.find import energy_words, find_in_sets, resolved
 from schedcheck.findings.grouping import group_by_unit
 from schedcheck.findings.projection import project_year
+from schedcheck.findings.rules import Reference
 from schedcheck.intervals import NS_PER_H, to_ns, union_all
 from schedcheck.readings.cleaning import SensorHealth
 from schedcheck.runstate.classify import ComponentStates
@@ -85,6 +86,8 @@ class AuditResult:
     warnings: list[str] = field(default_factory=list)
     generated: pd.Timestamp = field(default_factory=lambda: pd.Timestamp.now("UTC").floor("s"))
     outdir: Path | None = None        # set by the job once the files are written
+    lookback_start: pd.Timestamp | None = None   # first instant of the look-back used [UTC]
+    reference: dict[str, Reference] = field(default_factory=dict)   # component key -> look-back
     files: dict[str, Path] = field(default_factory=dict)         # file name -> Path
     levels: pd.DataFrame | None = None  # per-minute levels behind findings (audit.evidence)
     component_findings: pd.DataFrame | None = None   # FINDING_COLUMNS, one per component
@@ -116,6 +119,7 @@ def run_audit(
     bad_rows: dict[str, object] | None = None,
     warnings: list[str] | None = None,
     find: Callable[[AuditResult], pd.DataFrame | None] | None = None,
+    lookback: Lookback | None = None,
 ) -> AuditResult:
     """Compare run states with the intended schedule for every component of a site.
 
@@ -141,6 +145,9 @@ def run_audit(
         optionally ``hours``, ``energy_hours``, ``kwh``, ``cost``, ``co2_kg``, ``detail``, ...);
         by default :func:`collect_findings`. The findings are then priced with the components
         in one step (:func:`price_findings`).
+    lookback : Lookback, optional
+        Run states and schedules over the look-back and the window (:class:`Lookback`): the
+        clock rule's reference days. Every figure and finding stays inside the window.
 
     Returns
     -------
@@ -207,6 +214,11 @@ def run_audit(
         health=dict(health or {}), bad_rows=bad_rows or {"count": 0, "examples": []},
         warnings=all_warnings,
     )
+    if lookback is not None and (lookback.start < start or lookback.end > end):
+        lb0 = pd.Timestamp(min(lookback.start, start)).tz_convert("UTC").as_unit("ns")
+        lb1 = pd.Timestamp(max(lookback.end, end)).tz_convert("UTC").as_unit("ns")
+        result.lookback_start = lb0 if lb0 < start else None
+        result.reference = lookback.references(site, lb0, lb1)
     result.component_findings = price_findings((find or collect_findings)(result), result)
     result.findings = unit_findings(result.component_findings, result)
     result.unit_hours = unit_off_schedule_hours(result)
@@ -256,6 +268,33 @@ def projection(result: AuditResult) -> dict:
                         recurring_weeks=p.recurring_weeks)
 
 
+@dataclass(frozen=True)
+class Lookback:
+    """What the classifier saw over the look-back, the window and the days after it,
+    ``[start, end)``: component key -> :class:`ComponentStates` and unit id ->
+    :class:`UnitSchedule`."""
+
+    start: pd.Timestamp
+    end: pd.Timestamp
+    states: Mapping[str, ComponentStates]
+    schedules: Mapping[str, UnitSchedule]
+
+    def references(self, site: Site, start: pd.Timestamp,
+                   end: pd.Timestamp) -> dict[str, Reference]:
+        """One :class:`Reference` per component, each schedule table read once."""
+        out = {}
+        for unit in site.units:
+            sched = self.schedules.get(unit.id)
+            if sched is None:
+                continue
+            sets = ScheduleSets.from_table(sched.intervals, start, end)
+            for comp in unit.components:
+                cs = self.states.get(comp.key)
+                if cs is not None:
+                    out[comp.key] = Reference(cs.sets, sets, start, end, sched.days_off)
+        return out
+
+
 def empty_findings() -> pd.DataFrame:
     """A findings table with no rows and the right columns."""
     utc = pd.DatetimeIndex([], tz="UTC").as_unit("ns")
@@ -277,6 +316,7 @@ def collect_findings(result: AuditResult) -> pd.DataFrame | None:
         frames.append(find_in_sets(
             comp.component, comp.account.states, comp.account.schedule, sched.days_off,
             start=result.start, end=result.end, tz=site.timezone, settings=site.findings,
+            reference=result.reference.get(comp.key),
         ))
     frames = [f for f in frames if len(f)]
     return pd.concat(frames, ignore_index=True) if frames else None

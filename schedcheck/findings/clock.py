@@ -4,6 +4,13 @@ A controller clock that does not follow daylight saving time keeps the old UTC o
 the change in spring its programme runs an hour late in local time (starts and stops later),
 and after the change in autumn an hour early. The rule compares each working day's first start
 and last stop, measured from that day's occupied start and end, before and after each change.
+
+A window that starts after a change, or ends just after one, still needs the days around it:
+the audit passes the run states and schedule of a look-back (reaching at least
+:data:`CLOCK_REACH` before the latest change, :func:`reference_first`) and of the days after
+the window where readings exist as ``ctx.reference``; the rule finds the change and its
+shifted days there, and the finding, its hours and the time it explains stay inside the
+window.
 """
 
 from __future__ import annotations
@@ -32,6 +39,9 @@ CLOCK_SHARE = 0.7
 # running reaches further (running all night, say) says nothing about the clock. Common
 # practice, no source.
 CLOCK_LOOK = pd.Timedelta("3h")
+# The reference days reach this far before the latest change before a window: CLOCK_DAYS
+# working days and a week for holidays and gaps. Common practice, no source.
+CLOCK_REACH = dt.timedelta(days=21)
 
 
 @dataclass
@@ -70,6 +80,14 @@ def changes(first: dt.date, last: dt.date, tz: str) -> list[tuple[dt.date, float
     return out
 
 
+def reference_first(first: dt.date, tz: str) -> dt.date | None:
+    """The first local date the rule needs before a window that begins on ``first``:
+    :data:`CLOCK_REACH` before the latest daylight-saving change in the year before it (None
+    where the zone had no change)."""
+    found = changes(first - dt.timedelta(days=366), first - dt.timedelta(days=1), tz)
+    return found[-1][0] - CLOCK_REACH if found else None
+
+
 def _working_days(ctx: Context) -> list[_Day]:
     occ = ctx.occupied
     if len(occ) == 0 or len(ctx.run) == 0:
@@ -104,10 +122,10 @@ def _working_days(ctx: Context) -> list[_Day]:
     return out
 
 
-def _zones(ctx: Context, days: list[_Day], shift_ns: int) -> Intervals:
+def _zones(ref: Context, days: list[_Day], shift_ns: int) -> Intervals:
     """Local stretches next to the occupied edges that a clock shift explains."""
     reach = shift_ns + CLOCK_TOLERANCE.value
-    allow = ctx.allowance
+    allow = ref.allowance
     starts, ends = [], []
     for day in days:
         k = np.flatnonzero(allow.ends == day.occ_start)
@@ -121,11 +139,12 @@ def _zones(ctx: Context, days: list[_Day], shift_ns: int) -> Intervals:
 
 def clock_offset(ctx: Context) -> list[Found]:
     """One finding per daylight-saving change after which the unit kept the old clock."""
-    first, last = local_dates([ctx.start, ctx.end - 1], ctx.tz)
+    ref = ctx.reference if ctx.reference is not None else ctx
+    first, last = local_dates([ref.start, ref.end - 1], ctx.tz)
     found_changes = changes(first, last, ctx.tz)
     if not found_changes:
         return []
-    days = _working_days(ctx)
+    days = _working_days(ref)
     tol = CLOCK_TOLERANCE.value / NS_PER_MIN
     bounds = [first] + [c for c, _ in found_changes] + [last + dt.timedelta(days=1)]
     out: list[Found] = []
@@ -166,8 +185,12 @@ def clock_offset(ctx: Context) -> list[Found]:
         # Once the shift is established, the controller keeps the wrong clock every working
         # day until the next change, including days whose optimal start wandered past the
         # tolerance: the edges of all of them are explained by it (one cause, one finding).
-        zone = _zones(ctx, after_all, int(abs(delta) * NS_PER_MIN))
+        zone = _zones(ref, after_all, int(abs(delta) * NS_PER_MIN))
         zones.append(zone)
+        start = midnight_ns(change, ctx.tz)
+        end = min(max(start + 1, max(d.last for d in shifted_days)), ctx.end)
+        if end <= ctx.start or start >= ctx.end:
+            continue   # wholly before or after the window: nothing of it to report here
         running = (ctx.run - ctx.scheduled) & zone
         hours = running.hours()
         began = "began" if delta > 0 else "ended"
@@ -178,8 +201,7 @@ def clock_offset(ctx: Context) -> list[Found]:
                   f"{med_start:+.0f} min, stop {med_stop:+.0f} min), running {hours:.1f} h "
                   "outside the schedule because of it{energy}; check that the controller clock "
                   "follows daylight saving time (its time zone and daylight-saving setting).")
-        start = midnight_ns(change, ctx.tz)
-        end = max(start + 1, max(d.last for d in shifted_days))
+        start = max(start, ctx.start)   # the change may lie in the look-back
         out.append(Found("clock_offset", start, end, change, hours, hours, detail))
     if zones:
         ctx.explained = ctx.explained | union_all(zones)

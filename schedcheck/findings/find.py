@@ -56,6 +56,7 @@ ask the contractor to check, and local codes and licensed practice decide.
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 import math
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
@@ -71,7 +72,7 @@ from schedcheck.findings import rules as findings_rules
 from schedcheck.findings.grouping import DEFAULT_TOGETHER
 from schedcheck.findings.kinds import KINDS  # noqa: F401 - re-exported
 from schedcheck.findings.projection import DEFAULT_RECURRING_DATES, DEFAULT_RECURRING_WEEKS
-from schedcheck.findings.rules import Context, Params
+from schedcheck.findings.rules import Context, Params, Reference
 from schedcheck.intervals import check_labels, from_ns, to_ns
 from schedcheck.runstate.states import StateSets
 from schedcheck.schedule.kinds import DAY_OFF_KINDS
@@ -284,11 +285,15 @@ def find_in_sets(
     end: pd.Timestamp,
     tz: str,
     settings: FindingSettings | None = None,
+    reference: Reference | None = None,
 ) -> pd.DataFrame:
     """The findings of one component before pricing, from the sets the accounting used.
 
     Parameters are as for :func:`find_issues`, but ``states`` and ``schedule`` are already
-    interval sets over ``[start, end)`` (checked where they entered the core).
+    interval sets over ``[start, end)`` (checked where they entered the core). ``reference``:
+    the same over the look-back, the window and the days after it
+    (:class:`schedcheck.findings.rules.Reference`),
+    for the clock rule's reference days; every finding stays inside ``[start, end)``.
 
     Returns
     -------
@@ -304,6 +309,13 @@ def find_in_sets(
         occupied=schedule.occupied, allowance=schedule.allowance, allowed=schedule.allowed,
         days_off=_days_off(days_off), params=_params(settings),
     )
+    if reference is not None:
+        ctx.reference = dataclasses.replace(
+            ctx, start=int(to_ns(reference.start)), end=int(to_ns(reference.end)),
+            run=reference.states.run,
+            off=reference.states.off, no_data=reference.states.no_data,
+            occupied=reference.schedule.occupied, allowance=reference.schedule.allowance,
+            allowed=reference.schedule.allowed, days_off=_days_off(reference.days_off))
     found = findings_clock.clock_offset(ctx)
     found += findings_rules.continuous(ctx)
     found += findings_rules.off_schedule_days(ctx)

@@ -9,6 +9,7 @@ from __future__ import annotations
 import datetime as dt
 from collections import Counter, defaultdict
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
@@ -16,6 +17,10 @@ import pandas as pd
 from schedcheck.intervals import NS_PER_H, Intervals, from_ns
 from schedcheck.site import FAN_ROLES
 from schedcheck.window import local_midnight
+
+if TYPE_CHECKING:
+    from schedcheck.audit.accounting import ScheduleSets
+    from schedcheck.runstate.states import StateSets
 
 NS_PER_MIN = 60 * 1_000_000_000
 # An episode from the afternoon or evening of one date to the morning of the next, next to a
@@ -61,6 +66,9 @@ class Context:
     params: Params
     explained: Intervals = field(default_factory=Intervals.empty)   # set by the clock rule
     consumed: Intervals = field(default_factory=Intervals.empty)    # set by the continuous rule
+    # the same inputs over the look-back and the window, for rules that compare with the days
+    # before the window (the clock rule's reference days); None: the window alone
+    reference: Context | None = None
 
     @property
     def scheduled(self) -> Intervals:
@@ -76,6 +84,19 @@ class Context:
                         local_dates(self.occupied.ends - 1, self.tz), strict=True):
             out.update(a + dt.timedelta(days=i) for i in range((b - a).days + 1))
         return out
+
+
+@dataclass(frozen=True)
+class Reference:
+    """One component's run states and its unit's schedule over the look-back, the window and
+    the days after it, ``[start, end)`` (UTC), with the days off of that span (see
+    :class:`Context`)."""
+
+    states: StateSets
+    schedule: ScheduleSets
+    start: pd.Timestamp
+    end: pd.Timestamp
+    days_off: pd.DataFrame | None = None
 
 
 @dataclass

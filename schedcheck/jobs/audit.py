@@ -12,14 +12,23 @@ from __future__ import annotations
 import datetime as dt
 import re
 from collections.abc import Callable
+from dataclasses import dataclass
 from pathlib import Path
 
+import pandas as pd
+
 from schedcheck.audit.evidence import evidence_levels
-from schedcheck.audit.run import AuditResult, run_audit
+from schedcheck.audit.run import AuditResult, Lookback, run_audit
 from schedcheck.errors import InputError
 from schedcheck.inputs.provenance import provenance
 from schedcheck.inputs.readings_files import ReadingsSource
 from schedcheck.readings.window_clip import audit_window, clip_readings, window_warnings
+from schedcheck.runstate.lookback import (
+    classify_with_lookback,
+    learns_from_all,
+    lookahead_last,
+    lookback_dates,
+)
 from schedcheck.site import Site
 from schedcheck.window import day_window
 
@@ -45,20 +54,19 @@ def audit_result(
     (:func:`schedcheck.jobs.common.open_readings`).
     """
     from schedcheck.jobs.schedule import unit_schedules
-    from schedcheck.runstate.classify import classify_unit
 
     say = progress or (lambda _msg: None)
-    first, last, start, end, readings = window_readings(
+    first, last, start, end, readings, span = window_readings(
         site, first, last, skip_bad_rows=skip_bad_rows, say=say, source=source)
-    states: dict[str, object] = {}
-    for unit in site.units:
-        say(f"classifying run states of {unit.id}")
-        states.update(classify_unit(unit, readings.by_sensor, start, end,
-                                    site.readings.max_gap, site.run_state,
-                                    level_unit=site.readings.unit))
+    states, whole = classify_with_lookback(
+        site.units, span.by_sensor, span.start, start, end, site.readings.max_gap,
+        site.run_state, level_unit=site.readings.unit, progress=say, ahead_end=span.end)
     load_warnings = window_warnings(readings, start, end, site.timezone)
     say("expanding the intended schedule")
     schedules = unit_schedules(site, first, last)
+    lookback = (Lookback(span.start, span.end, whole,
+                         unit_schedules(site, span.first, span.last))
+                if span.start < start or span.end > end else None)
     say("comparing and pricing")
     bad = {"count": int(readings.bad_rows_count),
            "examples": list(readings.bad_rows_examples)[:20]}
@@ -67,6 +75,7 @@ def audit_result(
         health=readings.health, bad_rows=bad,
         warnings=load_warnings + [str(w) for w in readings.warnings]
         + [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings],
+        lookback=lookback,
     )
     result.levels = evidence_levels(result.findings, {c.key: c.sensor for c in site.components},
                                     readings.by_sensor, start, end,
@@ -78,29 +87,67 @@ def audit_result(
 def window_readings(site: Site, first: dt.date | None, last: dt.date | None, *,
                     skip_bad_rows: bool = False, say: Callable[[str], None] = lambda _m: None,
                     source: ReadingsSource | None = None):
-    """The local dates to audit, their UTC window and the readings of it.
+    """The local dates to audit, their UTC window and the readings of it with its look-back.
 
     Missing dates come from the whole days covered by the data: then every reading is loaded
     once and the window is cut from it (:func:`schedcheck.readings.window_clip.clip_readings`).
+    The look-back (:func:`schedcheck.runstate.lookback.lookback_dates`) is read with the
+    window.
 
     Returns
     -------
-    first, last, start, end, readings
+    first, last, start, end, readings, span
+        ``readings`` cut to the window (its health that of the window); ``span`` the
+        :class:`Span` classified: the look-back and the days after the window where readings
+        exist (:func:`schedcheck.runstate.lookback.lookahead_last`), with the frames to learn
+        from.
     """
-    from schedcheck.jobs.common import load_readings
+    from schedcheck.jobs.common import load_readings, no_readings_error
 
-    if first is None or last is None:
-        say("reading all readings to find the whole days they cover")
+    everything = None
+    if first is None or last is None or learns_from_all(site.run_state):
+        say("reading all readings (the levels are learned from all of them)")
         everything = load_readings(site, skip_bad_rows=skip_bad_rows, source=source)
-        first, last = audit_window(site, first, last, everything)
-        start, end = day_window(first, last, site.timezone)
-        return first, last, start, end, clip_readings(everything, start, end,
-                                                      site.readings.max_gap)
-    first, last = audit_window(site, first, last)
+    first, last = audit_window(site, first, last, everything)
     start, end = day_window(first, last, site.timezone)
-    say(f"reading readings for {first} .. {last}")
-    return first, last, start, end, load_readings(site, start, end,
-                                                  skip_bad_rows=skip_bad_rows, source=source)
+    want = lookback_dates(first, site.timezone, site.run_state)
+    lb_start = day_window(want, last, site.timezone)[0]
+    if everything is None:
+        say(f"reading readings for {want} .. {last} (look-back and window)")
+        everything = load_readings(site, lb_start, end, skip_bad_rows=skip_bad_rows,
+                                   source=source)
+    d0, d1 = data_dates(everything, site.timezone)
+    lb_first = min(max(want, d0 or first), first)
+    ahead = max(min(lookahead_last(last, site.run_state), d1 or last), last)
+    lb_start, ahead_end = day_window(lb_first, ahead, site.timezone)
+    window = clip_readings(everything, start, end, site.readings.max_gap)
+    if not any(len(f) for f in window.by_sensor.values()):
+        raise no_readings_error(site, start, end)
+    learn = (everything if learns_from_all(site.run_state)
+             else clip_readings(everything, lb_start, end, site.readings.max_gap))
+    return (first, last, start, end, window,
+            Span(lb_first, ahead, lb_start, ahead_end, learn.by_sensor))
+
+
+@dataclass(frozen=True)
+class Span:
+    """The local dates ``first`` .. ``last`` and the instants ``[start, end)`` classified for a
+    window (its look-back and the days after it), and the readings to learn from by sensor."""
+
+    first: dt.date
+    last: dt.date
+    start: pd.Timestamp
+    end: pd.Timestamp
+    by_sensor: dict
+
+
+def data_dates(readings, tz: str) -> tuple[dt.date | None, dt.date | None]:
+    """The local dates of the first and the last reading of any sensor (None: no readings)."""
+    firsts = [h.first for h in readings.health.values() if h.first is not None]
+    lasts = [h.last for h in readings.health.values() if h.last is not None]
+    if not firsts:
+        return None, None
+    return min(firsts).tz_convert(tz).date(), max(lasts).tz_convert(tz).date()
 
 
 def audit_site(

@@ -69,12 +69,17 @@ def load_readings(site: Site, start: pd.Timestamp | None = None,
                                                 and first.nothing_else):
             raise
         # the files are fine, the asked days hold nothing: point at the dates, in local time
-        d0 = start.tz_convert(site.timezone).date()
-        d1 = last_local_date(end, site.timezone)
-        raise InputError(
-            f"no readings for any configured sensor on {d0} to {d1} (local dates); choose days "
-            f"the readings cover (`schedcheck check {site.path}` lists each sensor's first and "
-            "last reading)", key="--from/--to") from None
+        raise no_readings_error(site, start, end) from None
+
+
+def no_readings_error(site: Site, start: pd.Timestamp, end: pd.Timestamp) -> InputError:
+    """The error for a window ``[start, end)`` in which no configured sensor has a reading."""
+    d0 = start.tz_convert(site.timezone).date()
+    d1 = last_local_date(end, site.timezone)
+    return InputError(
+        f"no readings for any configured sensor on {d0} to {d1} (local dates); choose days "
+        f"the readings cover (`schedcheck check {site.path}` lists each sensor's first and "
+        "last reading)", key="--from/--to")
 
 
 def data_time_range(site: Site, *, limit: bool = True,

@@ -1,8 +1,9 @@
 """The ``states`` job: learned on/off levels per component, how clearly they separate, pictures.
 
 Opens the site, loads the readings of the window (local dates, both inclusive; default the
-whole days covered by the data), classifies every unit (``classify_unit``)
-and returns one record per component. Never prints.
+whole days covered by the data) with its look-back, classifies every unit
+(:func:`schedcheck.runstate.lookback.classify_with_lookback`) and returns one record per
+component. Never prints.
 """
 
 from __future__ import annotations
@@ -15,10 +16,9 @@ import pandas as pd
 
 from schedcheck.errors import InputError
 from schedcheck.outputs.states_records import component_record, picture_name
-from schedcheck.readings.window_clip import audit_window
-from schedcheck.runstate.classify import ComponentStates, classify_unit
+from schedcheck.runstate.classify import ComponentStates
+from schedcheck.runstate.lookback import classify_with_lookback
 from schedcheck.site import Site
-from schedcheck.window import day_window
 
 
 @dataclass
@@ -62,7 +62,8 @@ def site_states(
     plot_dir : str or Path, optional
         Write ``<unit>_<component>.svg`` histogram pictures into this folder.
     """
-    from schedcheck.jobs.common import load_readings, open_readings, open_site
+    from schedcheck.jobs.audit import window_readings
+    from schedcheck.jobs.common import open_readings, open_site
     from schedcheck.outputs.histogram import histogram_svg, write_histogram
 
     site = open_site(site_path)
@@ -73,18 +74,13 @@ def site_states(
         # "--plot levels.svg" made a folder called levels.svg
         raise InputError("looks like a file name; --plot takes a folder and writes one picture "
                          "per component into it", path=plot_dir)
-    source = open_readings(site)
-    # missing dates: the whole days of the data (bad rows skipped, they do not move the range);
-    # the whole read is remembered, so the windowed read below does not parse the files again
-    everything = (source.read(skip_bad_rows=True, keep=True)
-                  if first is None or last is None else None)
-    first, last = audit_window(site, first, last, everything)
-    start, end = day_window(first, last, site.timezone)
-    readings = load_readings(site, start, end, skip_bad_rows=skip_bad_rows, source=source)
-    states: dict[str, ComponentStates] = {}
-    for unit in site.units:
-        states.update(classify_unit(unit, readings.by_sensor, start, end, site.readings.max_gap,
-                                    site.run_state, level_unit=site.readings.unit))
+    # the levels are learned as the audit learns them: from the readings of the files (or the
+    # look-back) with the window's states cut from the look-back's
+    first, last, start, end, readings, span = window_readings(
+        site, first, last, skip_bad_rows=skip_bad_rows, source=open_readings(site))
+    states, _whole = classify_with_lookback(site.units, span.by_sensor, span.start, start, end,
+                                            site.readings.max_gap, site.run_state,
+                                            level_unit=site.readings.unit, ahead_end=span.end)
     records = [component_record(states[c.key]) for c in site.components]
     pictures = []
     if plot_dir is not None:

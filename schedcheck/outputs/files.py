@@ -37,6 +37,7 @@ from schedcheck.outputs.values import (  # noqa: F401 - re-exported
     _r,
     local_iso,
 )
+from schedcheck.runstate.lookback import learns_from_all
 from schedcheck.runstate.states import STATES, StateSets
 
 DAILY_COLUMNS = ("component", "date", "weekday", "day_off", "period_h", "scheduled_h",
@@ -141,6 +142,17 @@ def _days_off_rows(result: AuditResult) -> list[dict]:
     return rows
 
 
+def lookback_fields(result: AuditResult) -> dict[str, object]:
+    """``lookback_start`` (local, None: the window alone) and ``levels_learned_from`` (in words)
+    for ``summary.json``'s period (see :mod:`schedcheck.runstate.lookback`)."""
+    lb = result.lookback_start
+    tz = result.site.timezone
+    learned = ("all readings in the files" if learns_from_all(result.site.run_state)
+               else "the look-back and the window" if lb is not None else "the window")
+    return {"lookback_start": local_iso(lb, tz) if lb is not None else None,
+            "levels_learned_from": learned}
+
+
 def _unit_summary(unit, result: AuditResult) -> dict:
     """A unit's entry: its state is its state component's (its supply fan where it has one)."""
     sc = unit.state_component
@@ -181,7 +193,8 @@ def summary_dict(result: AuditResult, provenance: dict | None = None) -> dict:
                    "first_date": result.first_date.isoformat(),
                    "last_date": result.last_date.isoformat(),
                    "hours": _r((result.end - result.start) / pd.Timedelta("1h"),
-                               HOURS_DECIMALS)},
+                               HOURS_DECIMALS),
+                   **lookback_fields(result)},
         "units": [_unit_summary(u, result) for u in site.units],
         "components": comps,
         "totals": total,

@@ -132,7 +132,7 @@ class ComponentStates:
                  else np.full(len(tab), np.nan))
         bs, be = to_ns(tab["start"]), to_ns(tab["end"])
         codes = np.asarray(tab["state"].astype(str).to_numpy(), dtype=object)
-        starts, share = _summary(bs, be, codes)
+        starts, share = run_summary(bs, be, codes)
         return cls(component, sets, np.asarray(bs, np.int64), np.asarray(be, np.int64), codes,
                    level, None, starts, share, sets.warnings)
 
@@ -219,13 +219,29 @@ def _state_table(
     return bs.astype(np.int64), be.astype(np.int64), codes, level
 
 
-def _summary(bs: np.ndarray, be: np.ndarray, st: np.ndarray) -> tuple[int, float]:
+def run_summary(bs: np.ndarray, be: np.ndarray, st: np.ndarray) -> tuple[int, float]:
     """Seen starts (an ``off`` piece followed by a ``run`` piece) and the run share of the
     known time [-] of contiguous pieces (state names ``st``)."""
     starts = int(((st[1:] == RUN) & (st[:-1] == OFF)).sum())
     length = (np.asarray(be, np.int64) - np.asarray(bs, np.int64)) / 1e9     # [s]
     known = length[st != NO_DATA].sum()
     return starts, (float(length[st == RUN].sum() / known) if known > 0 else float("nan"))
+
+
+def data_warnings(sensor_id: str, bs: np.ndarray, be: np.ndarray, names: np.ndarray, s0: int,
+                  e0: int) -> list[str]:
+    """The warning about missing readings over ``[s0, e0)`` [int64 ns] from the pieces: none
+    at all, or more than :data:`schedcheck.runstate.states.NO_DATA_WARN` ``.note`` of it."""
+    nd_len = (be - bs)[names == NO_DATA]
+    if nd_len.sum() >= e0 - s0:
+        return [f"no readings from sensor {sensor_id} in the window"]
+    nd_h = float(nd_len.sum() / 1e9 / 3600)
+    total_h = (e0 - s0) / 3.6e12
+    if nd_h > NO_DATA_WARN.note * total_h:
+        longest = float(nd_len.max() / 1e9 / 3600)
+        return [f"{nd_h:.1f} h without readings ({nd_h / total_h:.1%} of the window; "
+                f"longest silence {longest:.1f} h)"]
+    return []
 
 
 def _prepared(frame: pd.DataFrame | None, name: str, floor: float) -> _Levels:
@@ -352,18 +368,9 @@ def _finish(
                                         levels.crest[sel], threshold, s0, e0, mg, min_run,
                                         min_stop)
     names = _CODES[codes]
-    starts, share = _summary(bs, be, names)
+    starts, share = run_summary(bs, be, names)
     sets = StateSets(*(Intervals.from_arrays(bs[names == st], be[names == st]) for st in STATES))
-    warn = list(warnings)
-    nd_len = (be - bs)[names == NO_DATA]
-    nd_h = float(nd_len.sum() / 1e9 / 3600)
-    total_h = (e0 - s0) / 3.6e12
-    if not sel.any():
-        warn.append(f"no readings from sensor {component.sensor} in the window")
-    elif nd_h > NO_DATA_WARN.note * total_h:
-        longest = float(nd_len.max() / 1e9 / 3600)
-        warn.append(f"{nd_h:.1f} h without readings ({nd_h / total_h:.1%} of the window; "
-                    f"longest silence {longest:.1f} h)")
+    warn = list(warnings) + data_warnings(component.sensor, bs, be, names, s0, e0)
     return ComponentStates(component, sets, bs, be, names, level, threshold, starts, share,
                            tuple(warn))
 

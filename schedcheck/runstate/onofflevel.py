@@ -18,6 +18,11 @@ Defaults (each with its source):
 * ``HYSTERESIS`` = 0.1 decade either side (about +-26 %), narrowed to a quarter of the distance
   to each group's median when the groups are known (common practice, no source).
 * ``CLOSE_TO_FLOOR``, ``SLOWER_SHARE``: see their comments (common practice, no source).
+* ``RUNNING_SPREAD`` = 2: level groups whose medians lie within this factor of each other are the
+  spread of one running level (running noise, or two close speeds), never a stop and a run:
+  a stopped machine reads several times below its running level (the rule of thumb behind the
+  floor level above) and idle vibration at most ``IDLE_RATIO`` of it. Common practice, no
+  source.
 * ``CARRIED_SHARE`` = 0.95: a middle group is carried vibration when at least this share of its
   readings fall while a sibling moves and at most 1 - this share of the lowest group's
   (common practice, no source).
@@ -40,6 +45,7 @@ FLOOR_BY_UNIT = {"mm/s": 0.2, "in/s": 0.008, "ips": 0.008, "m/s": 0.0002,
 SEPARATION_CAP = 1000.0   # Ashman's D reported at most this (noise-free levels give infinity)
 HYSTERESIS = 0.1          # [decades]
 CARRIED_SHARE = 0.95      # [-]
+RUNNING_SPREAD = 2.0      # [-] ratio of group medians
 DISPLAY_BINS = 60         # histogram bins kept for pictures and summary.json
 CLOSE_TO_FLOOR = 0.3      # [decades] a single group within a factor of 2 of the floor is warned
 #                           about (common practice, no source)
@@ -209,6 +215,20 @@ def _shift_warning(ev: _Evidence, lower: np.ndarray, running: np.ndarray, low: f
     return None if blocks is None else lowgroups.describe_blocks(blocks, 10**low, 10**high)
 
 
+def _running_noise(ev: _Evidence) -> _Choice | None:
+    """Groups that all lie within :data:`RUNNING_SPREAD` of each other, the highest above the
+    floor: one running level split by its own spread; running throughout, the on/off level a
+    factor RUNNING_SPREAD below the lowest group (and at most the floor)."""
+    med, spread = ev.med, float(np.log10(RUNNING_SPREAD))
+    if len(med) < 2 or med[-1] <= ev.F or med[-1] - med[0] >= spread:
+        return None
+    names = ", ".join(f"{10**m:.3g}" for m in med)
+    return _Choice(min(ev.F, med[0] - spread), "floor", np.nan, med[0],
+                   f"{len(med)} level groups (medians {names}) within a factor of "
+                   f"{RUNNING_SPREAD:g} of each other: the spread of one running level, not a "
+                   "stop; running throughout")
+
+
 def _two_groups(ev: _Evidence) -> _Choice:
     """Two level groups: stopped and running, unless both lie on one side of the floor."""
     g, med, F, floor = ev.groups, ev.med, ev.F, ev.floor
@@ -258,6 +278,7 @@ def _three_groups(ev: _Evidence) -> _Choice:
     low, mid = ev.L <= lo_b, (ev.L > lo_b) & (ev.L <= hi_b)
     p_mid, n_mid = _moving_share(mid, ev.sibling_moving)
     p_low, n_low = _moving_share(low, ev.sibling_moving)
+    close = med[2] - med[1] < float(np.log10(RUNNING_SPREAD))
     three = f"three level groups (medians {10**med[0]:.3g}, {10**med[1]:.3g}, {10**med[2]:.3g})"
     as_off = _Choice(hi_b, "learned", med[1], med[2], three)
     as_run = _Choice(lo_b, "learned", med[0], med[1], three)
@@ -273,6 +294,10 @@ def _three_groups(ev: _Evidence) -> _Choice:
                       "stopped machine shaken by its neighbours, set `threshold` to about "
                       f"{10 ** ((med[0] + med[1]) / 2):.3g}")
         return c
+    if close and med[1] > F:
+        as_run.reason += (f"; the middle group lies within a factor of {RUNNING_SPREAD:g} of the "
+                          "running level: the spread of that level, running")
+        return as_run
     shift = _shift_warning(ev, mid, ~low, med[1], med[2])
     if shift:
         as_run.reason += "; the middle group is the running level of some weeks: running"
@@ -368,7 +393,8 @@ def choose_threshold(
     if configured is not None:
         ch = _configured_choice(ev, configured)
     else:
-        ch = {1: _one_group, 2: _two_groups}.get(g.count, _three_groups)(ev)
+        ch = _running_noise(ev) or {1: _one_group, 2: _two_groups}.get(g.count,
+                                                                        _three_groups)(ev)
     warn += ch.warn
     b = th.valley_level(L, ch.lo, ch.hi) if ch.src == "learned" else ch.b
     on, off = _band(b, ch.lo, ch.hi, step)
