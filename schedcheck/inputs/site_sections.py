@@ -9,8 +9,8 @@ and by 1-based position otherwise (``unit[#2].component[#1].id``).
 from __future__ import annotations
 
 import dataclasses
-import difflib
 import datetime as dt
+import difflib
 import typing
 import zoneinfo
 from pathlib import Path

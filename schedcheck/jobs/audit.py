@@ -104,6 +104,7 @@ def audit_site(
     out: str | Path | None = None,
     skip_bad_rows: bool = False,
     progress: Callable[[str], None] | None = None,
+    excel: bool = False,
 ) -> AuditResult:
     """Audit a site and write its files.
 
@@ -119,6 +120,8 @@ def audit_site(
         Skip unreadable readings rows (counted and reported) instead of stopping.
     progress : callable, optional
         Called with a short line at each stage (the CLI shows them on a terminal).
+    excel : bool
+        Write the CSV files as UTF-8 with a byte-order mark, for spreadsheet programs.
 
     Returns
     -------
@@ -136,7 +139,7 @@ def audit_site(
     if outdir.exists() and not outdir.is_dir():
         raise InputError("exists and is not a folder; give another --out", path=outdir)
     try:
-        result.files = write_audit_files(result, outdir)
+        result.files = write_audit_files(result, outdir, excel=excel)
         result.files["report.html"] = write_report_file(outdir)
     except OSError as e:
         raise InputError(f"cannot write the audit files here ({e.strerror or e})",

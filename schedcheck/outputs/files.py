@@ -1,7 +1,9 @@
 """Writers of the audit's files: summary.json, daily.csv, runs.csv, findings.csv, findings.ics
 and schedule.csv (field by field in docs/outputs.md).
 
-Instants in the files are local ISO 8601 with the UTC offset, to the second; hours are rounded
+Instants in the files are local ISO 8601 with the UTC offset, rounded to the second by the one
+rule of :mod:`schedcheck.outputs.instants` (``findings.ics`` too), with local date and time
+columns beside them in the CSV files; hours are rounded
 to :data:`HOURS_DECIMALS` decimals (the identities between them hold exactly before rounding,
 and ``summary.json`` also carries the exact ``seconds``).
 """
@@ -21,6 +23,7 @@ from schedcheck import __version__ as _version
 from schedcheck.audit.accounting import FIGURES
 from schedcheck.audit.run import AuditResult
 from schedcheck.intervals import NS_PER_H, NS_PER_S, from_ns, to_ns
+from schedcheck.outputs.instants import csv_encoding, local_iso, to_second, with_local_columns
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
 from schedcheck.runstate.states import STATES, StateSets
 
@@ -44,13 +47,6 @@ KIND_WORDS = {
     "early_start": "early starts", "late_stop": "late stops", "missed": "missed operation",
     "short_cycling": "short cycling",
 }
-
-
-def local_iso(ts, tz: str) -> str:
-    """A UTC instant as local ISO 8601 with offset, to the second; '' for none."""
-    if ts is None or (not isinstance(ts, str) and pd.isna(ts)):
-        return ""
-    return pd.Timestamp(ts).tz_convert(tz).isoformat(timespec="seconds")
 
 
 def _r(x: float, nd: int) -> float:
@@ -333,8 +329,11 @@ def schedule_frame(result: AuditResult) -> pd.DataFrame:
     return pd.DataFrame(rows, columns=list(SCHEDULE_COLUMNS))
 
 
-def _write_csv(frame: pd.DataFrame, path: Path) -> Path:
-    frame.to_csv(path, index=False, encoding="utf-8", lineterminator="\n")
+def _write_csv(frame: pd.DataFrame, path: Path, *, excel: bool = False,
+               instants: tuple[str, ...] = ("start", "end")) -> Path:
+    """Write ``frame`` with local date and time columns beside its ISO ``instants``."""
+    with_local_columns(frame, instants).to_csv(path, index=False, lineterminator="\n",
+                                               encoding=csv_encoding(excel=excel))
     return path
 
 
@@ -354,14 +353,17 @@ def findings_calendar(result: AuditResult) -> bytes:
     cal.add("prodid", f"-//schedcheck//audit findings {_version}//EN")
     cal.add("version", "2.0")
     cal.add("calscale", "GREGORIAN")
-    cal.add("name", f"{result.site.name}: schedule findings")   # RFC 7986 section 5.1
+    title = f"{result.site.name}: schedule findings"
+    cal.add("name", title)              # RFC 7986 section 5.1
+    cal.add("x-wr-calname", title)      # the same name for calendar programs without RFC 7986
     stamp = result.generated.tz_convert("UTC").to_pydatetime()
     for row in result.findings.itertuples(index=False):
         ev = icalendar.Event()
         ev.add("uid", finding_uid(row.component, row.kind, row.start))
         ev.add("dtstamp", stamp)
-        ev.add("dtstart", pd.Timestamp(row.start).tz_convert("UTC").floor("s").to_pydatetime())
-        ev.add("dtend", pd.Timestamp(row.end).tz_convert("UTC").ceil("s").to_pydatetime())
+        ev.add("dtstart", to_second(pd.Timestamp(row.start).tz_convert("UTC")).to_pydatetime())
+        ev.add("dtend", to_second(pd.Timestamp(row.end).tz_convert("UTC")).to_pydatetime())
+        ev.add("location", result.site.name)
         words = KIND_WORDS.get(row.kind, str(row.kind).replace("_", " "))
         ev.add("summary", f"{row.component}: {words}, {row.hours:.1f} h")
         ev.add("description", str(row.detail))
@@ -383,8 +385,10 @@ def findings_calendar(result: AuditResult) -> bytes:
 
 # -- all of them ----------------------------------------------------------------------------
 
-def write_audit_files(result: AuditResult, outdir: Path) -> dict[str, Path]:
-    """Write every data file of the audit into ``outdir`` (created if needed).
+def write_audit_files(result: AuditResult, outdir: Path, *,
+                      excel: bool = False) -> dict[str, Path]:
+    """Write every data file of the audit into ``outdir`` (created if needed); ``excel``
+    writes the CSV files as UTF-8 with a byte-order mark for spreadsheet programs.
 
     Returns file name -> path; ``report.html`` is written separately (see ``outputs.report``).
     """
@@ -392,10 +396,13 @@ def write_audit_files(result: AuditResult, outdir: Path) -> dict[str, Path]:
     outdir.mkdir(parents=True, exist_ok=True)
     files = {
         "summary.json": write_summary(result, outdir / "summary.json"),
-        "daily.csv": _write_csv(daily_frame(result), outdir / "daily.csv"),
-        "runs.csv": _write_csv(runs_frame(result), outdir / "runs.csv"),
-        "findings.csv": _write_csv(findings_frame(result), outdir / "findings.csv"),
-        "schedule.csv": _write_csv(schedule_frame(result), outdir / "schedule.csv"),
+        "daily.csv": _write_csv(daily_frame(result), outdir / "daily.csv", excel=excel,
+                                instants=()),
+        "runs.csv": _write_csv(runs_frame(result), outdir / "runs.csv", excel=excel),
+        "findings.csv": _write_csv(findings_frame(result), outdir / "findings.csv",
+                                   excel=excel),
+        "schedule.csv": _write_csv(schedule_frame(result), outdir / "schedule.csv",
+                                   excel=excel),
     }
     ics = outdir / "findings.ics"
     ics.write_bytes(findings_calendar(result))
