@@ -11,6 +11,8 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
+import pandas as pd
+
 from schedcheck.errors import InputError, InputProblems
 from schedcheck.inputs.calendar_files import check_calendar_file
 from schedcheck.inputs.readings_files import read_readings
@@ -107,6 +109,7 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
         report.problems.extend(_problems(e))
         return report
     report.health = health_over_data_span(readings, site.readings.max_gap)
+    report.warnings.extend(silence_warnings(report.health))
     report.unconfigured = dict(sorted(readings.unconfigured.items()))
     report.files = readings.files
     report.bad_rows_count = readings.bad_rows_count
@@ -122,6 +125,25 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
     return report
 
 
+def silence_warnings(health: list[SensorHealth]) -> list[str]:
+    """The audit's warning on long silences (the share of ``NO_DATA_WARN.note``), measured
+    over the span of all sensors' data, for each sensor mapped to a component."""
+    from schedcheck.runstate.states import NO_DATA_WARN
+
+    firsts = [h.first for h in health if h.first is not None]
+    if not firsts:
+        return []
+    span_h = (max(h.last for h in health if h.last is not None) - min(firsts)) / pd.Timedelta(
+        "1h")
+    out = []
+    for h in health:
+        if h.component and span_h > 0 and h.gap_hours > NO_DATA_WARN.note * span_h:
+            out.append(f"{h.component} (sensor {h.sensor}): {h.gap_hours:.1f} h without "
+                       f"readings ({h.gap_hours / span_h:.1%} of the data's span; longest "
+                       f"silence {h.longest_gap_hours:.1f} h)")
+    return out
+
+
 def _schedule_warnings(site: Site, readings, report: CheckReport) -> list[str]:
     """The schedule's warnings (empty or cancelled calendars, events left out, no occupied
     period) over the days the data covers, as the audit will show them."""
@@ -133,4 +155,13 @@ def _schedule_warnings(site: Site, readings, report: CheckReport) -> list[str]:
     except InputError as e:
         report.problems.extend(_problems(e))
         return []
+    for unit in site.units:
+        sched = schedules.get(unit.id)
+        if sched is not None and not (sched.intervals["kind"] == "occupied").any():
+            names = ", ".join(p.name for p in unit.schedule.occupied or site.schedule.occupied)
+            report.problems.append(InputError(
+                f"unit {unit.id} has no occupied hour from {first} to {last} in {names}: "
+                "every event lacks a length (DTEND or DURATION), or holidays and closures "
+                "take them all; nothing could be judged", path=site.path,
+                key=f"unit[{unit.id}].schedule.occupied"))
     return [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings]
