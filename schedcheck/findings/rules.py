@@ -200,7 +200,28 @@ def _day_label(ctx: Context, day: dt.date, occupied_dates: set[dt.date]):
         return ("night",)
     if day in ctx.days_off:
         return ("holiday", day)
+    if unscheduled_weekday(day, occupied_dates):
+        return ("unscheduled_day",)
     return ("weekend",)
+
+
+def unscheduled_weekday(day: dt.date, occupied_dates: set[dt.date]) -> bool:
+    """A Monday to Friday with no occupied period (and no day off) whose weekday is occupied
+    on other dates of the window: a working day taken out of the calendar (an EXDATE, a
+    cancelled or deleted occurrence), not a weekend."""
+    return day.weekday() < 5 and any(d.weekday() == day.weekday() for d in occupied_dates)
+
+
+def _unscheduled_finding(ctx: Context, part: Intervals, runs: str) -> Found:
+    s, e = int(part.starts[0]), int(part.ends[-1])
+    hours = part.hours()
+    d0, d1 = local_dates([s, e - 1], ctx.tz)
+    day = day_text(d0) if d0 == d1 else f"{day_text(d0, year=False)} to {day_text(d1)}"
+    detail = (f"Ran {hours:.1f} h{runs} on {day} {span_text(s, e, ctx.tz)}, a working day with "
+              "no occupied period in the calendar (taken out of the series){energy}; check "
+              "whether the building was in use that day: if it was, the calendar is wrong, if "
+              "not, look for an override or a time programme that did not follow the change.")
+    return Found("unscheduled_day", s, e, d0, hours, hours, detail)
 
 
 def _overnight(ctx: Context, ep: Intervals, first: dt.date, last: dt.date,
@@ -260,6 +281,8 @@ def _day_finding(ctx: Context, label: tuple, part: Intervals) -> Found:
     d0, d1 = local_dates([s, e - 1], ctx.tz)
     runs = f" in {len(part)} runs" if len(part) > 1 else ""
     when = span_text(s, e, ctx.tz)
+    if label[0] == "unscheduled_day":
+        return _unscheduled_finding(ctx, part, runs)
     if label[0] == "holiday":
         name, kind = ctx.days_off[label[1]]
         date = f"{label[1].day} {label[1]:%b %Y}"

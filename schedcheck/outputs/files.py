@@ -42,7 +42,7 @@ SCHEDULE_COLUMNS = ("unit", "kind", "start", "end", "source")
 #: plain words for each finding kind, used in calendar event titles
 KIND_WORDS = {
     "night": "off-schedule running (working day or night)", "weekend": "weekend running",
-    "holiday": "holiday running",
+    "holiday": "holiday running", "unscheduled_day": "running on a working day off the calendar",
     "continuous": "continuous running", "clock_offset": "clock offset",
     "early_start": "early starts", "late_stop": "late stops", "missed": "missed operation",
     "short_cycling": "short cycling",

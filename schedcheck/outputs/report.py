@@ -31,6 +31,7 @@ KIND_LABELS = {
     "night": "Off-schedule running on a working day or night",
     "weekend": "Weekend running",
     "holiday": "Running on a holiday or closure day",
+    "unscheduled_day": "Running on a working day taken out of the calendar",
     "continuous": "Ran 24 h or more without stopping",
     "clock_offset": "Start and stop shifted by about an hour",
     "early_start": "Repeated early start",
@@ -44,6 +45,8 @@ KIND_ASKS = {
     "night": "Check the time program and any overrides, optimum-start or night settings that "
              "run {what} outside the occupied period and its allowances.",
     "weekend": "Check the weekend entries of the time program of {what}.",
+    "unscheduled_day": "Check whether the days taken out of the calendar were really unoccupied, "
+                       "and that the time program of {what} follows them.",
     "holiday": "Load the public holidays and closure dates into the controller's holiday "
                "calendar for {what}.",
     "continuous": "Look for a manual override, a switch left in hand, or a stuck occupancy "
