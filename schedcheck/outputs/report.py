@@ -21,6 +21,7 @@ from schedcheck.errors import InputError
 from schedcheck.outputs import svg
 from schedcheck.outputs.histogram import histogram_svg
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
+from schedcheck.outputs.wording import monitored_words
 
 FINDINGS_SHOWN = 300  # rows of the findings table on the page (common practice, no source)
 
@@ -249,6 +250,7 @@ def report_context(data: SavedAudit) -> dict:
         "co2_per_kwh": site.get("co2_per_kwh"), "reading_unit": site.get("reading_unit", ""),
         "first": first.strftime("%a %d %b %Y"), "last": last.strftime("%a %d %b %Y"),
         "ndays": ndays, "period": s["period"], "units": units, "components": comps,
+        "monitored": monitored_words(c.get("role") for c in s.get("components") or []),
         "totals": totals, "findings": findings[:FINDINGS_SHOWN],
         "findings_hidden": findings[FINDINGS_SHOWN:], "n_findings": len(findings),
         "asks": _asks(findings, by_id),
