@@ -25,6 +25,9 @@ def states_table(result) -> object:
     starts/day, warnings."""
     from rich.table import Table
 
+    from schedcheck.outputs.wording import separation_text
+    from schedcheck.runstate.onofflevel import SEPARATION_CAP
+
     unit = result.site.readings.unit
     title = (f"{result.site.name}: run states {result.first} to {result.last} "
              f"({result.site.timezone} local dates)")
@@ -35,8 +38,7 @@ def states_table(result) -> object:
                        ("Starts/day", "right"), ("Why this level; warnings", "left")):
         table.add_column(head, justify=just, overflow="fold")
     for r in result.records:
-        sep = r["separation"]
-        sep_text = "-" if sep is None else (f">{sep:.0f}" if sep >= 1000 else f"{sep:.1f}")
+        sep_text = separation_text(r["separation"], SEPARATION_CAP)
         share = "-" if r["running_share"] is None else f"{r['running_share']:.1%}"
         why = r["reason"] + "".join(f"\nwarning: {w}" for w in r["warnings"])
         table.add_row(r["component"], _cell(r["level"], ".3g"), r["source"], sep_text,

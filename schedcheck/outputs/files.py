@@ -25,6 +25,8 @@ from schedcheck.audit.run import AuditResult
 from schedcheck.intervals import NS_PER_H, NS_PER_S, from_ns, to_ns
 from schedcheck.outputs.instants import csv_encoding, local_iso, to_second, with_local_columns
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
+from schedcheck.outputs.wording import separation_figure
+from schedcheck.runstate.onofflevel import SEPARATION_CAP
 from schedcheck.runstate.states import STATES, StateSets
 
 HOURS_DECIMALS = 3      # 0.001 h = 3.6 s: finer than the one-minute readings
@@ -96,6 +98,7 @@ def _threshold(comp) -> dict:
     out = {key: _plain(get(key, None)) for key in
            ("level", "source", "separation", "effectiveness", "on_level", "off_level", "floor",
             "step", "confidence", "near_share")}
+    out["separation"] = separation_figure(get("separation", None), SEPARATION_CAP)
     out["concerns"] = [str(x) for x in get("concerns", ()) or ()]
     out["histogram"] = _plain(hist) if hist is not None else {"edges": [], "counts": []}
     out["groups"] = _plain(get("groups", ()) or ())

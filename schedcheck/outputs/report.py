@@ -21,7 +21,8 @@ from schedcheck.errors import InputError
 from schedcheck.outputs import svg
 from schedcheck.outputs.histogram import histogram_svg
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
-from schedcheck.outputs.wording import monitored_words
+from schedcheck.outputs.wording import monitored_words, separation_text
+from schedcheck.runstate.onofflevel import SEPARATION_CAP
 
 FINDINGS_SHOWN = 300  # rows of the findings table on the page (common practice, no source)
 
@@ -86,6 +87,7 @@ def _fmt(value, digits: int = 1) -> str:
 
 
 _ENV.filters["num"] = _fmt
+_ENV.filters["separation"] = lambda x: separation_text(x, SEPARATION_CAP)
 
 
 def _local(ts: pd.Timestamp, tz: str, fmt: str = "%a %d %b %Y %H:%M") -> str:

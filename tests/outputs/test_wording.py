@@ -28,3 +28,20 @@ def test_headline_of_a_site_without_wheels_says_fans(result, tmp_path):  # noqa:
     path.write_text(json.dumps(s))
     html = write_report(tmp_path).read_text()
     assert "the monitored fans ran" in html and "wheel" not in html.split("monitored", 1)[1][:40]
+
+
+def test_one_separation_figure_in_states_summary_and_report():
+    from types import SimpleNamespace as NS
+
+    from schedcheck.outputs.files import _threshold
+    from schedcheck.outputs.report import _ENV
+    from schedcheck.outputs.wording import separation_figure, separation_text
+    from schedcheck.runstate.onofflevel import SEPARATION_CAP
+
+    for raw, figure, text in ((2.7934, 2.8, "2.8"), (5e6, SEPARATION_CAP, ">1000"),
+                              (None, None, "-")):
+        assert separation_figure(raw, SEPARATION_CAP) == figure
+        assert separation_text(raw, SEPARATION_CAP) == text           # states table
+        comp = NS(threshold={"separation": raw}, state_warnings=())
+        assert _threshold(comp)["separation"] == figure                # summary.json
+        assert _ENV.filters["separation"](figure) == text              # report, from summary
