@@ -109,7 +109,6 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
         report.problems.extend(_problems(e))
         return report
     report.health = health_over_data_span(readings, site.readings.max_gap)
-    report.warnings.extend(silence_warnings(report.health))
     report.unconfigured = dict(sorted(readings.unconfigured.items()))
     report.files = readings.files
     report.bad_rows_count = readings.bad_rows_count
@@ -120,8 +119,12 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
         report.problems.extend(readings.bad_rows_problems)
         report.warnings.extend(w for w in readings.warnings
                                if w is not readings.bad_rows_warning)
+    before = len(report.problems)
     if not calendar_problems:
         report.warnings.extend(_schedule_warnings(site, readings, report))
+    if not any(p.key == "readings.files" for p in report.problems[before:]):
+        # silences are measured over the data's span: not when the span itself is wrong
+        report.warnings.extend(silence_warnings(report.health))
     return report
 
 
