@@ -27,6 +27,11 @@ def _signed(x: float) -> str:
     return "0.0" if text in ("+0.0", "-0.0") else text
 
 
+def _interval(lo: float, hi: float) -> str:
+    """A 95% interval in the table's short form: ``-0.1..+2.6``."""
+    return f"{_signed(lo)}..{_signed(hi)}"
+
+
 def _verdict(diff: float, lo: float, hi: float) -> str:
     """Plain words for a difference of off-schedule hours and its 95% interval."""
     if lo > 0:
@@ -79,7 +84,7 @@ def compare_table(result) -> object:
         lo, hi = off.ci95
         table.add_row(
             cid, f"{off.before_mean:.1f} to\n{off.after_mean:.1f}",
-            f"{_signed(off.difference)}\n{_signed(lo)}..{_signed(hi)}",
+            f"{_signed(off.difference)}\n{_interval(lo, hi)}",
             f"{kwh.before_mean:.1f} to\n{kwh.after_mean:.1f}",
             "-" if missed is None else f"{missed.before_mean:.1f} to\n{missed.after_mean:.1f}",
             _verdict_for(c),
