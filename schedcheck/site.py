@@ -88,6 +88,9 @@ class HolidaySettings:
     categories: tuple[str, ...] = ("public",)
     closed: tuple[tuple[dt.date, dt.date], ...] = ()   # inclusive local date ranges
     language: str = "en_US"                   # pinned holiday-name language
+    drop_names: tuple[str, ...] = ()          # public holidays the site works on, by name
+    drop_dates: tuple[dt.date, ...] = ()      # ... and by local date
+    add: tuple[dt.date, ...] = ()             # extra days off kept as holidays (local dates)
 
 
 @dataclass(frozen=True)

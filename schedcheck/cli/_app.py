@@ -15,7 +15,18 @@ app = typer.Typer(
 )
 
 
+def _show_version(value: bool) -> None:
+    if value:
+        from schedcheck import __version__
+
+        print(f"schedcheck {__version__}")
+        raise typer.Exit()
+
+
 @app.callback()
-def _root() -> None:
+def _root(
+    version: bool = typer.Option(False, "--version", callback=_show_version, is_eager=True,
+                                 help="Print the version and exit."),
+) -> None:
     """Find air handling units that run outside their intended schedule, from fan vibration
     readings, and price the waste with the fan affinity laws."""

@@ -19,6 +19,11 @@ SkipBadRows = Annotated[bool, typer.Option(
     "--skip-bad-rows", help="Skip unreadable readings rows (counted) instead of stopping at the "
     "first.")]
 
+#: ``--excel`` of the commands that write CSV
+Excel = Annotated[bool, typer.Option(
+    "--excel", help="Write CSV as UTF-8 with a byte-order mark, so spreadsheet programs read "
+    "accented letters.")]
+
 
 def parse_date(text: str | None, option: str) -> dt.date | None:
     """A local date option (``2026-03-01``) or None."""

@@ -9,7 +9,7 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import SiteArg, SkipBadRows, interactive, parse_date
+from schedcheck.cli._common import Excel, SiteArg, SkipBadRows, interactive, parse_date
 
 
 def _progress(message: str) -> None:
@@ -87,6 +87,7 @@ def audit(
     out: Annotated[Path | None, typer.Option(
         "--out", help="Folder for the audit files [default: ./audit-<site name>].")] = None,
     skip_bad_rows: SkipBadRows = False,
+    excel: Excel = False,
 ) -> int:
     """Compare when each unit ran with when it was meant to, price the difference, and write
     summary.json, daily.csv, runs.csv, findings.csv, findings.ics, schedule.csv and report.html.
@@ -102,7 +103,7 @@ def audit(
 
     d0, d1 = parse_date(first, "--from"), parse_date(last, "--to")
     result = audit_site(site, d0, d1, out=out, skip_bad_rows=skip_bad_rows,
-                        progress=_progress if interactive() else None)
+                        progress=_progress if interactive() else None, excel=excel)
     console = Console(width=None if sys.stdout.isatty() else 120, highlight=False)
     console.print(summary_table(result))
     # the site's warnings, then each component's run-state warnings (a level that does not

@@ -100,5 +100,9 @@ def check(
     if n:
         print(f"{n} problem{'s' if n > 1 else ''} found in the inputs of {site}", file=sys.stderr)
         return 2
-    out.print(f"All inputs look fine ({len(report.warnings)} warning(s)).", markup=False)
+    w = len(report.warnings)
+    plural = w > 1
+    out.print("All inputs look fine." if not w else
+              f"No errors, but {w} warning{'s' if plural else ''} above "
+              f"deserve{'' if plural else 's'} a look before the audit.", markup=False)
     return 0

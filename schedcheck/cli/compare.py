@@ -28,15 +28,8 @@ def _signed(x: float) -> str:
 
 
 def _interval(lo: float, hi: float) -> str:
-    return f"[{_signed(lo)}, {_signed(hi)}]"
-
-
-def _span(p) -> str:
-    """``2026-04-20``, or ``2026-03-28..03-30`` when the data cannot tell the day."""
-    if p.latest == p.date:
-        return str(p.date)
-    fmt = "%m-%d" if p.latest.year == p.date.year else "%Y-%m-%d"
-    return f"{p.date}..{p.latest.strftime(fmt)}"
+    """A 95% interval in the table's short form: ``-0.1..+2.6``."""
+    return f"{_signed(lo)}..{_signed(hi)}"
 
 
 def _verdict(diff: float, lo: float, hi: float) -> str:
@@ -50,47 +43,102 @@ def _verdict(diff: float, lo: float, hi: float) -> str:
     return "no clear change"
 
 
+def _verdict_for(c) -> str:
+    """The verdict, held back where the notes say the interval rests on too few days."""
+    from schedcheck.changes.compare import FEW_DAYS
+
+    off = c.figures["off_schedule_h_per_day"]
+    if any(getattr(n, "kind", None) == FEW_DAYS for n in c.notes):
+        return "too few days to judge"
+    return _verdict(off.difference, *off.ci95)
+
+
 def compare_table(result) -> object:
-    """The per-component table (a rich Table)."""
+    """The per-component table (a rich Table) that fits an 80-column terminal: values wrap
+    at their spaces, ids and dates are never cut; a component with notes is marked ``*n``
+    and its notes are listed under the table (see :func:`note_lines`)."""
+    from rich import box
     from rich.table import Table
 
     table = Table(
         title=(f"{result.site_name}: {result.before_days} days before and {result.after_days} "
                f"days from {result.change}"),
-        title_justify="left",
+        title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False, padding=(0, 1),
+        collapse_padding=True, show_edge=False,
     )
-    table.add_column("Component")
-    for head in ("Off-schedule h/day", "Change (95% interval)", "Off-schedule kWh/day",
-                 "Missed h/day"):
-        table.add_column(head, justify="right")
-    table.add_column("Verdict")
-    table.add_column("Pattern changed on")
+    table.add_column("Component", no_wrap=True)
+    for head in ("Off\nh", "Change\nh", "Off\nkWh", "Missed\nh"):
+        table.add_column(head, justify="right", overflow="fold")
+    table.add_column("Verdict", min_width=12, overflow="fold")
+    table.add_column("Pattern\nchanged", no_wrap=True)
+    marks = _note_marks(result)
+    year = result.change.year
     for c in result.components:
+        cid = c.id + (f"*{marks[c.id]}" if c.id in marks else "")
         if not c.figures:
-            table.add_row(c.id, "-", "-", "-", "-", "not enough data", "-")
+            table.add_row(cid, "-", "-", "-", "-", "not enough data", "-")
             continue
         off = c.figures["off_schedule_h_per_day"]
         kwh = c.figures["kwh_per_day"]
         missed = c.figures.get("missed_h_per_day")
+        lo, hi = off.ci95
         table.add_row(
-            c.id, f"{off.before_mean:.1f} to {off.after_mean:.1f}",
-            f"{_signed(off.difference)} {_interval(*off.ci95)}",
-            f"{kwh.before_mean:.1f} to {kwh.after_mean:.1f}",
-            "-" if missed is None else f"{missed.before_mean:.1f} to {missed.after_mean:.1f}",
-            _verdict(off.difference, *off.ci95),
-            " ".join(_span(p) for p in c.change_points) or "-",
+            cid, f"{off.before_mean:.1f} to\n{off.after_mean:.1f}",
+            f"{_signed(off.difference)}\n{_interval(lo, hi)}",
+            f"{kwh.before_mean:.1f} to\n{kwh.after_mean:.1f}",
+            "-" if missed is None else f"{missed.before_mean:.1f} to\n{missed.after_mean:.1f}",
+            _verdict_for(c),
+            "\n".join(_short_span(p, year) for p in c.change_points) or "-",
         )
+    table.caption = (f"Figures per day, before to after. Off: off-schedule running. Change: "
+                     f"after minus before, with its 95% interval. Pattern changed: dates in "
+                     f"{year} unless a year is shown.")
+    table.caption_justify = "left"
     return table
+
+
+def _short_span(p, year: int) -> str:
+    """A change-point date for the 80-column table: ``04-20`` (``2025-12-30`` in another
+    year), ``04-20..22`` or ``04-28..05-02`` where the data cannot tell the day."""
+    def one(d):
+        return d.strftime("%m-%d") if d.year == year else d.isoformat()
+    if p.latest == p.date:
+        return one(p.date)
+    same_month = (p.latest.year, p.latest.month) == (p.date.year, p.date.month) == (
+        year, p.date.month)
+    return f"{one(p.date)}..{p.latest:%d}" if same_month else f"{one(p.date)}..{one(p.latest)}"
+
+
+def _note_marks(result) -> dict[str, int]:
+    """Component id -> the number of its group of notes (components with the same notes share
+    one number, so one note is listed once)."""
+    groups: dict[tuple[str, ...], int] = {}
+    marks = {}
+    for c in result.components:
+        if c.notes:
+            key = tuple(str(n) for n in c.notes)
+            marks[c.id] = groups.setdefault(key, len(groups) + 1)
+    return marks
+
+
+def note_lines(result) -> list[str]:
+    """The notes behind the table's ``*n`` marks, one line per note."""
+    marks = _note_marks(result)
+    lines, done = [], set()
+    for c in result.components:
+        if c.id not in marks or marks[c.id] in done:
+            continue
+        done.add(marks[c.id])
+        who = ", ".join(k for k, v in marks.items() if v == marks[c.id])
+        lines += [f"*{marks[c.id]} {who}: {n}" for n in c.notes]
+    return lines
 
 
 def _advice(result) -> list[str]:
     """One plain line per component worth a second look after the change."""
-    from schedcheck.changes.compare import LEFT_OUT
-
     lines = []
     for c in result.components:
         if not c.figures:
-            lines += [f"{c.id}: {n}" for n in c.notes]
             continue
         kwh = c.figures["kwh_per_day"]
         off = c.figures["off_schedule_h_per_day"]
@@ -113,9 +161,6 @@ def _advice(result) -> list[str]:
                 f"from a day between {p.date} and {p.latest}"
             lines.append(f"{c.id}: {when} off-schedule running settles at "
                          f"{p.after_mean:.1f} h/day (was {p.before_mean:.1f}).")
-        for note in c.notes:
-            if note.kind == LEFT_OUT:
-                lines.append(f"{c.id}: {note}")
     return lines
 
 
@@ -157,7 +202,7 @@ def compare(
         return 0
     console = Console(width=None if sys.stdout.isatty() else 160, highlight=False)
     console.print(compare_table(result))
-    for line in _advice(result):
+    for line in note_lines(result) + _advice(result):
         console.print(line, markup=False, soft_wrap=True)
     for w in result.warnings[:10]:
         console.print(f"warning: {w}", markup=False, soft_wrap=True)

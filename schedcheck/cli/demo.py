@@ -19,9 +19,13 @@ def _faults_table(result) -> object:
 
     demo = result.demo
     table = Table(title="Planted faults (the generator's truth, in truth/faults.json)",
-                  title_justify="left", box=box.SIMPLE_HEAD)
+                  title_justify="left", box=box.SIMPLE_HEAD,
+                  caption="Hours as the audit counts them: off-schedule running (for missed: "
+                          "occupied hours off), one figure per component.",
+                  caption_justify="left")
     for name in ("Components", "Kind", "Local dates", "Hours"):
         table.add_column(name, justify="right" if name == "Hours" else "left")
+    hours = result.audited_hours
     groups: dict[tuple[str, str], list] = {}
     for f in demo.faults:
         groups.setdefault((f.unit, f.kind), []).append(f)
@@ -29,7 +33,7 @@ def _faults_table(result) -> object:
         dates = fs[0].dates
         shown = ", ".join(dates) if len(dates) <= 4 else f"{dates[0]} .. {dates[-1]} ({len(dates)})"
         table.add_row(", ".join(f.component for f in fs), kind, shown,
-                      " / ".join(f"{f.hours:.1f}" for f in fs))
+                      " / ".join(f"{hours.get((f.component, f.kind), f.hours):.1f}" for f in fs))
     return table
 
 

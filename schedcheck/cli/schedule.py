@@ -11,17 +11,20 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import SiteArg, parse_date
+from schedcheck.cli._common import Excel, SiteArg, parse_date
 from schedcheck.errors import InputError
 
 FORMATS = ("table", "json", "csv")
-CSV_FIELDS = ["unit", "kind", "start", "end", "source", "date", "name"]
+CSV_FIELDS = ["unit", "kind", "start", "start_date", "start_time", "end", "end_date",
+              "end_time", "source", "date", "name"]
 
 
 def schedule_records(result) -> list[dict]:
     """The JSON records: intervals ``{unit, kind, start, end, source}`` (local ISO 8601 with
     offset) and one ``{unit, kind: "holiday", date, name}`` per holiday or closure date;
     per unit, in time order, a date's days off before its intervals."""
+    from schedcheck.outputs.instants import local_iso
+
     tz = result.site.timezone
     out = []
     for unit_id, sched in result.units:
@@ -31,10 +34,10 @@ def schedule_records(result) -> list[dict]:
                 "unit": unit_id, "kind": "holiday", "date": r.date.isoformat(),
                 "name": str(r.name)}))
         for r in sched.intervals.itertuples(index=False):
-            s, e = r.start.tz_convert(tz), r.end.tz_convert(tz)
+            s = r.start.tz_convert(tz)
             rows.append(((s.date().isoformat(), r.start.value), {
-                "unit": unit_id, "kind": r.kind, "start": s.isoformat(),
-                "end": e.isoformat(), "source": str(r.source)}))
+                "unit": unit_id, "kind": r.kind, "start": local_iso(r.start, tz),
+                "end": local_iso(r.end, tz), "source": str(r.source)}))
         rows.sort(key=lambda x: x[0])
         out.extend(rec for _, rec in rows)
     return out
@@ -66,12 +69,18 @@ def schedule_table(result, records: list[dict]) -> object:
 
 
 def schedule_csv(records: list[dict]) -> str:
-    """CSV text with the JSON fields, one row per record (empty cells where a field is absent)."""
+    """CSV text with the JSON fields, one row per record (empty cells where a field is absent),
+    and the local date and time of each start and end beside it."""
+    from schedcheck.outputs.instants import local_parts
+
     buf = io.StringIO()
     writer = csv.DictWriter(buf, fieldnames=CSV_FIELDS, lineterminator="\n")
     writer.writeheader()
     for rec in records:
-        writer.writerow({k: rec.get(k, "") for k in CSV_FIELDS})
+        row = {k: rec.get(k, "") for k in CSV_FIELDS}
+        for end in ("start", "end"):
+            row[f"{end}_date"], row[f"{end}_time"] = local_parts(row[end])
+        writer.writerow(row)
     return buf.getvalue()
 
 
@@ -86,6 +95,7 @@ def schedule(
         "--to", help="Last local date, inclusive (YYYY-MM-DD).")] = None,
     fmt: Annotated[str, typer.Option(
         "--format", help="table, json or csv.")] = "table",
+    excel: Excel = False,
 ) -> int:
     """Show what each unit was meant to do: occupied periods, allowances (early start, late
     stop), allowed windows, public holidays and closures, as local times.
@@ -96,6 +106,7 @@ def schedule(
     Example: schedcheck schedule site.toml --unit AHU-1 --from 2026-03-30 --to 2026-04-05
     """
     from schedcheck.jobs.schedule import site_schedule
+    from schedcheck.outputs.instants import csv_encoding
 
     if fmt not in FORMATS:
         raise InputError(f"{fmt!r} is not a format; choose table, json or csv", key="--format")
@@ -107,7 +118,14 @@ def schedule(
     if fmt == "json":
         sys.stdout.write(json.dumps(records, indent=2, ensure_ascii=False) + "\n")
     elif fmt == "csv":
-        sys.stdout.write(schedule_csv(records))
+        text = schedule_csv(records)
+        raw = getattr(sys.stdout, "buffer", None)
+        if raw is None:    # a text-only stream: the mark as a character
+            sys.stdout.write(("\ufeff" if excel else "") + text)
+        else:
+            sys.stdout.flush()
+            raw.write(text.encode(csv_encoding(excel=excel)))
+            raw.flush()
     else:
         from rich.console import Console
 

@@ -21,28 +21,44 @@ def _cell(x, fmt: str) -> str:
 
 
 def states_table(result) -> object:
-    """A rich Table: component, level, source, separation, confidence, running share,
-    starts/day, warnings."""
+    """A rich Table that fits an 80-column terminal: component, level, source, separation,
+    confidence, running share, starts/day, and a mark ``*n`` pointing to the component's
+    reason and warnings, listed under the table by :func:`reason_lines`."""
+    from rich import box
     from rich.table import Table
+
+    from schedcheck.outputs.wording import separation_text
+    from schedcheck.runstate.onofflevel import SEPARATION_CAP
 
     unit = result.site.readings.unit
     title = (f"{result.site.name}: run states {result.first} to {result.last} "
              f"({result.site.timezone} local dates)")
-    table = Table(title=title, title_justify="left", show_lines=True)
-    for head, just in (("Component", "left"), (f"Level [{unit}]", "right"),
-                       ("Source", "left"), ("Separation", "right"), ("Confidence", "left"),
-                       ("Running", "right"),
-                       ("Starts/day", "right"), ("Why this level; warnings", "left")):
-        table.add_column(head, justify=just, overflow="fold")
-    for r in result.records:
-        sep = r["separation"]
-        sep_text = "-" if sep is None else (f">{sep:.0f}" if sep >= 1000 else f"{sep:.1f}")
+    table = Table(title=title, title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False,
+                  show_edge=False)
+    from rich.text import Text
+
+    for head, just in (("Component", "left"), (Text(f"Level\n[{unit}]"), "right"),
+                       ("Source", "left"), ("Separ-\nation", "right"), ("Confi-\ndence", "left"),
+                       ("Running", "right"), ("Starts\n/day", "right"), ("Why", "right")):
+        table.add_column(head, justify=just, overflow="fold", no_wrap=head == "Component")
+    # a Text header: "[mm/s]" would otherwise be read as console markup and vanish
+    for i, r in enumerate(result.records, 1):
         share = "-" if r["running_share"] is None else f"{r['running_share']:.1%}"
-        why = r["reason"] + "".join(f"\nwarning: {w}" for w in r["warnings"])
-        table.add_row(r["component"], _cell(r["level"], ".3g"), r["source"], sep_text,
+        table.add_row(r["component"], _cell(r["level"], ".3g"), r["source"],
+                      separation_text(r["separation"], SEPARATION_CAP),
                       r.get("confidence") or "-", share,
-                      _cell(r["starts_per_day"], ".1f"), why)
+                      _cell(r["starts_per_day"], ".1f"), f"*{i}")
     return table
+
+
+def reason_lines(result) -> list[str]:
+    """Why each level was chosen, and its warnings: one paragraph per component, numbered as
+    the table's ``*n`` marks (paragraphs wrap at the terminal's width, not in a column)."""
+    out = []
+    for i, r in enumerate(result.records, 1):
+        out.append(f"*{i} {r['component']}: {r['reason']}")
+        out += [f"   warning: {w}" for w in r["warnings"]]
+    return out
 
 
 @app.command()
@@ -81,6 +97,8 @@ def states(
 
         console = Console(width=None if sys.stdout.isatty() else 140, highlight=False)
         console.print(states_table(result))
+        for line in reason_lines(result):
+            console.print(line, markup=False)
         console.print("Separation is Ashman's D between stopped and running readings (above 2: "
                       "cleanly apart). Set `threshold` on a component in the site file to "
                       "override a level.")

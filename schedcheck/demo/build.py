@@ -74,7 +74,7 @@ _NS_MIN = 60 * NS_PER_S
 # Side effects: a late clock also gives short missed mornings (up to about 55 min here) and
 # late stops; a unit stuck running also runs through nights, weekends and holidays.
 MAY_ALSO_SHOW = {"clock_offset": ("missed", "late_stop", "early_start"),
-                 "continuous": ("night", "weekend", "holiday")}
+                 "continuous": ("night", "weekend", "holiday", "unscheduled_day")}
 
 
 @dataclass(frozen=True)

@@ -240,3 +240,27 @@ def score_states(
         "unmatched": [from_ns([u])[0] for u in sorted(unmatched)],
         "max_error": pd.Timedelta(worst),
     }
+
+
+def fault_hours_as_audited(kind: str, episodes, schedule: pd.DataFrame) -> float:
+    """A planted fault's hours by the audit's definitions [h], so the demo's table of planted
+    faults can be read against the audit's table: for ``missed`` the occupied time inside the
+    fault (the fan was off), for every other kind the fault's running outside occupied
+    periods, allowances and allowed windows (off-schedule running).
+
+    Parameters
+    ----------
+    kind : str
+        The fault's finding kind.
+    episodes : sequence of (Timestamp, Timestamp)
+        The fault's true UTC ``[start, end)`` spans.
+    schedule : pandas.DataFrame
+        The unit's intended intervals (``start``, ``end``, ``kind``: occupied, allowance,
+        allowed), as :func:`schedcheck.schedule.intended.unit_schedule` gives them.
+    """
+    ep = Intervals.from_arrays([_utc(a).value for a, _ in episodes],
+                               [_utc(b).value for _, b in episodes])
+    if kind == "missed":
+        occupied = Intervals.from_frame(schedule[schedule["kind"] == "occupied"])
+        return ep.intersection(occupied).hours()
+    return ep.difference(Intervals.from_frame(schedule)).hours()

@@ -14,15 +14,25 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from schedcheck.intervals import NS_PER_H, Intervals, from_ns
+from schedcheck.findings.timetext import (  # noqa: F401 - re-exported for the other rules
+    NS_PER_MIN,
+    _list_dates,
+    _long,
+    day_text,
+    hhmm,
+    local,
+    local_dates,
+    midnight_ns,
+    minutes_text,
+    span_text,
+)
+from schedcheck.intervals import NS_PER_H, Intervals
 from schedcheck.site import FAN_ROLES
-from schedcheck.window import local_midnight
 
 if TYPE_CHECKING:
     from schedcheck.audit.accounting import ScheduleSets
     from schedcheck.runstate.states import StateSets
 
-NS_PER_MIN = 60 * 1_000_000_000
 # An episode from the afternoon or evening of one date to the morning of the next, next to a
 # working day, is one night finding even when the other date is a weekend day or a holiday
 # (the override is the night's, not the day's). Local hour that splits "evening" from
@@ -110,56 +120,6 @@ class Found:
     detail: str
 
 
-# -- local time helpers -------------------------------------------------------------------
-def local_dates(ns, tz: str) -> list[dt.date]:
-    """Local dates of int64 ns instants."""
-    return list(from_ns(np.atleast_1d(np.asarray(ns, dtype=np.int64))).tz_convert(tz).date)
-
-
-def local(ns: int, tz: str) -> pd.Timestamp:
-    return pd.Timestamp(int(ns), tz="UTC").tz_convert(tz)
-
-
-def midnight_ns(day: dt.date, tz: str) -> int:
-    return int(local_midnight(day, tz).value)
-
-
-def day_text(day: dt.date, year: bool = True) -> str:
-    return f"{day:%a} {day.day} {day:%b}" + (f" {day.year}" if year else "")
-
-
-def hhmm(ns: int, tz: str) -> str:
-    return f"{local(ns, tz):%H:%M}"
-
-
-def span_text(s: int, e: int, tz: str) -> str:
-    """'from 05:58 to 17:04', with weekdays when the span crosses midnight."""
-    a, b = local(s, tz), local(e, tz)
-    if a.date() == b.date() or (b - a <= pd.Timedelta("24h") and b.hour == 0 and b.minute == 0
-                                and (b - pd.Timedelta("1ns")).date() == a.date()):
-        # a span that ends at the midnight after its date ends at "midnight", not "00:00"
-        end = "midnight" if b.date() != a.date() else f"{b:%H:%M}"
-        return f"from {a:%H:%M} to {end}"
-    return f"from {a:%a} {a:%H:%M} to {b:%a} {b:%H:%M}"
-
-
-def minutes_text(ns: int) -> str:
-    m = int(round(ns / NS_PER_MIN))
-    return f"{m} min" if m < 90 else f"{m / 60:.1f} h"
-
-
-def _list_dates(days: list[dt.date]) -> str:
-    parts = [f"{d:%a} {d.day}" for d in days]
-    text = ", ".join(parts[:-1]) + f" and {parts[-1]}" if len(parts) > 1 else parts[0]
-    return f"{text} {days[-1]:%b %Y}"
-
-
-def _long(ns: int) -> str:
-    """A long duration: hours up to three days, then days."""
-    h = ns / NS_PER_H
-    return f"{h:.1f} h" if h < 72 else f"{h / 24:.1f} days"
-
-
 # -- continuous ---------------------------------------------------------------------------
 def continuous(ctx: Context) -> list[Found]:
     """Running without a stop for the continuous length or more: one finding per run."""
@@ -224,7 +184,28 @@ def _day_label(ctx: Context, day: dt.date, occupied_dates: set[dt.date]):
         return ("night",)
     if day in ctx.days_off:
         return ("holiday", day)
+    if unscheduled_weekday(day, occupied_dates):
+        return ("unscheduled_day",)
     return ("weekend",)
+
+
+def unscheduled_weekday(day: dt.date, occupied_dates: set[dt.date]) -> bool:
+    """A Monday to Friday with no occupied period (and no day off) whose weekday is occupied
+    on other dates of the window: a working day taken out of the calendar (an EXDATE, a
+    cancelled or deleted occurrence), not a weekend."""
+    return day.weekday() < 5 and any(d.weekday() == day.weekday() for d in occupied_dates)
+
+
+def _unscheduled_finding(ctx: Context, part: Intervals, runs: str) -> Found:
+    s, e = int(part.starts[0]), int(part.ends[-1])
+    hours = part.hours()
+    d0, d1 = local_dates([s, e - 1], ctx.tz)
+    day = day_text(d0) if d0 == d1 else f"{day_text(d0, year=False)} to {day_text(d1)}"
+    detail = (f"Ran {hours:.1f} h{runs} on {day} {span_text(s, e, ctx.tz)}, a working day with "
+              "no occupied period in the calendar (taken out of the series){energy}; check "
+              "whether the building was in use that day: if it was, the calendar is wrong, if "
+              "not, look for an override or a time programme that did not follow the change.")
+    return Found("unscheduled_day", s, e, d0, hours, hours, detail)
 
 
 def _overnight(ctx: Context, ep: Intervals, first: dt.date, last: dt.date,
@@ -284,6 +265,8 @@ def _day_finding(ctx: Context, label: tuple, part: Intervals) -> Found:
     d0, d1 = local_dates([s, e - 1], ctx.tz)
     runs = f" in {len(part)} runs" if len(part) > 1 else ""
     when = span_text(s, e, ctx.tz)
+    if label[0] == "unscheduled_day":
+        return _unscheduled_finding(ctx, part, runs)
     if label[0] == "holiday":
         name, kind = ctx.days_off[label[1]]
         date = f"{label[1].day} {label[1]:%b %Y}"

@@ -13,7 +13,7 @@ import pandas as pd
 _TOP = ("site", "readings", "holidays", "schedule", "energy", "unit", "run_state", "findings")
 _SITE = ("name", "timezone")
 _READINGS = ("files", "unit", "naive_time", "max_gap", "columns", "skip_bad_rows")
-_HOLIDAYS = ("country", "subdivision", "categories", "closed", "language")
+_HOLIDAYS = ("country", "subdivision", "categories", "closed", "language", "drop", "add")
 _SCHEDULE = ("occupied", "allowed", "early_start", "late_stop")
 _ENERGY = ("price", "currency", "co2_per_kwh", "exponent")
 _UNIT = ("id", "name", "schedule", "component")

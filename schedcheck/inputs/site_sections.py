@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as dt
+import difflib
 import typing
 import zoneinfo
 from pathlib import Path
@@ -17,6 +18,7 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.audit.energy import EXPONENT_RANGE
+from schedcheck.errors import InputError
 from schedcheck.inputs.file_patterns import resolve_patterns
 from schedcheck.inputs.site_rules import (
     _COMPONENT,
@@ -170,8 +172,73 @@ class SiteValidator(ValueReader):
             rng = self.closed_item(item, f"holidays.closed[{i}]")
             if rng is not None:
                 closed.append(rng)
+        names, dates = self.holiday_drop(h, country, subdiv, cats, language)
+        add = [d for i, x in enumerate(self.listed(h, "add"), 1)
+               if (d := self.one_date(x, f"holidays.add[{i}]")) is not None]
         return HolidaySettings(country=country, subdivision=subdiv, categories=tuple(cats),
-                               closed=tuple(closed), language=language)
+                               closed=tuple(closed), language=language, drop_names=names,
+                               drop_dates=dates, add=tuple(add))
+
+    def listed(self, h: dict, name: str) -> list:
+        raw = h.get(name, [])
+        if isinstance(raw, (str, dt.date)):
+            return [raw]     # one item needs no list
+        if not isinstance(raw, list):
+            self.err(f"holidays.{name}", f"must be a list, e.g. [\"2026-11-27\"], not {raw!r}")
+            return []
+        return raw
+
+    def one_date(self, x, key: str, *, quiet: bool = False) -> dt.date | None:
+        if isinstance(x, dt.date) and not isinstance(x, dt.datetime):
+            return x
+        try:
+            return dt.date.fromisoformat(str(x).strip())
+        except ValueError:
+            if not quiet:
+                self.err(key, f"{x!r} is not a date (\"2026-11-27\")")
+            return None
+
+    def holiday_drop(self, h, country, subdiv, cats, language):
+        """``[holidays] drop``: public holiday names (checked against the country's) or dates."""
+        from schedcheck.schedule.daysoff import NAME_YEARS, holiday_names, public_holidays
+
+        names, dates = [], []
+        items = self.listed(h, "drop")
+        if items and country is None:
+            self.err("holidays.drop", "needs holidays.country")
+            return (), ()
+        known = None
+        for i, x in enumerate(items, 1):
+            key = f"holidays.drop[{i}]"
+            day = self.one_date(x, key, quiet=True)
+            if day is not None:
+                try:
+                    year = public_holidays(country, dt.date(day.year, 1, 1),
+                                           dt.date(day.year, 12, 31), subdivision=subdiv,
+                                           categories=tuple(cats), language=language)
+                except InputError:
+                    return (), ()     # the country's own keys are reported already
+                if day not in set(year["date"]):
+                    shown = ", ".join(d.isoformat() for d in year["date"])
+                    self.err(key, f"{day} is not a public holiday of {country}; "
+                             f"its {day.year} holidays: {shown}")
+                dates.append(day)
+            elif isinstance(x, str) and x.strip():
+                try:
+                    known = known or holiday_names(country, NAME_YEARS, subdivision=subdiv,
+                                                   categories=tuple(cats), language=language)
+                except (NotImplementedError, KeyError, ValueError):
+                    return (), ()     # the country's own keys are reported already
+                if x.strip() not in known:
+                    near = difflib.get_close_matches(x.strip(), known, n=1, cutoff=0.8)
+                    where = country + (f"-{subdiv}" if subdiv else "")
+                    self.err(key, f"{x!r} is not a holiday name of {where}"
+                             + (f' (did you mean "{near[0]}"?)' if near else "")
+                             + "; its names: " + "; ".join(known))
+                names.append(x.strip())
+            else:
+                self.err(key, f"{x!r} must be a holiday name or a date")
+        return tuple(names), tuple(dates)
 
     def holiday_country(self, country, subdiv, cats, language, language_given) -> None:
         import holidays as hol

@@ -157,6 +157,7 @@ def audit_site(
     out: str | Path | None = None,
     skip_bad_rows: bool = False,
     progress: Callable[[str], None] | None = None,
+    excel: bool = False,
 ) -> AuditResult:
     """Audit a site and write its files.
 
@@ -172,6 +173,8 @@ def audit_site(
         Skip unreadable readings rows (counted and reported) instead of stopping.
     progress : callable, optional
         Called with a short line at each stage (the CLI shows them on a terminal).
+    excel : bool
+        Write the CSV files as UTF-8 with a byte-order mark, for spreadsheet programs.
 
     Returns
     -------
@@ -192,7 +195,7 @@ def audit_site(
     prov = provenance(site)
     try:
         result.files = write_audit_files(result, outdir, provenance=prov,
-                                         levels=result.levels)
+                                         levels=result.levels, excel=excel)
         result.files["report.html"] = write_report_file(outdir)
     except OSError as e:
         raise InputError(f"cannot write the audit files here ({e.strerror or e})",

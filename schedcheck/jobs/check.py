@@ -11,6 +11,8 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
+import pandas as pd
+
 from schedcheck.errors import InputError, InputProblems
 from schedcheck.inputs.calendar_files import check_calendar_file
 from schedcheck.inputs.readings_files import read_readings
@@ -117,9 +119,32 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
         report.problems.extend(readings.bad_rows_problems)
         report.warnings.extend(w for w in readings.warnings
                                if w is not readings.bad_rows_warning)
+    before = len(report.problems)
     if not calendar_problems:
         report.warnings.extend(_schedule_warnings(site, readings, report))
+    if not any(p.key == "readings.files" for p in report.problems[before:]):
+        # silences are measured over the data's span: not when the span itself is wrong
+        report.warnings.extend(silence_warnings(report.health))
     return report
+
+
+def silence_warnings(health: list[SensorHealth]) -> list[str]:
+    """The audit's warning on long silences (the share of ``NO_DATA_WARN.note``), measured
+    over the span of all sensors' data, for each sensor mapped to a component."""
+    from schedcheck.runstate.states import NO_DATA_WARN
+
+    firsts = [h.first for h in health if h.first is not None]
+    if not firsts:
+        return []
+    span_h = (max(h.last for h in health if h.last is not None) - min(firsts)) / pd.Timedelta(
+        "1h")
+    out = []
+    for h in health:
+        if h.component and span_h > 0 and h.gap_hours > NO_DATA_WARN.note * span_h:
+            out.append(f"{h.component} (sensor {h.sensor}): {h.gap_hours:.1f} h without "
+                       f"readings ({h.gap_hours / span_h:.1%} of the data's span; longest "
+                       f"silence {h.longest_gap_hours:.1f} h)")
+    return out
 
 
 def _schedule_warnings(site: Site, readings, report: CheckReport) -> list[str]:
@@ -133,4 +158,13 @@ def _schedule_warnings(site: Site, readings, report: CheckReport) -> list[str]:
     except InputError as e:
         report.problems.extend(_problems(e))
         return []
+    for unit in site.units:
+        sched = schedules.get(unit.id)
+        if sched is not None and not (sched.intervals["kind"] == "occupied").any():
+            names = ", ".join(p.name for p in unit.schedule.occupied or site.schedule.occupied)
+            report.problems.append(InputError(
+                f"unit {unit.id} has no occupied hour from {first} to {last} in {names}: "
+                "every event lacks a length (DTEND or DURATION), or holidays and closures "
+                "take them all; nothing could be judged", path=site.path,
+                key=f"unit[{unit.id}].schedule.occupied"))
     return [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings]

@@ -6,7 +6,7 @@ audits) the site it wrote.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 from schedcheck.demo.build import DEFAULT_MONTHS, DEFAULT_SEED, DemoSite, build_demo, demo_readings
@@ -21,6 +21,8 @@ class DemoResult:
     site_file: Path
     demo: DemoSite
     readings_rows: int
+    #: (component key, fault kind) -> the fault's hours by the audit's definitions [h]
+    audited_hours: dict[tuple[str, str], float] = field(default_factory=dict)
 
     @property
     def size_bytes(self) -> int:
@@ -53,4 +55,17 @@ def make_demo(folder: str | Path = "schedcheck-demo", seed: int = DEFAULT_SEED,
     readings = demo_readings(demo)
     files = write_demo(demo, readings, folder)
     return DemoResult(folder=folder, files=files, site_file=folder / "site.toml", demo=demo,
-                      readings_rows=sum(len(f) for f in readings.values()))
+                      readings_rows=sum(len(f) for f in readings.values()),
+                      audited_hours=audited_fault_hours(folder / "site.toml", demo))
+
+
+def audited_fault_hours(site_file: Path, demo: DemoSite) -> dict[tuple[str, str], float]:
+    """Each planted fault's hours as the audit counts them, from the site's own schedule."""
+    from schedcheck.demo.truth import fault_hours_as_audited
+    from schedcheck.inputs.site_file import load_site
+    from schedcheck.jobs.schedule import unit_schedules
+
+    site = load_site(site_file)
+    schedules = unit_schedules(site, demo.first, demo.last)
+    return {(f.component, f.kind): fault_hours_as_audited(
+                f.kind, f.episodes, schedules[f.unit].intervals) for f in demo.faults}

@@ -1,7 +1,9 @@
 """Writers of the audit's files: summary.json, daily.csv, runs.csv, findings.csv, findings.ics
 and schedule.csv (field by field in docs/outputs.md).
 
-Instants in the files are local ISO 8601 with the UTC offset, to the second; hours are rounded
+Instants in the files are local ISO 8601 with the UTC offset, rounded to the second by the one
+rule of :mod:`schedcheck.outputs.instants` (``findings.ics`` too), with local date and time
+columns beside them in the CSV files; hours are rounded
 to :data:`HOURS_DECIMALS` decimals (the identities between them hold exactly before rounding,
 and ``summary.json`` also carries the exact ``seconds``).
 """
@@ -27,6 +29,7 @@ from schedcheck.outputs.findings_files import (  # noqa: F401 - re-exported
     findings_frame,
     projection_record,
 )
+from schedcheck.outputs.instants import csv_encoding, local_iso, with_local_columns
 from schedcheck.outputs.levels_file import LEVELS_FILE, write_levels
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
 from schedcheck.outputs.values import (  # noqa: F401 - re-exported
@@ -35,9 +38,10 @@ from schedcheck.outputs.values import (  # noqa: F401 - re-exported
     HOURS_DECIMALS,
     _plain,
     _r,
-    local_iso,
 )
+from schedcheck.outputs.wording import separation_figure
 from schedcheck.runstate.lookback import learns_from_all
+from schedcheck.runstate.onofflevel import SEPARATION_CAP
 from schedcheck.runstate.states import STATES, StateSets
 
 DAILY_COLUMNS = ("component", "date", "weekday", "day_off", "period_h", "scheduled_h",
@@ -63,6 +67,7 @@ def _threshold(comp) -> dict:
     out = {key: _plain(get(key, None)) for key in
            ("level", "source", "separation", "effectiveness", "on_level", "off_level", "floor",
             "step", "confidence", "near_share")}
+    out["separation"] = separation_figure(get("separation", None), SEPARATION_CAP)
     out["concerns"] = [str(x) for x in get("concerns", ()) or ()]
     out["histogram"] = _plain(hist) if hist is not None else {"edges": [], "counts": []}
     out["groups"] = _plain(get("groups", ()) or ())
@@ -294,16 +299,20 @@ def schedule_frame(result: AuditResult) -> pd.DataFrame:
     return pd.DataFrame(rows, columns=list(SCHEDULE_COLUMNS))
 
 
-def _write_csv(frame: pd.DataFrame, path: Path) -> Path:
-    frame.to_csv(path, index=False, encoding="utf-8", lineterminator="\n")
+def _write_csv(frame: pd.DataFrame, path: Path, *, excel: bool = False,
+               instants: tuple[str, ...] = ("start", "end")) -> Path:
+    """Write ``frame`` with local date and time columns beside its ISO ``instants``."""
+    with_local_columns(frame, instants).to_csv(path, index=False, lineterminator="\n",
+                                               encoding=csv_encoding(excel=excel))
     return path
 
 
 # -- all of them ----------------------------------------------------------------------------
 
 def write_audit_files(result: AuditResult, outdir: Path, *, provenance: dict | None = None,
-                      levels: pd.DataFrame | None = None) -> dict[str, Path]:
-    """Write every data file of the audit into ``outdir`` (created if needed).
+                      levels: pd.DataFrame | None = None, excel: bool = False) -> dict[str, Path]:
+    """Write every data file of the audit into ``outdir`` (created if needed); ``excel``
+    writes the CSV files as UTF-8 with a byte-order mark for spreadsheet programs.
 
     ``provenance`` goes into ``summary.json``; ``levels`` (from
     :func:`schedcheck.audit.evidence.evidence_levels`) into ``levels.csv.gz``.
@@ -316,10 +325,13 @@ def write_audit_files(result: AuditResult, outdir: Path, *, provenance: dict | N
         files[LEVELS_FILE] = write_levels(levels, result.site.timezone, outdir / LEVELS_FILE)
     files |= {
         "summary.json": write_summary(result, outdir / "summary.json", provenance),
-        "daily.csv": _write_csv(daily_frame(result), outdir / "daily.csv"),
-        "runs.csv": _write_csv(runs_frame(result), outdir / "runs.csv"),
-        "findings.csv": _write_csv(findings_frame(result), outdir / "findings.csv"),
-        "schedule.csv": _write_csv(schedule_frame(result), outdir / "schedule.csv"),
+        "daily.csv": _write_csv(daily_frame(result), outdir / "daily.csv", excel=excel,
+                                instants=()),
+        "runs.csv": _write_csv(runs_frame(result), outdir / "runs.csv", excel=excel),
+        "findings.csv": _write_csv(findings_frame(result), outdir / "findings.csv",
+                                   excel=excel),
+        "schedule.csv": _write_csv(schedule_frame(result), outdir / "schedule.csv",
+                                   excel=excel),
     }
     ics = outdir / "findings.ics"
     ics.write_bytes(findings_calendar(result))

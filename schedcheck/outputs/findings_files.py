@@ -12,6 +12,7 @@ import pandas as pd
 
 from schedcheck import __version__ as _version
 from schedcheck.audit.run import AuditResult
+from schedcheck.outputs.instants import to_second
 from schedcheck.outputs.values import (
     COST_DECIMALS,
     ENERGY_DECIMALS,
@@ -27,7 +28,7 @@ FINDINGS_COLUMNS = ("id", "unit", "component", "components", "kind", "start", "e
 #: plain words for each finding kind, used in calendar event titles
 KIND_WORDS = {
     "night": "off-schedule running (working day or night)", "weekend": "weekend running",
-    "holiday": "holiday running",
+    "holiday": "holiday running", "unscheduled_day": "running on a working day off the calendar",
     "continuous": "continuous running", "clock_offset": "clock offset",
     "early_start": "early starts", "late_stop": "late stops", "missed": "missed operation",
     "short_cycling": "short cycling",
@@ -104,14 +105,17 @@ def findings_calendar(result: AuditResult) -> bytes:
     cal.add("prodid", f"-//schedcheck//audit findings {_version}//EN")
     cal.add("version", "2.0")
     cal.add("calscale", "GREGORIAN")
-    cal.add("name", f"{result.site.name}: schedule findings")   # RFC 7986 section 5.1
+    title = f"{result.site.name}: schedule findings"
+    cal.add("name", title)              # RFC 7986 section 5.1
+    cal.add("x-wr-calname", title)      # the same name for calendar programs without RFC 7986
     stamp = result.generated.tz_convert("UTC").to_pydatetime()
     for row in result.findings.itertuples(index=False):
         ev = icalendar.Event()
         ev.add("uid", finding_uid(result.site.name, row.id))
         ev.add("dtstamp", stamp)
-        ev.add("dtstart", pd.Timestamp(row.start).tz_convert("UTC").floor("s").to_pydatetime())
-        ev.add("dtend", pd.Timestamp(row.end).tz_convert("UTC").ceil("s").to_pydatetime())
+        ev.add("dtstart", to_second(pd.Timestamp(row.start).tz_convert("UTC")).to_pydatetime())
+        ev.add("dtend", to_second(pd.Timestamp(row.end).tz_convert("UTC")).to_pydatetime())
+        ev.add("location", result.site.name)
         words = KIND_WORDS.get(row.kind, str(row.kind).replace("_", " "))
         who = row.unit if len(row.components) > 1 else row.component
         ev.add("summary", f"{who}: {words}, {row.hours:.1f} h")

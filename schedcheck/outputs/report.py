@@ -29,6 +29,8 @@ from schedcheck.outputs.evidence_report import (
 )
 from schedcheck.outputs.histogram import histogram_svg
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
+from schedcheck.outputs.wording import monitored_words, separation_text
+from schedcheck.runstate.onofflevel import SEPARATION_CAP
 
 FINDINGS_SHOWN = 300  # rows of the findings table on the page (common practice, no source)
 
@@ -39,6 +41,7 @@ KIND_LABELS = {
     "night": "Off-schedule running on a working day or night",
     "weekend": "Weekend running",
     "holiday": "Running on a holiday or closure day",
+    "unscheduled_day": "Running on a working day taken out of the calendar",
     "continuous": "Ran 24 h or more without stopping",
     "clock_offset": "Start and stop shifted by about an hour",
     "early_start": "Repeated early start",
@@ -52,6 +55,8 @@ KIND_ASKS = {
     "night": "Check the time program and any overrides, optimum-start or night settings that "
              "run {what} outside the occupied period and its allowances.",
     "weekend": "Check the weekend entries of the time program of {what}.",
+    "unscheduled_day": "Check whether the days taken out of the calendar were really unoccupied, "
+                       "and that the time program of {what} follows them.",
     "holiday": "Load the public holidays and closure dates into the controller's holiday "
                "calendar for {what}.",
     "continuous": "Look for a manual override, a switch left in hand, or a stuck occupancy "
@@ -90,6 +95,7 @@ def _fmt(value, digits: int = 1) -> str:
 
 
 _ENV.filters["num"] = _fmt
+_ENV.filters["separation"] = lambda x: separation_text(x, SEPARATION_CAP)
 
 
 def _local(ts: pd.Timestamp, tz: str, fmt: str = "%a %d %b %Y %H:%M") -> str:
@@ -270,6 +276,7 @@ def report_context(data: SavedAudit) -> dict:
         "co2_per_kwh": site.get("co2_per_kwh"), "reading_unit": site.get("reading_unit", ""),
         "first": first.strftime("%a %d %b %Y"), "last": last.strftime("%a %d %b %Y"),
         "ndays": ndays, "period": s["period"], "units": units, "components": comps,
+        "monitored": monitored_words(c.get("role") for c in s.get("components") or []),
         "totals": totals, "findings": findings[:FINDINGS_SHOWN],
         "findings_hidden": findings[FINDINGS_SHOWN:], "n_findings": len(findings),
         "asks": _asks(findings, by_id),

@@ -344,7 +344,8 @@ def _load_csv(path: Path) -> pd.DataFrame:
     if not path.is_file():
         raise InputError("missing; this folder holds no complete audit output", path=path)
     try:
-        return pd.read_csv(path, dtype=str, keep_default_na=False, encoding="utf-8")
+        # utf-8-sig also reads a file written with --excel (a byte-order mark first)
+        return pd.read_csv(path, dtype=str, keep_default_na=False, encoding="utf-8-sig")
     except UnicodeDecodeError:
         raise InputError("is not UTF-8 text", path=path) from None
     except pd.errors.EmptyDataError:

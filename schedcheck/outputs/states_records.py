@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 import re
 
+from schedcheck.outputs.wording import separation_figure
 from schedcheck.runstate.classify import ComponentStates
 from schedcheck.runstate.hours import hours_by_state
 from schedcheck.runstate.onofflevel import SEPARATION_CAP
@@ -21,13 +22,14 @@ def component_record(cs: ComponentStates) -> dict:
     """One component's figures as plain JSON-ready values.
 
     Fields: ``component`` (UNIT/COMPONENT), ``unit``, ``role``, ``sensor``, ``level``,
-    ``on_level``, ``off_level`` [reading unit], ``source``, ``separation`` (Ashman's D, capped
-    at 1000), ``effectiveness`` (Otsu's eta), ``groups`` (level group medians), ``floor`` (the floor
-    level in force) [reading unit], ``running_share``
-    (running / known time), ``starts``, ``starts_per_day`` (per 24 h of known time),
-    ``known_hours``, ``no_data_hours`` [h], ``confidence`` (``high`` / ``medium`` / ``low``),
-    ``near_share`` (share of readings near the level), ``concerns`` (why the confidence is not
-    high, in words), ``reason`` and ``warnings``.
+    ``on_level``, ``off_level`` [reading unit], ``source``, ``separation`` (Ashman's D, as
+    :func:`schedcheck.outputs.wording.separation_figure` gives it everywhere),
+    ``effectiveness`` (Otsu's eta), ``groups`` (level group medians), ``floor`` (the floor
+    level in force) [reading unit], ``running_share`` (running / known time), ``starts``,
+    ``starts_per_day`` (per 24 h of known time), ``known_hours``, ``no_data_hours`` [h],
+    ``confidence`` (``high`` / ``medium`` / ``low``), ``near_share`` (share of readings near
+    the level), ``concerns`` (why the confidence is not high, in words), ``reason`` and
+    ``warnings``.
     """
     th = cs.threshold
     hours = hours_by_state(cs.intervals)
@@ -39,7 +41,7 @@ def component_record(cs: ComponentStates) -> dict:
         "component": c.key, "unit": c.unit, "role": c.role, "sensor": c.sensor,
         "level": _num(th.level, 6), "on_level": _num(th.on_level, 6),
         "off_level": _num(th.off_level, 6), "source": th.source,
-        "separation": SEPARATION_CAP if sep > SEPARATION_CAP else _num(sep, 2),
+        "separation": separation_figure(sep, SEPARATION_CAP),
         "effectiveness": _num(th.effectiveness, 3),
         "groups": [_num(g, 6) for g in th.groups], "floor": _num(th.floor, 6),
         "running_share": _num(cs.run_share, 4),

@@ -12,16 +12,11 @@ import math
 import numpy as np
 import pandas as pd
 
+from schedcheck.outputs.instants import local_iso  # noqa: F401 - the one rounding rule
+
 HOURS_DECIMALS = 3      # 0.001 h = 3.6 s: finer than the one-minute readings
 ENERGY_DECIMALS = 3     # kWh and kg CO2e
 COST_DECIMALS = 2
-
-
-def local_iso(ts, tz: str) -> str:
-    """A UTC instant as local ISO 8601 with offset, to the second; '' for none."""
-    if ts is None or (not isinstance(ts, str) and pd.isna(ts)):
-        return ""
-    return pd.Timestamp(ts).tz_convert(tz).isoformat(timespec="seconds")
 
 
 def _r(x: float, nd: int) -> float:

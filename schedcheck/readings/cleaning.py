@@ -114,6 +114,7 @@ class SensorHealth:
     median_interval: pd.Timedelta | None = None   # median time between readings
     gaps: int = 0                           # silences longer than max_gap (incl. window edges)
     gap_hours: float = 0.0                  # their total length [h]
+    longest_gap_hours: float = 0.0          # the longest of them [h]
     duplicates_exact: int = 0               # identical rows dropped
     duplicates_conflicting: int = 0         # rows merged into another at the same instant
     out_of_order: int = 0                   # rows earlier than a row read before them
@@ -315,3 +316,4 @@ def measure_gaps(health: SensorHealth, ts: np.ndarray, start: pd.Timestamp | Non
     long = d > max_gap.value
     health.gaps = int(long.sum())
     health.gap_hours = float(d[long].sum() / 3.6e12)
+    health.longest_gap_hours = float(d[long].max() / 3.6e12) if long.any() else 0.0

@@ -100,10 +100,6 @@ def default_floor(settings: RunStateSettings, level_unit: str) -> tuple[float, l
 
 
 # -- the on/off level ------------------------------------------------------------------------
-def _d(x: float) -> str:
-    return "over 1000" if x > 1000 else f"{x:.1f}"
-
-
 def _band(b: float, lo: float = np.nan, hi: float = np.nan,
           step: float = 0.0) -> tuple[float, float]:
     """Hysteresis levels (log10) around ``b``: +-HYSTERESIS, at most a quarter of the way to the
@@ -234,9 +230,9 @@ def _two_groups(ev: _Evidence) -> _Choice:
     g, med, F, floor = ev.groups, ev.med, ev.F, ev.floor
     b0 = g.boundaries[0]
     learned = _Choice(b0, "learned", med[0], med[1],
-                      f"two level groups (medians {10**med[0]:.3g} and {10**med[1]:.3g}, "
-                      f"Ashman's D {_d(g.separations[0])}); the level is at the lowest point "
-                      "between them")
+                      f"two level groups (medians {10**med[0]:.3g} and {10**med[1]:.3g}); "
+                      "the level is at the lowest point between them (the separation shown "
+                      "is of the readings either side of it)")
     if med[1] <= F:
         return _never_running(ev, f"both level groups (medians {10**med[0]:.3g}, "
                                   f"{10**med[1]:.3g})")

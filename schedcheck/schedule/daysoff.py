@@ -6,7 +6,9 @@ federal holiday on a Saturday is also observed on the Friday before). Holiday na
 in one pinned language, so that output does not change with the machine's locale: the site's
 ``language`` (default ``en_US``) where the country's data offers it, else the country's own
 default language. Closure dates come from the site file's ``closed`` list of inclusive local
-date ranges.
+date ranges. The site's ``drop`` list takes public holidays it works on away (by name as the
+package gives it in the pinned language, which also drops that holiday's observed day, or by
+date), and its ``add`` list keeps extra dates off as holidays (named :data:`ADDED_NAME`).
 
 The result is a DataFrame ``date, name, kind`` with ``kind`` ``holiday`` or ``closure``: one
 row per local date and reason (a date that is both a holiday and a closure appears twice, once
@@ -26,6 +28,11 @@ from schedcheck.schedule.kinds import CLOSURE, HOLIDAY
 from schedcheck.site import HolidaySettings
 
 DAYS_OFF_COLUMNS = ["date", "name", "kind"]
+ADDED_NAME = "site holiday"     # the name of a date of the site's own ``add`` list
+NAME_SEPARATOR = "; "           # the package joins several names of one date with this
+# the years whose holiday names ``[holidays] drop`` accepts (common practice, no source: wide
+# enough for any audit of recorded readings)
+NAME_YEARS = range(2000, 2051)
 
 
 def pinned_language(country: str, language: str = HolidaySettings.language) -> str | None:
@@ -99,9 +106,48 @@ def public_holidays(
     rows = []
     for day, name in sorted(table.items()):
         if first <= day <= last:
-            # the package joins several names of one date with "; "
             rows.append((day, str(name), HOLIDAY))
     return pd.DataFrame(rows, columns=DAYS_OFF_COLUMNS)
+
+
+def holiday_names(
+    country: str,
+    years: range,
+    *,
+    subdivision: str | None = None,
+    categories: tuple[str, ...] = HolidaySettings.categories,
+    language: str = HolidaySettings.language,
+) -> list[str]:
+    """Every holiday name the package gives ``country`` over ``years``, sorted (observed-day
+    names included), in the pinned language: the names ``[holidays] drop`` accepts."""
+    table = holidays_lib.country_holidays(
+        country, subdiv=subdivision, years=list(years), language=pinned_language(country, language),
+        categories=tuple(categories), observed=True,
+    )
+    return sorted({part for name in table.values() for part in str(name).split(NAME_SEPARATOR)})
+
+
+def _kept_name(name: str, dropped: tuple[str, ...]) -> str:
+    """``name`` (maybe several joined) without the dropped names and their observed days."""
+    def gone(part: str) -> bool:
+        # an observed day is named after its holiday: "Veterans Day (observed)"
+        return any(part == d or part.startswith(d + " (") for d in dropped)
+    return NAME_SEPARATOR.join(p for p in name.split(NAME_SEPARATOR) if not gone(p))
+
+
+def site_holiday_changes(
+    frame: pd.DataFrame, settings: HolidaySettings, first: dt.date, last: dt.date
+) -> pd.DataFrame:
+    """The public holidays of ``frame`` after the site's ``drop`` and ``add`` lists."""
+    rows = []
+    for day, name, kind in frame.itertuples(index=False):
+        kept = _kept_name(name, settings.drop_names)
+        if kept and day not in settings.drop_dates:
+            rows.append((day, kept, kind))
+    have = {r[0] for r in rows}
+    rows += [(d, ADDED_NAME, HOLIDAY) for d in settings.add
+             if first <= d <= last and d not in have]
+    return pd.DataFrame(sorted(rows, key=lambda r: r[0]), columns=DAYS_OFF_COLUMNS)
 
 
 def closure_days(
@@ -130,7 +176,8 @@ def days_off(
     Parameters
     ----------
     settings : schedcheck.site.HolidaySettings
-        Country (None for no public holidays), subdivision, categories, closures, language.
+        Country (None for no public holidays), subdivision, categories, closures, language,
+        and the site's ``drop`` and ``add`` lists.
     first, last : datetime.date
         The window's local dates, both inclusive.
     path : str or Path, optional
@@ -142,10 +189,12 @@ def days_off(
         ``date, name, kind`` sorted by date, holidays before closures on the same date.
     """
     parts = [closure_days(settings.closed, first, last)]
+    public = pd.DataFrame(columns=DAYS_OFF_COLUMNS)
     if settings.country:
-        parts.insert(0, public_holidays(
+        public = public_holidays(
             settings.country, first, last, subdivision=settings.subdivision,
-            categories=tuple(settings.categories), language=settings.language, path=path))
+            categories=tuple(settings.categories), language=settings.language, path=path)
+    parts.insert(0, site_holiday_changes(public, settings, first, last))
     frame = pd.concat([p for p in parts if len(p)], ignore_index=True) if any(
         len(p) for p in parts) else pd.DataFrame(columns=DAYS_OFF_COLUMNS)
     if len(frame):

@@ -199,12 +199,45 @@ def test_schedule_warnings_show_in_check(tmp_path, capsys):
                                                     "SUMMARY:Office hours\r\nSTATUS:CANCELLED\r\n"),
                                         newline="")
     code, out, err = run(capsys, p)
-    assert code == 0, err
+    assert code == 2, err      # nothing is occupied: the unit cannot be judged (refused)
     assert f"warning: AHU-1: {tmp_path / 'hours.ics'}: every event of the calendar is cancelled" \
         in err
     report = check_site(p)
-    assert report.problems == [] and len(report.warnings) == 1
+    assert len(report.problems) == 1 and len(report.warnings) == 1
     # a calendar that cannot be read is one problem, not also a schedule problem
     (tmp_path / "hours.ics").write_text("Mon-Fri 07:00-17:00\n")
     code, out, err = run(capsys, p)
     assert code == 2 and len(error_lines(err)) == 1
+
+
+def test_a_long_silence_is_a_warning_as_in_the_audit(tmp_path, capsys):
+    # VS-12 is silent for 30 h of the 48 h of data: "All inputs look fine" would be wrong
+    t = pd.date_range("2026-03-02T00:00:00Z", periods=2 * 1440, freq="1min")
+    quiet = (t >= pd.Timestamp("2026-03-02T12:00Z")) & (t < pd.Timestamp("2026-03-03T18:00Z"))
+    rows = pd.concat([
+        pd.DataFrame({"timestamp": t.strftime("%Y-%m-%dT%H:%M:%SZ"), "sensor": "VS-11",
+                      "x_rms": 1.0}),
+        pd.DataFrame({"timestamp": t[~quiet].strftime("%Y-%m-%dT%H:%M:%SZ"), "sensor": "VS-12",
+                      "x_rms": 1.0})])
+    code, out, err = run(capsys, make(tmp_path, rows=rows))
+    assert code == 0 and not error_lines(err)
+    (warn,) = [w for w in err.splitlines() if "VS-12" in w]
+    assert warn.startswith("warning: AHU-1/exhaust (sensor VS-12): 30.0 h without readings (")
+    assert warn.endswith("% of the data's span; longest silence 30.0 h)")
+    assert "All inputs look fine" not in out
+    report = check_site(tmp_path / "site.toml")
+    assert not any("VS-11" in w for w in report.warnings)
+
+
+def test_a_unit_with_no_occupied_hour_is_refused(tmp_path, capsys):
+    # events without DTEND (or DURATION) last no time at all (RFC 5545 section 3.6.1), so
+    # nothing is occupied and every minute of running would count as off-schedule
+    p = make(tmp_path)
+    (tmp_path / "hours.ics").write_text(CAL.replace("DTEND;TZID=Europe/Oslo:20260105T170000\r\n",
+                                                    ""), newline="")
+    code, out, err = run(capsys, p)
+    (line,) = error_lines(err)
+    assert code == 2
+    assert line.startswith(f"error: {p}: unit[AHU-1].schedule.occupied: unit AHU-1 has no "
+                           "occupied hour from ")
+    assert " in hours.ics: every event lacks a length (DTEND or DURATION)" in line

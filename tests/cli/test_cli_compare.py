@@ -262,8 +262,8 @@ def test_changes_that_round_to_zero_read_0_0_not_minus_0_0():
     # "-0.0 [-0.0, +0.0]"
     from schedcheck.cli import compare as cli_compare
 
-    assert cli_compare._interval(-0.04, 0.01) == "[0.0, 0.0]"
-    assert cli_compare._interval(-0.06, 2.6) == "[-0.1, +2.6]"
+    assert cli_compare._interval(-0.04, 0.01) == "0.0..0.0"
+    assert cli_compare._interval(-0.06, 2.6) == "-0.1..+2.6"
     assert cli_compare._signed(-0.02) == "0.0" and cli_compare._signed(1.26) == "+1.3"
 
 

@@ -38,3 +38,10 @@ def test_input_problems_is_one_line_with_a_count():
     assert str(e) == "x: a (and 1 more problem)" and len(e.problems) == 2
     with pytest.raises(ValueError):
         InputProblems([])
+
+
+def test_version_option_prints_the_installed_version(capsys):
+    from schedcheck import __version__
+
+    assert main(["--version"]) == 0
+    assert capsys.readouterr().out == f"schedcheck {__version__}\n"

@@ -140,7 +140,11 @@ def test_csv_has_the_json_fields(site, capsys):
                      "--format", "csv")
     assert rc == 0
     rows = list(csv.DictReader(io.StringIO(out)))
-    assert list(rows[0]) == ["unit", "kind", "start", "end", "source", "date", "name"]
+    assert list(rows[0]) == ["unit", "kind", "start", "start_date", "start_time", "end",
+                             "end_date", "end_time", "source", "date", "name"]
+    timed = next(r for r in rows if r["start"])
+    assert (timed["start_date"], timed["start_time"]) == (timed["start"][:10],
+                                                          timed["start"][11:19])
     assert {(r["unit"], r["kind"]) for r in rows} == {
         ("AHU-1", "holiday"), ("AHU-1", "allowed"), ("AHU-2", "holiday")}
 

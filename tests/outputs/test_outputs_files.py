@@ -170,10 +170,13 @@ def test_schedule_csv_and_findings_csv(result, tmp_path):
     sc = pd.read_csv(files["schedule.csv"])
     assert sc.to_dict("records") == [{"unit": "AHU-9", "kind": "occupied",
                                       "start": "2026-10-26T07:00:00+01:00",
+                                      "start_date": "2026-10-26", "start_time": "07:00:00",
                                       "end": "2026-10-26T17:00:00+01:00",
+                                      "end_date": "2026-10-26", "end_time": "17:00:00",
                                       "source": "office.ics"}]
     f = pd.read_csv(files["findings.csv"])
-    assert list(f.columns) == ["id", "unit", "component", "components", "kind", "start", "end",
+    assert list(f.columns) == ["id", "unit", "component", "components", "kind", "start",
+                               "start_date", "start_time", "end", "end_date", "end_time",
                                "hours", "component_hours", "kwh", "cost", "co2_kg",
                                "kwh_by_component", "detail"]
     assert f["cost"].iloc[0] == pytest.approx(148.48)

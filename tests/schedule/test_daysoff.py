@@ -132,3 +132,33 @@ def test_bad_settings_name_the_key(settings, key):
     with pytest.raises(InputError) as err:
         days_off(settings, *YEAR, path="site.toml")
     assert str(err.value).startswith(f"site.toml: {key}: ")
+
+
+# US federal holidays 2026 (5 U.S.C. 6103(a); the list US_FEDERAL_2026 above and its sources)
+# for an office that works on Columbus Day (12 Oct) and Veterans Day (11 Nov, dropped by date)
+# and keeps the day after Thanksgiving (27 Nov) off.
+@pytest.mark.validation   # expected values from 5 U.S.C. 6103(a), as US_FEDERAL_2026 above
+def test_us_federal_2026_with_holidays_dropped_and_added():
+    settings = HolidaySettings(country="US", drop_names=("Columbus Day",),
+                               drop_dates=(D(2026, 11, 11),), add=(D(2026, 11, 27),))
+    got = days_off(settings, *YEAR)
+    expected = sorted(set(US_FEDERAL_2026) - {D(2026, 10, 12), D(2026, 11, 11)}
+                      | {D(2026, 11, 27)})
+    assert working_day_holidays(got) == expected
+    assert got.loc[got["date"] == D(2026, 11, 27), "name"].tolist() == ["site holiday"]
+    assert set(got["kind"]) == {"holiday"}
+
+
+def test_dropping_a_name_drops_its_observed_day_too():
+    # Independence Day 2026 is a Saturday, observed on Friday 3 July (5 U.S.C. 6103(b))
+    settings = HolidaySettings(country="US", drop_names=("Independence Day",))
+    got = days_off(settings, *YEAR)
+    assert not {D(2026, 7, 3), D(2026, 7, 4)} & set(got["date"])
+    assert D(2026, 12, 25) in set(got["date"])
+
+
+def test_added_date_on_a_holiday_is_not_listed_twice_and_outside_window_ignored():
+    settings = HolidaySettings(country="US", add=(D(2026, 12, 25), D(2027, 1, 2)))
+    got = days_off(settings, *YEAR)
+    assert (got["date"] == D(2026, 12, 25)).sum() == 1
+    assert D(2027, 1, 2) not in set(got["date"])
