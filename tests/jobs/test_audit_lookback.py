@@ -73,8 +73,9 @@ def test_every_month_and_week_audited_alone_agrees_with_the_whole_audit(demo_aud
                 want = day[f"{k}_ns"].sum() / 3.6e12
                 got = mine.account.ns[k] / 3.6e12
                 assert got == pytest.approx(want, abs=tol), (a, b, comp.key, k)
-            assert _kinds(res.findings, comp.key, res.start, res.end) == \
-                _kinds(full.findings, comp.key, res.start, res.end), (a, b, comp.key)
+            # per component, before the components of a unit are joined into one finding
+            assert _kinds(res.component_findings, comp.key, res.start, res.end) == \
+                _kinds(full.component_findings, comp.key, res.start, res.end), (a, b, comp.key)
         # every finding stays inside the window
         assert (res.findings["start"] >= res.start).all()
         assert (res.findings["end"] <= res.end).all()
@@ -84,9 +85,10 @@ def test_every_month_and_week_audited_alone_agrees_with_the_whole_audit(demo_aud
 def test_april_alone_finds_the_clock_that_ignores_daylight_saving(alone):
     res = alone[(dt.date(2026, 4, 1), dt.date(2026, 4, 30))]
     for key in ("AHU-3/supply", "AHU-3/exhaust"):
-        kinds = list(res.findings.loc[res.findings["component"] == key, "kind"])
+        per = res.component_findings
+        kinds = list(per.loc[per["component"] == key, "kind"])
         assert kinds == ["clock_offset"], (key, kinds)     # not missed or late_stop
-        row = res.findings[res.findings["component"] == key].iloc[0]
+        row = per[per["component"] == key].iloc[0]
         assert row["start"] == res.start                    # it began in the look-back
     assert res.lookback_start is not None and res.lookback_start < res.start
 
@@ -101,5 +103,6 @@ def test_the_24_7_unit_runs_throughout_the_first_half_of_may(alone):
         acc = may.component(key).account.ns
         # running every known minute (the exhaust sensor is silent for 50.7 h of it)
         assert acc["running"] + acc["no_data"] == acc["period"], key
-        kinds = set(may.findings.loc[may.findings["component"] == key, "kind"])
+        per = may.component_findings
+        kinds = set(per.loc[per["component"] == key, "kind"])
         assert kinds == {"continuous"}, (key, kinds)        # no missed, no short_cycling
