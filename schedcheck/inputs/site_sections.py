@@ -19,6 +19,7 @@ import pandas as pd
 from schedcheck.audit.energy import EXPONENT_RANGE
 from schedcheck.inputs.file_patterns import resolve_patterns
 from schedcheck.inputs.site_rules import (
+    _ALLOWED_ITEM,
     _COMPONENT,
     _ENERGY,
     _HOLIDAYS,
@@ -30,6 +31,7 @@ from schedcheck.inputs.site_rules import (
     MAX_ALLOWANCE,
     MAX_GAP_LIMIT,
     MAX_POWER_KW,
+    MAX_RPM,
     MAX_THRESHOLD,
     SPEED_RANGE,
 )
@@ -241,12 +243,43 @@ class SiteValidator(ValueReader):
     def schedule(self, t: dict, base: dict, key: str) -> ScheduleSettings:
         """Schedule from table ``t`` where given, else from ``base`` (already validated)."""
         occ = self.calendars(t, "occupied", f"{key}.occupied")
-        allowed = self.calendars(t, "allowed", f"{key}.allowed")
+        allowed, limits = self.allowed_windows(t, f"{key}.allowed")
         early = self.duration(t, "early_start", f"{key}.early_start", most=MAX_ALLOWANCE)
         late = self.duration(t, "late_stop", f"{key}.late_stop", most=MAX_ALLOWANCE)
-        given = {"occupied": occ, "allowed": allowed, "early_start": early, "late_stop": late}
+        lo, hi = SPEED_RANGE
+        standby = self.number(t, "standby_speed", f"{key}.standby_speed", lo=lo, hi=hi,
+                              lo_open=True)
+        given = {"occupied": occ, "allowed": allowed, "early_start": early, "late_stop": late,
+                 "allowed_limits": limits, "standby_speed": standby}
         return dataclasses.replace(ScheduleSettings(**base),
                                    **{k: v for k, v in given.items() if v is not None})
+
+    def allowed_windows(self, t: dict, key: str
+                        ) -> tuple[tuple[Path, ...] | None, tuple[float | None, ...] | None]:
+        """``allowed``: file names, or tables ``{ file = "x.ics", max_speed = 0.5 }``."""
+        if "allowed" not in t:
+            return None, None
+        raw = t["allowed"]
+        items = raw if isinstance(raw, list) else [raw]
+        names, limits = [], []
+        for i, item in enumerate(items, 1):
+            k = key if len(items) == 1 else f"{key}[{i}]"
+            if isinstance(item, dict):
+                self.unknown(item, k, _ALLOWED_ITEM)
+                lo, hi = SPEED_RANGE
+                limits.append(self.number(item, "max_speed", f"{k}.max_speed", lo=lo, hi=hi,
+                                          lo_open=True))
+                item = item.get("file")
+                if not isinstance(item, str) or not item.strip():
+                    self.err(f"{k}.file", "missing: name the calendar file (.ics)")
+                    continue
+            else:
+                limits.append(None)
+            names.append(item)
+        if len(names) < len(limits):
+            return None, None
+        files = self.calendars({"allowed": names}, "allowed", key)
+        return files, (tuple(limits) if files is not None else None)
 
     def energy(self, e: dict) -> EnergySettings:
         lo, hi = EXPONENT_RANGE
@@ -272,6 +305,8 @@ class SiteValidator(ValueReader):
         quiet = SiteValidator(self.path)
         d = quiet.schedule(sched_t, {}, "schedule")
         base = {k: getattr(d, k) for k in _SCHEDULE if k in sched_t}
+        if "allowed" in sched_t:
+            base["allowed_limits"] = d.allowed_limits
         units, unit_ids, sensors = [], set(), {}
         for i, u in enumerate(raw, 1):
             uid = u.get("id") if isinstance(u.get("id"), str) and u.get("id").strip() else None
@@ -328,16 +363,40 @@ class SiteValidator(ValueReader):
                                 lo_open=True)
             thr = self.number(c, "threshold", f"{k}.threshold", lo=0.0, lo_open=True,
                               hi=MAX_THRESHOLD)
+            speeds = self.speed_list(c, f"{k}.speeds")
+            rpm = self.number(c, "design_rpm", f"{k}.design_rpm", lo=0.0, lo_open=True,
+                              hi=MAX_RPM)
             out.append(Component(id=cid or "", unit=uid, role=role or "other",
                                  sensor=sensor or "", power_kw=power or 0.0,
-                                 speed=speed or 0.0, threshold=thr))
+                                 speed=speed or 0.0, threshold=thr, speeds=speeds,
+                                 design_rpm=rpm))
         return tuple(out)
+
+    def speed_list(self, c: dict, key: str) -> tuple[float, ...]:
+        """``speeds``: fractions of design speed, 0 < s <= 1.2, strictly ascending."""
+        if "speeds" not in c:
+            return ()
+        x = c["speeds"]
+        lo, hi = SPEED_RANGE
+        ok = (isinstance(x, list) and x and all(isinstance(v, (int, float))
+                                                 and not isinstance(v, bool) for v in x))
+        if not ok:
+            self.err(key, f"must be a list of speeds such as [0.45, 1.0], not {x!r}")
+            return ()
+        if any(not (lo < v <= hi) for v in x):
+            self.err(key, f"{x!r} is out of range: every speed must be > {lo:g} and <= {hi:g}")
+            return ()
+        if any(b <= a for a, b in zip(x, x[1:], strict=False)):
+            self.err(key, f"{x!r} must be ascending (lowest speed first), each speed once")
+            return ()
+        return tuple(float(v) for v in x)
 
     def derived(self, data: dict, name: str, cls):
         """A table whose keys and types come from the fields of dataclass ``cls``."""
         hints = typing.get_type_hints(cls)
         fields = [f.name for f in dataclasses.fields(cls)]
         lows = {f.name: f.metadata.get("min", 0) for f in dataclasses.fields(cls)}
+        highs = {f.name: f.metadata.get("max") for f in dataclasses.fields(cls)}
         t = self.table(data, name, name, fields)
         values = {}
         for f in fields:
@@ -352,7 +411,7 @@ class SiteValidator(ValueReader):
             elif kind is int:
                 val = self.number(t, f, key, lo=int(lows[f]), integer=True)
             elif kind is float:
-                val = self.number(t, f, key, lo=float(lows[f]))
+                val = self.number(t, f, key, lo=float(lows[f]), hi=highs[f])
             elif kind is str:
                 val = self.string(t, f, key)
             else:  # pragma: no cover - a field type the validator does not know yet

@@ -66,6 +66,7 @@ from schedcheck.runstate.onofflevel import (  # noqa: F401 - re-exported: the cl
     choose_threshold,
     default_floor,
 )
+from schedcheck.runstate.speeds import SpeedPieces, assign_speeds, rotation_values
 from schedcheck.runstate.states import NO_DATA, NO_DATA_WARN, OFF, RUN, STATES, StateSets
 from schedcheck.runstate.switching import hysteresis_states, min_dwell  # noqa: F401 - re-exported
 from schedcheck.site import Component, RunStateSettings, Unit
@@ -100,6 +101,17 @@ class ComponentStates:
     starts: int
     run_share: float
     warnings: tuple[str, ...] = ()
+    speeds: SpeedPieces | None = None   # run time by speed (runstate/speeds.py); None = `speed`
+
+    @cached_property
+    def speed_pieces(self) -> SpeedPieces:
+        """The run time cut into pieces of one speed each (:mod:`schedcheck.runstate.speeds`)."""
+        return (self.speeds if self.speeds is not None
+                else SpeedPieces.constant(self.sets.run, self.component.speed))
+
+    def speed_at(self, instants: np.ndarray) -> np.ndarray:
+        """The speed [-] at each of the int64 ns ``instants``; NaN where not running."""
+        return self.speed_pieces.speed_at(instants)
 
     @cached_property
     def intervals(self) -> pd.DataFrame:
@@ -146,6 +158,7 @@ class _Levels:
     level: np.ndarray
     crest: np.ndarray
     log_level: np.ndarray
+    rotation: np.ndarray | None = None   # rotation_hz per reading [Hz], NaN where absent
 
 
 # -- states ----------------------------------------------------------------------------------
@@ -235,7 +248,7 @@ def _prepared(frame: pd.DataFrame | None, name: str, floor: float) -> _Levels:
     t, lv, pk = reading_levels(frame, name=name)
     ok = np.isfinite(lv)
     t, lv, pk = t[ok], lv[ok], pk[ok]
-    return _Levels(t, lv, pk, log_levels(lv, floor))
+    return _Levels(t, lv, pk, log_levels(lv, floor), rotation_values(frame, t))
 
 
 def _moving(t: np.ndarray, L: np.ndarray, g: th.LevelGroups, floor: float) -> np.ndarray:
@@ -364,8 +377,12 @@ def _finish(
         longest = float(nd_len.max() / 1e9 / 3600)
         warn.append(f"{nd_h:.1f} h without readings ({nd_h / total_h:.1%} of the window; "
                     f"longest silence {longest:.1f} h)")
+    rot = levels.rotation if levels.rotation is not None else np.full(t.size, np.nan)
+    sp = assign_speeds(component, sets.run, t[sel], levels.level[sel], rot[sel],
+                       exponent=settings.speed_exponent)
+    warn += [f"speeds: {w}" for w in sp.warnings]
     return ComponentStates(component, sets, bs, be, names, level, threshold, starts, share,
-                           tuple(warn))
+                           tuple(warn), sp)
 
 
 def classify_unit(
