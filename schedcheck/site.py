@@ -175,4 +175,4 @@ class Site:
 LEVEL_COLUMNS = ("x_rms", "y_rms", "z_rms", "x_peak", "y_peak", "z_peak")
 #: optional: shaft rotation frequency some sensors estimate from the spectrum [Hz]
 EXTRA_COLUMNS = ("rotation_hz",)
-READING_COLUMNS = ("timestamp", "sensor") + LEVEL_COLUMNS + EXTRA_COLUMNS
+READING_COLUMNS = ("timestamp", "sensor") + LEVEL_COLUMNS

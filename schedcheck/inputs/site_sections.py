@@ -37,6 +37,7 @@ from schedcheck.inputs.site_rules import (
 )
 from schedcheck.inputs.site_values import ValueReader, hint
 from schedcheck.site import (
+    EXTRA_COLUMNS,
     READING_COLUMNS,
     ROLES,
     Component,
@@ -125,8 +126,8 @@ class SiteValidator(ValueReader):
                 k = f"readings.columns.{ours}"
                 # one name, or a list of names tried in order (files from different exports)
                 names = theirs if isinstance(theirs, list) and theirs else [theirs]
-                if ours not in READING_COLUMNS:
-                    self.err(k, "unknown column" + hint(ours, READING_COLUMNS))
+                if ours not in READING_COLUMNS + EXTRA_COLUMNS:
+                    self.err(k, "unknown column" + hint(ours, READING_COLUMNS + EXTRA_COLUMNS))
                 elif not all(isinstance(t, str) and t.strip() for t in names):
                     self.err(k, "must be the column name in the file, or a list of names, not "
                              f"{theirs!r}")
