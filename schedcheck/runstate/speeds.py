@@ -42,6 +42,8 @@ SPEED_EXPONENT = 2.0              # vibration velocity ~ speed ** k [-]; see the
 SPEED_EXPONENT_RANGE = (1.0, 3.0)  # the limits of the rotating-unbalance model [-]
 SPEED_STEP = 0.05                 # speed levels for measured speeds and hours by speed [-]
 #                                   (common practice, no source: drives are set in 5 % steps)
+MIN_GROUP_RATIO = 1.5             # running groups closer in level are one speed (a factor 1.5
+#                                   is about 1.2 in speed at k = 2; common practice, no source)
 SMOOTH_READINGS = 5               # a speed level held by fewer readings in a row is absorbed
 #                                   by its neighbours (common practice, no source)
 
@@ -215,6 +217,16 @@ def _level_speeds(comp, medians: list[float], exponent: float
     return out, warn
 
 
+def _speed_boundaries(L: np.ndarray) -> np.ndarray:
+    """Boundaries (log10) between running level groups: the level groups of the running
+    readings (:func:`.thresholds.level_groups`), neighbours closer than
+    :data:`MIN_GROUP_RATIO` merged (the spread and drift of one speed)."""
+    g = th.level_groups(L)
+    keep = [b for b, lo, hi in zip(g.boundaries, g.medians, g.medians[1:], strict=False)
+            if hi - lo >= np.log10(MIN_GROUP_RATIO)]
+    return np.asarray(keep, dtype=float)
+
+
 def assign_speeds(
     component, run: Intervals, t: np.ndarray, level: np.ndarray, rotation_hz: np.ndarray,
     *, exponent: float | None = None,
@@ -255,10 +267,12 @@ def assign_speeds(
     if lv.size == 0:
         return SpeedPieces.constant(run, component.speed)
     L = np.log10(np.maximum(lv, 1e-12))
-    g = th.level_groups(L)
-    key = np.searchsorted(np.asarray(g.boundaries), L, side="left")
+    bounds = _speed_boundaries(L)
+    key = np.searchsorted(bounds, L, side="left")
     key = np.round(_smoothed(key.astype(float))).astype(np.int64)
-    levels, warn = _level_speeds(component, [float(10**m) for m in g.medians], k)
+    medians = [float(10 ** np.median(L[key == i])) if (key == i).any() else np.nan
+               for i in range(bounds.size + 1)]
+    levels, warn = _level_speeds(component, medians, k)
     bs, be, src, _ = _cut(run_s, run_e, tr, key)
     gi = key[np.clip(src, 0, None)]
     sp = np.array([levels[i].speed for i in gi], dtype=float)
