@@ -90,12 +90,10 @@ class SpeedPieces:
 
     @property
     def main_source(self) -> str:
-        """The source of most of the run time ('' with none)."""
-        if self.starts.size == 0:
-            return ""
-        length = self.ends - self.starts
-        best = {s: int(length[self.source == s].sum()) for s in SPEED_SOURCES}
-        return max(best, key=lambda s: best[s])
+        """The weakest source in the run time ('' with none): any estimated piece makes the
+        figures estimates; else configured where any piece is; else measured."""
+        present = set(self.source.tolist())
+        return next((s for s in (ESTIMATED, CONFIGURED, MEASURED) if s in present), "")
 
     def speed_at(self, instants) -> np.ndarray:
         """The speed [-] at each of the int64 ns ``instants``; NaN where not running."""
