@@ -104,6 +104,19 @@ class SpeedPieces:
         out[ok] = self.speed[i[ok]]
         return out
 
+    def speed_ns_per_bin(self, edges) -> np.ndarray:
+        """Per bin ``[edges[i], edges[i+1])``: the sum of speed x running time [ns]; divided by
+        the bin's running time it is the bin's mean running speed [-]."""
+        e = np.asarray(edges, dtype=np.int64)
+        if self.starts.size == 0:
+            return np.zeros(max(e.size - 1, 0))
+        w = self.speed * (self.ends - self.starts)
+        cum = np.concatenate([[0.0], np.cumsum(w)])
+        k = np.searchsorted(self.starts, e, side="right") - 1
+        kk = np.clip(k, 0, None)
+        part = np.clip(e - self.starts[kk], 0, self.ends[kk] - self.starts[kk]) * self.speed[kk]
+        return np.diff(np.where(k >= 0, cum[kk] + part, 0.0))
+
     def overlap_ns(self, iv: Intervals) -> np.ndarray:
         """Per piece: its time inside the interval set ``iv`` [ns]."""
         return iv.cumulative_ns(self.ends) - iv.cumulative_ns(self.starts)
