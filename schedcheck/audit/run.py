@@ -17,6 +17,7 @@ findings run on the account's own sets. Pricing is one vectorised step for all c
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
@@ -27,9 +28,16 @@ import pandas as pd
 
 from schedcheck.audit.accounting import ComponentAccount, ScheduleSets, account
 from schedcheck.audit.energy import affinity_power, price
-from schedcheck.audit.speed_limits import LimitZones, energy_per_bin, limit_zones, within_limit
+from schedcheck.audit.speed_limits import (
+    LimitZones,
+    energy_between,
+    energy_per_bin,
+    limit_zones,
+    within_limit,
+)
 from schedcheck.errors import TableError
 from schedcheck.findings.find import energy_words, find_in_sets
+from schedcheck.findings.speed_rules import speed_kinds
 from schedcheck.intervals import NS_PER_H, Intervals, to_ns
 from schedcheck.readings.cleaning import SensorHealth
 from schedcheck.runstate.classify import ComponentStates
@@ -223,6 +231,16 @@ def run_audit(
     return result
 
 
+def _explained(comp: ComponentResult) -> ScheduleSets:
+    """The schedule the findings read: allowed windows with a speed limit allow only the
+    running at or below it, as in the accounting."""
+    sc, z = comp.account.schedule, comp.zones
+    if not len(z.starts):
+        return sc
+    allowed = (sc.allowed - z.limited) | within_limit(comp.speeds, z)
+    return dataclasses.replace(sc, allowed=allowed)
+
+
 def _zones(sets: ScheduleSets, sched: UnitSchedule) -> LimitZones:
     """The unit's speed-limit zones: limited allowed windows and standby ventilation."""
     limits = getattr(sched, "limits", None)
@@ -253,10 +271,12 @@ def collect_findings(result: AuditResult) -> pd.DataFrame | None:
     frames = []
     for comp in result.components:
         sched = result.schedules[comp.unit.id]
-        frames.append(find_in_sets(
-            comp.component, comp.account.states, comp.account.schedule, sched.days_off,
+        found = find_in_sets(
+            comp.component, comp.account.states, _explained(comp), sched.days_off,
             start=result.start, end=result.end, tz=site.timezone, settings=site.findings,
-        ))
+        )
+        frames.append(speed_kinds(found, comp.speeds, comp.account.off_schedule,
+                                  comp.zones.zone_set(), site.timezone))
     frames = [f for f in frames if len(f)]
     return pd.concat(frames, ignore_index=True) if frames else None
 
@@ -293,7 +313,19 @@ def price_findings(found: pd.DataFrame | None, result: AuditResult) -> pd.DataFr
     given_h = f["hours"] if "hours" in f else pd.Series(np.nan, index=f.index)
     f["hours"] = given_h.astype(float).fillna(pd.Series((e - s) / NS_PER_H))
     en = result.site.energy
-    p = price(kw * energy_h, en.price, en.co2_per_kwh)
+    kwh = kw * energy_h
+    for key in set(f["component"]):
+        # at the speeds run: the off-schedule energy inside the finding, scaled to its hours
+        rows = (f["component"] == key).to_numpy() & (energy_h > 0)
+        c = by_key[key]
+        off = c.account.off_schedule
+        inside_h = (off.cumulative_ns(e[rows]) - off.cumulative_ns(s[rows])) / NS_PER_H
+        at_speed = energy_between(c.speeds, c.component.power_kw, en.exponent, s[rows],
+                                  e[rows], off, c.zones)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            kwh[rows] = np.where(inside_h > 0, at_speed * energy_h[rows] / inside_h,
+                                 kwh[rows])
+    p = price(kwh, en.price, en.co2_per_kwh)
     for col, computed in (("kwh", p.kwh), ("cost", p.cost), ("co2_kg", p.co2_kg)):
         given = f[col].astype(float) if col in f else pd.Series(np.nan, index=f.index)
         f[col] = given.fillna(pd.Series(np.atleast_1d(computed)))

@@ -147,3 +147,19 @@ def hours_by_speed(pieces: SpeedPieces, step: float) -> list[tuple[float, float]
     r = np.round(np.round(pieces.speed / step) * step, 4)
     ns = pd.Series(pieces.ends - pieces.starts).groupby(r).sum()
     return [(float(s), float(h) / NS_PER_H) for s, h in ns.items()]
+
+
+def energy_between(pieces: SpeedPieces, power_kw: float, exponent: float, starts: np.ndarray,
+                   ends: np.ndarray, inside: Intervals, zones: LimitZones | None = None
+                   ) -> np.ndarray:
+    """kWh of the running inside ``inside`` within each ``[starts[i], ends[i])``, at the
+    pieces' speeds less the zones' limits (as :func:`energy_per_bin`) [kWh]."""
+    s, e = np.asarray(starts, np.int64), np.asarray(ends, np.int64)
+    if s.size == 0:
+        return np.zeros(0)
+    edges = np.unique(np.concatenate([s, e]))
+    if edges.size < 2:
+        return np.zeros(s.size)
+    cum = np.concatenate([[0.0], np.cumsum(energy_per_bin(pieces, power_kw, exponent, edges,
+                                                          inside=inside, zones=zones))])
+    return cum[np.searchsorted(edges, e)] - cum[np.searchsorted(edges, s)]

@@ -1,4 +1,4 @@
 """The finding kinds, in the order the rules run and the outputs list them."""
 
 KINDS = ("night", "weekend", "holiday", "continuous", "clock_offset", "early_start", "late_stop",
-         "missed", "short_cycling")
+         "missed", "short_cycling", "setback", "over_speed")

@@ -46,7 +46,8 @@ KIND_WORDS = {
     "holiday": "holiday running",
     "continuous": "continuous running", "clock_offset": "clock offset",
     "early_start": "early starts", "late_stop": "late stops", "missed": "missed operation",
-    "short_cycling": "short cycling",
+    "short_cycling": "short cycling", "setback": "set back instead of stopped",
+    "over_speed": "above the allowed speed",
 }
 
 

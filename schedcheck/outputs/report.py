@@ -37,6 +37,8 @@ KIND_LABELS = {
     "late_stop": "Repeated late stop",
     "missed": "Off during occupied hours",
     "short_cycling": "Many starts per day",
+    "setback": "Set back to low speed instead of stopped",
+    "over_speed": "Ran above the allowed speed",
 }
 
 # What to ask the controls contractor, per finding kind (plain wording of our own).
@@ -54,6 +56,11 @@ KIND_ASKS = {
     "missed": "Find out why {what} was off in occupied hours (trip, fault, schedule error): "
               "occupants may have had too little outdoor air.",
     "short_cycling": "Check the control loop and minimum run and off times of {what}.",
+    "setback": "Check whether {what} may stop instead of running at low speed outside the "
+               "occupied period; keep any standby ventilation a code requires (then state it "
+               "as standby_speed).",
+    "over_speed": "Check the speed limit of the allowed or standby running of {what} in the "
+                  "drive or the time program.",
 }
 
 HOUR_KEYS = ("period", "scheduled", "running", "in_schedule", "in_allowance", "off_schedule",

@@ -186,3 +186,27 @@ def test_affinity_law_at_reduced_speed_matches_the_published_example():
     assert affinity_power(10.0, 0.8, 3.0) / 10.0 == pytest.approx(0.5, abs=0.015)
     # the fan laws, power ~ speed cubed (the same source): half speed needs an eighth
     assert affinity_power(10.0, 0.5, 3.0) == pytest.approx(1.25)
+
+
+def test_setback_and_over_speed_findings_keep_their_energy():
+    speed = speed_series(0.85, 0.3)
+    comp, truth, r = seeded(speed, RUNS, seed=25, speeds=(0.3, 0.85))
+    unit = Unit("AHU-7", "Test unit", ScheduleSettings(), (comp,))
+    site = Site("Harbour Test Rooms", "UTC", Path("site.toml"), ReadingsSettings(("r.csv",)),
+                HolidaySettings(), ScheduleSettings(), EnergySettings(exponent=EXP), (unit,))
+    states = classify_unit(unit, {"S1": r}, T0, END, pd.Timedelta("5min"))
+    sched = UnitSchedule("AHU-7", occupied(), pd.DataFrame(columns=["date", "name", "kind"]))
+    res = run_audit(site, states, {"AHU-7": sched}, T0, END)
+    f = res.findings
+    assert set(f["kind"]) == {"setback"}, set(f["kind"])
+    assert f["detail"].str.contains("set back to about 30% speed").all()
+    # each off-schedule minute belongs to one finding: their energy is the component's
+    assert f["kwh"].sum() == pytest.approx(res.components[0].energy["off_schedule_kwh"],
+                                           rel=0.01)
+    # above a standby limit of 20 %, the same nights are over_speed with the excess energy
+    sched.standby_speed = 0.2
+    res = run_audit(site, states, {"AHU-7": sched}, T0, END)
+    assert set(res.findings["kind"]) == {"over_speed"}
+    excess = P_KW * (0.3**EXP - 0.2**EXP) * 120
+    assert res.components[0].energy["off_schedule_kwh"] == pytest.approx(excess, rel=0.01)
+    assert res.findings["kwh"].sum() == pytest.approx(excess, rel=0.01)
