@@ -39,10 +39,25 @@ def states_table(result) -> object:
         sep_text = "-" if sep is None else (f">{sep:.0f}" if sep >= 1000 else f"{sep:.1f}")
         share = "-" if r["running_share"] is None else f"{r['running_share']:.1%}"
         why = r["reason"] + "".join(f"\nwarning: {w}" for w in r["warnings"])
+        why += _speed_line(r.get("speed_levels") or [])
         table.add_row(r["component"], _cell(r["level"], ".3g"), r["source"], sep_text,
                       r.get("confidence") or "-", share,
                       _cell(r["starts_per_day"], ".1f"), why)
     return table
+
+
+def _speed_line(levels: list[dict]) -> str:
+    """The running level groups with their speeds, e.g. ``speeds: 0.18 -> 30 % (estimated
+    20-43 %), 1.45 -> 85 %``."""
+    if not levels:
+        return ""
+    parts = []
+    for lv in levels:
+        text = f"{lv['level']:.3g} -> {lv['speed']:.0%}"
+        if lv["source"] == "estimated":
+            text += f" (estimated, {lv['low']:.0%}-{lv['high']:.0%})"
+        parts.append(text)
+    return "\nspeeds: " + ", ".join(parts)
 
 
 @app.command()

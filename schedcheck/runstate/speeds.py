@@ -44,6 +44,8 @@ SPEED_STEP = 0.05                 # speed levels for measured speeds and hours b
 #                                   (common practice, no source: drives are set in 5 % steps)
 MIN_GROUP_RATIO = 1.5             # running groups closer in level are one speed (a factor 1.5
 #                                   is about 1.2 in speed at k = 2; common practice, no source)
+GROUPING_READINGS = 50_000        # running readings the speed groups are found from (a
+#                                   regular subsample beyond; common practice, no source)
 SMOOTH_READINGS = 5               # a speed level held by fewer readings in a row is absorbed
 #                                   by its neighbours (common practice, no source)
 
@@ -145,11 +147,15 @@ def rotation_values(frame: pd.DataFrame | None, t: np.ndarray) -> np.ndarray:
 
 
 def _smoothed(x: np.ndarray) -> np.ndarray:
-    """A running median over :data:`SMOOTH_READINGS` readings (flicker at a boundary)."""
-    if x.size < SMOOTH_READINGS:
+    """A running median over :data:`SMOOTH_READINGS` readings (flicker at a boundary); the
+    ends keep their values."""
+    w = SMOOTH_READINGS
+    if x.size < w:
         return x
-    return (pd.Series(x).rolling(SMOOTH_READINGS, center=True, min_periods=1).median()
-            .to_numpy())
+    win = np.lib.stride_tricks.sliding_window_view(np.asarray(x, dtype=float), w)
+    out = np.array(x, dtype=float)
+    out[w // 2: x.size - w // 2] = np.partition(win, w // 2, axis=1)[:, w // 2]
+    return out
 
 
 def _cut(run_s: np.ndarray, run_e: np.ndarray, t: np.ndarray, key: np.ndarray
@@ -232,7 +238,8 @@ def _speed_boundaries(L: np.ndarray) -> np.ndarray:
     """Boundaries (log10) between running level groups: the level groups of the running
     readings (:func:`.thresholds.level_groups`), neighbours closer than
     :data:`MIN_GROUP_RATIO` merged (the spread and drift of one speed)."""
-    g = th.level_groups(L)
+    # every k-th reading is enough to find the groups (at most GROUPING_READINGS)
+    g = th.level_groups(L[:: max(1, L.size // GROUPING_READINGS)])
     keep = [b for b, lo, hi in zip(g.boundaries, g.medians, g.medians[1:], strict=False)
             if hi - lo >= np.log10(MIN_GROUP_RATIO)]
     return np.asarray(keep, dtype=float)
