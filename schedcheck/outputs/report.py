@@ -133,8 +133,28 @@ def _component_rows(data: SavedAudit) -> list[dict]:
             "power_kw": c.get("power_kw"), "speed": c.get("speed"),
             "exponent": c.get("exponent"), "threshold": threshold,
             "n_findings": c.get("findings"),
+            "by_speed": _by_speed_text(c),
         })
     return rows
+
+
+def _by_speed_text(c: dict) -> str:
+    """Running hours by speed in words, with an estimate's range: ``30 %: 120.0 h
+    (estimated, 11-43 %); 85 %: 120.0 h``; empty with one speed or none."""
+    rows = (c.get("hours") or {}).get("by_speed") or []
+    if len(rows) < 2:
+        return ""
+    est = {round(lv["speed"], 2): lv for lv in c.get("speed_levels") or []
+           if lv.get("source") == "estimated"}
+    parts = []
+    for r in rows:
+        text = f"{r['speed']:.0%}: {r['hours']:,.1f} h"
+        lv = est.get(round(r["speed"], 2)) or next(
+            (v for k, v in est.items() if abs(k - r["speed"]) <= 0.025), None)
+        if lv is not None:
+            text += f" (estimated from the vibration level, {lv['low']:.0%}-{lv['high']:.0%})"
+        parts.append(text)
+    return "; ".join(parts)
 
 
 def _charts(data: SavedAudit, comp: dict, days_off: pd.DataFrame) -> None:

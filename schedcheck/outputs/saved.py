@@ -38,7 +38,7 @@ _CSV_SPECS: dict[str, tuple[tuple[str, ...], tuple[str, ...], tuple[str, ...], b
     "runs.csv": (
         ("component", "state", "start", "end"),
         ("start", "end"),
-        ("hours", "level"),
+        ("hours", "level", "speed"),
         False,
     ),
     "findings.csv": (
