@@ -25,6 +25,14 @@ class ScheduleSettings:
     allowed: tuple[Path, ...] = ()           # iCalendar files: running acceptable, not required
     early_start: pd.Timedelta = pd.Timedelta(0)   # allowance before each occupied period
     late_stop: pd.Timedelta = pd.Timedelta(0)     # allowance after each occupied period
+    # per file of ``allowed``: its ``max_speed`` [-], None = any speed is allowed there
+    allowed_limits: tuple[float | None, ...] = ()
+    # outside occupied periods and allowances, running at or below this speed is allowed [-]
+    standby_speed: float | None = None
+
+    def allowed_limit(self, i: int) -> float | None:
+        """The ``max_speed`` of the i-th allowed calendar (None: any speed)."""
+        return self.allowed_limits[i] if i < len(self.allowed_limits) else None
 
 
 @dataclass(frozen=True)
@@ -38,6 +46,8 @@ class Component:
     power_kw: float              # electrical input at design speed [kW]
     speed: float                 # usual running speed as a fraction of design speed [-]
     threshold: float | None = None   # fixed on/off level [reading unit], None = learn it
+    speeds: tuple[float, ...] = ()   # a multi-speed fan's speeds, lowest first [-]
+    design_rpm: float | None = None  # rotation speed at design speed [rpm]
 
     @property
     def key(self) -> str:
@@ -119,6 +129,8 @@ class RunStateSettings:
     shift_days: int | None = field(default=None, metadata={"min": 1})  # level-shift block [d]
     lookback: pd.Timedelta | None = None    # states and clock reference days before the window
     learn_from_all: bool | None = None      # levels from every reading in the files (default)
+    # vibration velocity ~ speed ** this, for estimated speeds (runstate/speeds.py) [-]
+    speed_exponent: float | None = field(default=None, metadata={"min": 0.5, "max": 4.0})
 
 
 @dataclass(frozen=True)
@@ -171,4 +183,6 @@ class Site:
 
 # Column names of the readings, ours (a site file's readings.columns maps them to the files')
 LEVEL_COLUMNS = ("x_rms", "y_rms", "z_rms", "x_peak", "y_peak", "z_peak")
+#: optional: shaft rotation frequency some sensors estimate from the spectrum [Hz]
+EXTRA_COLUMNS = ("rotation_hz",)
 READING_COLUMNS = ("timestamp", "sensor") + LEVEL_COLUMNS

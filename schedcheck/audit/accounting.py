@@ -174,6 +174,8 @@ def account(
     *,
     counts_missed: bool = True,
     days_off: pd.DataFrame | None = None,
+    limited: Intervals | None = None,
+    within_limit: Intervals | None = None,
 ) -> ComponentAccount:
     """Hour figures and daily rows of one component.
 
@@ -191,6 +193,11 @@ def account(
         Whether off time in occupied periods counts as ``missed`` (fans: yes; heat wheels: no).
     days_off : DataFrame, optional
         ``date``, ``name``, ``kind`` of the unit's holidays and closures, for the daily rows.
+    limited : Intervals, optional
+        Allowed windows with a ``max_speed`` (allowed only up to the limit) [UTC].
+    within_limit : Intervals, optional
+        Running inside the speed-limit zones at or below the limit
+        (:func:`schedcheck.audit.speed_limits.within_limit`): allowed, counted in allowance.
 
     Returns
     -------
@@ -198,13 +205,18 @@ def account(
     """
     start, end = _window(start, end)
     st, sc = states, schedule
-    allowed_any = sc.occupied | sc.allowance_any
+    allowance_any = sc.allowance_any
+    if limited is not None:
+        allowance_any = allowance_any - limited
+    if within_limit is not None:
+        allowance_any = allowance_any | (within_limit - sc.occupied)
+    allowed_any = sc.occupied | allowance_any
     sets = {
         "period": Intervals.window(start, end),
         "scheduled": sc.occupied,
         "running": st.run,
         "in_schedule": st.run & sc.occupied,
-        "in_allowance": st.run & sc.allowance_any,
+        "in_allowance": st.run & allowance_any,
         "off_schedule": st.run - allowed_any,
         "off": st.off,
         "no_data": st.no_data,

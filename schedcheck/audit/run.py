@@ -17,6 +17,7 @@ findings run on the account's own sets. Pricing is one vectorised step for all c
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
@@ -27,20 +28,29 @@ import pandas as pd
 
 from schedcheck.audit.accounting import ComponentAccount, ScheduleSets, account
 from schedcheck.audit.energy import affinity_power, price
+from schedcheck.audit.speed_limits import (
+    LimitZones,
+    energy_between,
+    energy_per_bin,
+    limit_zones,
+    within_limit,
+)
 from schedcheck.errors import TableError
 from schedcheck.findings.find import energy_words, find_in_sets, resolved
 from schedcheck.findings.grouping import group_by_unit
 from schedcheck.findings.projection import project_year
 from schedcheck.findings.rules import Reference
-from schedcheck.intervals import NS_PER_H, to_ns, union_all
+from schedcheck.findings.speed_rules import speed_kinds
+from schedcheck.intervals import NS_PER_H, Intervals, to_ns, union_all
 from schedcheck.readings.cleaning import SensorHealth
 from schedcheck.runstate.classify import ComponentStates
 from schedcheck.runstate.onofflevel import Threshold
+from schedcheck.runstate.speeds import SpeedPieces
 from schedcheck.runstate.states import NO_DATA_WARN
 from schedcheck.schedule.daysoff import days_off as days_off_between
 from schedcheck.schedule.intended import UnitSchedule
 from schedcheck.site import Component, Site, Unit
-from schedcheck.window import last_local_date
+from schedcheck.window import day_edges, last_local_date
 
 FINDING_COLUMNS = ("component", "kind", "start", "end", "hours", "kwh", "cost", "co2_kg",
                    "detail")
@@ -63,6 +73,12 @@ class ComponentResult:
     energy: dict[str, float]          # running_kwh, running_cost, running_co2_kg, off_schedule_*
     daily: pd.DataFrame               # account.daily + off_schedule_kwh
     state_warnings: list[str] = field(default_factory=list)
+    zones: LimitZones = field(default_factory=LimitZones.none)   # speed limits in force
+
+    @property
+    def speeds(self) -> SpeedPieces:
+        """The run time by speed (:mod:`schedcheck.runstate.speeds`)."""
+        return self.states.speed_pieces
 
     @property
     def key(self) -> str:
@@ -176,18 +192,33 @@ def run_audit(
             cs = states.get(comp.key)
             if cs is None:
                 raise TableError(f"no run states for component {comp.key}", key="states")
+            zones = _zones(sets, sched)
+            pieces = cs.speed_pieces
             acc = account(cs.sets, sets, start, end, tz, counts_missed=comp.is_fan,
-                          days_off=sched.days_off)
-            found.append((comp, unit, cs, acc))
-    # the one pricing step for the components: affinity law at the usual speed, then kWh
-    kw = np.atleast_1d(affinity_power([c.power_kw for c, *_ in found],
-                                      [c.speed for c, *_ in found], e.exponent))
-    run_h = np.array([a.ns["running"] for *_, a in found], dtype=float) / NS_PER_H
-    off_h = np.array([a.ns["off_schedule"] for *_, a in found], dtype=float) / NS_PER_H
-    run_p = price(kw * run_h, e.price, e.co2_per_kwh)
-    off_p = price(kw * off_h, e.price, e.co2_per_kwh)
+                          days_off=sched.days_off, limited=zones.limited,
+                          within_limit=within_limit(pieces, zones))
+            found.append((comp, unit, cs, acc, zones))
+    # the one pricing step for the components: the affinity law at each piece's speed, summed
+    # over local days (running, and off-schedule less what a speed limit would have used)
+    _, edge_ts = day_edges(start.tz_convert(tz).date(), last_local_date(end, tz), tz)
+    ed = np.clip(to_ns(edge_ts), to_ns(start), to_ns(end))     # as the accounting's days
+    run_kwh, off_kwh, daily_off = [], [], []
+    for comp, _unit, cs, acc, zones in found:
+        run_kwh.append(float(energy_per_bin(cs.speed_pieces, comp.power_kw, e.exponent,
+                                            ed).sum()))
+        d = energy_per_bin(cs.speed_pieces, comp.power_kw, e.exponent, ed,
+                           inside=acc.off_schedule, zones=zones)
+        daily_off.append(d)
+        off_kwh.append(float(d.sum()))
+    run_h = np.array([a.ns["running"] for *_, a, _ in found], dtype=float) / NS_PER_H
+    kw = np.where(run_h > 0, np.array(run_kwh) / np.where(run_h > 0, run_h, 1.0),
+                  np.atleast_1d(affinity_power([c.power_kw for c, *_ in found] or [0.0],
+                                               [c.speed for c, *_ in found] or [0.0],
+                                               e.exponent))[: len(found)])
+    run_p = price(np.array(run_kwh, dtype=float), e.price, e.co2_per_kwh)
+    off_p = price(np.array(off_kwh, dtype=float), e.price, e.co2_per_kwh)
     results: list[ComponentResult] = []
-    for i, (comp, unit, cs, acc) in enumerate(found):
+    for i, (comp, unit, cs, acc, zones) in enumerate(found):
         k = float(kw[i])
         energy = {
             "running_kw": k,
@@ -196,7 +227,7 @@ def run_audit(
             "off_schedule_kwh": float(off_p.kwh[i]), "off_schedule_cost": float(off_p.cost[i]),
             "off_schedule_co2_kg": float(off_p.co2_kg[i]),
         }
-        daily = acc.daily.assign(off_schedule_kwh=acc.daily["off_schedule_ns"] / NS_PER_H * k)
+        daily = acc.daily.assign(off_schedule_kwh=daily_off[i][: len(acc.daily)])
         sw = [str(w) for w in cs.warnings]
         sw += [str(w) for w in (cs.threshold.warnings if cs.threshold is not None else ())]
         for w in acc.warnings:
@@ -207,7 +238,8 @@ def run_audit(
                 f"{comp.key}: {share:.0%} of the window has no data "
                 f"({acc.ns['no_data'] / NS_PER_H:.1f} h); its hours and kWh cover only the "
                 "known time and may understate the running")
-        results.append(ComponentResult(comp, unit, acc, cs, cs.threshold, k, energy, daily, sw))
+        results.append(ComponentResult(comp, unit, acc, cs, cs.threshold, k, energy, daily, sw,
+                                       zones))
     result = AuditResult(
         site=site, start=start, end=end, first_date=first_date, last_date=last_date,
         components=results, schedules=dict(schedules), findings=empty_findings(),
@@ -295,6 +327,28 @@ class Lookback:
         return out
 
 
+def _explained(comp: ComponentResult) -> ScheduleSets:
+    """The schedule the findings read: allowed windows with a speed limit allow only the
+    running at or below it, as in the accounting."""
+    sc, z = comp.account.schedule, comp.zones
+    if not len(z.starts):
+        return sc
+    allowed = (sc.allowed - z.limited) | within_limit(comp.speeds, z)
+    return dataclasses.replace(sc, allowed=allowed)
+
+
+def _zones(sets: ScheduleSets, sched: UnitSchedule) -> LimitZones:
+    """The unit's speed-limit zones: limited allowed windows and standby ventilation."""
+    limits = getattr(sched, "limits", None)
+    standby = getattr(sched, "standby_speed", None)
+    if (limits is None or not len(limits)) and standby is None:
+        return LimitZones.none()
+    limited = (Intervals.from_frame(limits) if limits is not None and len(limits)
+               else Intervals.empty())
+    free = sets.occupied | sets.allowance | (sets.allowed - limited)
+    return limit_zones(sets.window, free, limits, standby)
+
+
 def empty_findings() -> pd.DataFrame:
     """A findings table with no rows and the right columns."""
     utc = pd.DatetimeIndex([], tz="UTC").as_unit("ns")
@@ -313,11 +367,13 @@ def collect_findings(result: AuditResult) -> pd.DataFrame | None:
     frames = []
     for comp in result.components:
         sched = result.schedules[comp.unit.id]
-        frames.append(find_in_sets(
-            comp.component, comp.account.states, comp.account.schedule, sched.days_off,
+        found = find_in_sets(
+            comp.component, comp.account.states, _explained(comp), sched.days_off,
             start=result.start, end=result.end, tz=site.timezone, settings=site.findings,
             reference=result.reference.get(comp.key),
-        ))
+        )
+        frames.append(speed_kinds(found, comp.speeds, comp.account.off_schedule,
+                                  comp.zones.zone_set(), site.timezone))
     frames = [f for f in frames if len(f)]
     return pd.concat(frames, ignore_index=True) if frames else None
 
@@ -354,7 +410,19 @@ def price_findings(found: pd.DataFrame | None, result: AuditResult) -> pd.DataFr
     given_h = f["hours"] if "hours" in f else pd.Series(np.nan, index=f.index)
     f["hours"] = given_h.astype(float).fillna(pd.Series((e - s) / NS_PER_H))
     en = result.site.energy
-    p = price(kw * energy_h, en.price, en.co2_per_kwh)
+    kwh = kw * energy_h
+    for key in set(f["component"]):
+        # at the speeds run: the off-schedule energy inside the finding, scaled to its hours
+        rows = (f["component"] == key).to_numpy() & (energy_h > 0)
+        c = by_key[key]
+        off = c.account.off_schedule
+        inside_h = (off.cumulative_ns(e[rows]) - off.cumulative_ns(s[rows])) / NS_PER_H
+        at_speed = energy_between(c.speeds, c.component.power_kw, en.exponent, s[rows],
+                                  e[rows], off, c.zones)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            kwh[rows] = np.where(inside_h > 0, at_speed * energy_h[rows] / inside_h,
+                                 kwh[rows])
+    p = price(kwh, en.price, en.co2_per_kwh)
     for col, computed in (("kwh", p.kwh), ("cost", p.cost), ("co2_kg", p.co2_kg)):
         given = f[col].astype(float) if col in f else pd.Series(np.nan, index=f.index)
         f[col] = given.fillna(pd.Series(np.atleast_1d(computed)))

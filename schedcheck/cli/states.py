@@ -58,7 +58,24 @@ def reason_lines(result) -> list[str]:
     for i, r in enumerate(result.records, 1):
         out.append(f"*{i} {r['component']}: {r['reason']}")
         out += [f"   warning: {w}" for w in r["warnings"]]
+        speeds = _speed_line(r.get("speed_levels") or [])
+        if speeds:
+            out.append("   " + speeds.strip())
     return out
+
+
+def _speed_line(levels: list[dict]) -> str:
+    """The running level groups with their speeds, e.g. ``speeds: 0.18 -> 30 % (estimated
+    20-43 %), 1.45 -> 85 %``."""
+    if not levels:
+        return ""
+    parts = []
+    for lv in levels:
+        text = f"{lv['level']:.3g} -> {lv['speed']:.0%}"
+        if lv["source"] == "estimated":
+            text += f" (estimated, {lv['low']:.0%}-{lv['high']:.0%})"
+        parts.append(text)
+    return "\nspeeds: " + ", ".join(parts)
 
 
 @app.command()

@@ -116,6 +116,7 @@ def readings_for_component(
     idle_level: float = 0.0,
     idle: Iterable[tuple] = (),
     level_factor: pd.Series | None = None,
+    design_rpm: float | None = None,
 ) -> pd.DataFrame:
     """Readings of one sensor on a component whose true run intervals are ``truth``.
 
@@ -146,8 +147,8 @@ Readings are due at ``start + k * period`` inside ``[start, end)``.
         Speed as a fraction of design speed [-], indexed by UTC instants; each value holds
         until the next (a variable-speed drive). Missing = 1.0.
     speed_exponent : float
-        Level scales as ``speed ** speed_exponent`` [-]; 2 for an imbalance force growing with
-        the square of speed (from memory; real fans vary between about 1 and 2).
+        Level scales as ``speed ** speed_exponent`` [-]; the default is the classifier's
+        estimate exponent (:data:`schedcheck.runstate.speeds.SPEED_EXPONENT`, with its source).
     carried : DataFrame, optional
         A sibling component's truth; while it runs, ``carried_level`` is added.
     carried_level : float
@@ -179,6 +180,9 @@ Readings are due at ``start + k * period`` inside ``[start, end)``.
     level_factor : Series, optional
         Multiplies the running and carried levels [-], indexed by UTC instants, linear in
         between, constant before the first and after the last.
+    design_rpm : float, optional
+        With it, a ``rotation_hz`` column is written: ``speed * design_rpm / 60`` with a
+        scatter of 0.5 % while running, empty while stopped (a sensor's spectral estimate).
 
     Returns
     -------
@@ -271,6 +275,9 @@ Readings are due at ``start + k * period`` inside ``[start, end)``.
     order = [f"{ax}_rms" for ax in axes] + ([f"{ax}_peak" for ax in axes] if peaks else [])
     for c in order:
         out[c] = cols[c][rows]
+    if design_rpm is not None:
+        hz = sp * design_rpm / 60.0 * np.exp(rng.normal(0, 0.005 * scatter, n))
+        out["rotation_hz"] = np.where(running, hz, np.nan)[rows]
     return pd.DataFrame(out)
 
 

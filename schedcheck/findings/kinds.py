@@ -1,4 +1,4 @@
 """The finding kinds, in the order the rules run and the outputs list them."""
 
 KINDS = ("night", "weekend", "holiday", "unscheduled_day", "continuous", "clock_offset",
-         "early_start", "late_stop", "missed", "short_cycling")
+         "early_start", "late_stop", "missed", "short_cycling", "setback", "over_speed")

@@ -20,7 +20,11 @@ from schedcheck.errors import InputError, InputProblems, NoReadingsError
 from schedcheck.inputs.file_patterns import resolve_patterns
 from schedcheck.inputs.readings_rows import Collector
 from schedcheck.readings import cleaning as rd
-from schedcheck.site import LEVEL_COLUMNS, Site
+from schedcheck.site import EXTRA_COLUMNS, Site
+from schedcheck.site import LEVEL_COLUMNS as _LEVELS
+
+# the numeric columns read per reading: levels and the optional rotation frequency
+LEVEL_COLUMNS = _LEVELS + EXTRA_COLUMNS
 
 CSV_CHUNK_ROWS = 500_000      # rows per CSV chunk: bounds memory (common practice, no source)
 PARQUET_SUFFIXES = (".parquet", ".pq", ".parq")

@@ -15,7 +15,7 @@ import pyarrow.compute as pc
 
 from schedcheck.errors import InputError
 from schedcheck.readings import cleaning as rd
-from schedcheck.site import Site
+from schedcheck.site import EXTRA_COLUMNS, Site
 
 BAD_ROW_EXAMPLES = 5          # bad rows named in a message (common practice, no source)
 MARGIN = pd.Timedelta("1D")   # rows kept outside the window while placing autumn-fold rows
@@ -88,9 +88,19 @@ def _levels(rows: _Rows, levels: tuple[str, ...], n_names: int
     bad values (:func:`_absent_levels`).
     """
     lv, lbad = rd.level_values(rows.raw, levels)
+    extra = [c for c in levels if c in EXTRA_COLUMNS]
+    if extra:   # optional columns: an empty cell is no value (a stopped shaft has no rotation)
+        lbad = np.zeros(len(rows.raw), bool)
+        for c in levels:
+            v = lv[c].to_numpy()
+            lbad |= ((v < 0) | np.isinf(v)) if c in extra else (~np.isfinite(v) | (v < 0))
+    levels = tuple(c for c in levels if c not in extra)
     absent = _absent_levels(rows.raw, levels, rows.codes, n_names)
     if absent:
         lbad = np.zeros(len(rows.raw), bool)
+        for c in extra:
+            v = lv[c].to_numpy()
+            lbad |= (v < 0) | np.isinf(v)
         for c in levels:
             cbad = ~np.isfinite(lv[c].to_numpy()) | (lv[c].to_numpy() < 0)
             lbad |= cbad & ~np.isin(rows.codes, absent.get(c, []))

@@ -14,10 +14,11 @@ _TOP = ("site", "readings", "holidays", "schedule", "energy", "unit", "run_state
 _SITE = ("name", "timezone")
 _READINGS = ("files", "unit", "naive_time", "max_gap", "columns", "skip_bad_rows")
 _HOLIDAYS = ("country", "subdivision", "categories", "closed", "language", "drop", "add")
-_SCHEDULE = ("occupied", "allowed", "early_start", "late_stop")
+_SCHEDULE = ("occupied", "allowed", "early_start", "late_stop", "standby_speed")
 _ENERGY = ("price", "currency", "co2_per_kwh", "exponent")
 _UNIT = ("id", "name", "schedule", "component")
-_COMPONENT = ("id", "role", "sensor", "power_kw", "speed", "threshold")
+_COMPONENT = ("id", "role", "sensor", "power_kw", "speed", "threshold", "speeds", "design_rpm")
+_ALLOWED_ITEM = ("file", "max_speed")   # an allowed window given as a table
 
 # Speeds above 1.0 cover fans driven past design speed by a drive (up to 20 %; common
 # practice, no source).
@@ -35,3 +36,5 @@ MAX_GAP_LIMIT = pd.Timedelta("24h")
 # below 100 MW, and no vibration reading unit reaches a million).
 MAX_POWER_KW = 100_000.0          # [kW]
 MAX_THRESHOLD = 1e6               # [reading unit]
+# design_rpm at most 100,000 rpm: beyond any fan or motor shaft (common practice, no source)
+MAX_RPM = 100_000.0               # [rpm]

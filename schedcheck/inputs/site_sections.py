@@ -9,8 +9,6 @@ and by 1-based position otherwise (``unit[#2].component[#1].id``).
 from __future__ import annotations
 
 import dataclasses
-import datetime as dt
-import difflib
 import typing
 import zoneinfo
 from pathlib import Path
@@ -18,9 +16,10 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.audit.energy import EXPONENT_RANGE
-from schedcheck.errors import InputError
 from schedcheck.inputs.file_patterns import resolve_patterns
+from schedcheck.inputs.site_holidays import HolidaySections
 from schedcheck.inputs.site_rules import (
+    _ALLOWED_ITEM,
     _COMPONENT,
     _ENERGY,
     _HOLIDAYS,
@@ -32,17 +31,18 @@ from schedcheck.inputs.site_rules import (
     MAX_ALLOWANCE,
     MAX_GAP_LIMIT,
     MAX_POWER_KW,
+    MAX_RPM,
     MAX_THRESHOLD,
     SPEED_RANGE,
 )
-from schedcheck.inputs.site_values import ValueReader, hint
+from schedcheck.inputs.site_values import ValueReader, hint  # noqa: F401
 from schedcheck.site import (
+    EXTRA_COLUMNS,
     READING_COLUMNS,
     ROLES,
     Component,
     EnergySettings,
     FindingSettings,
-    HolidaySettings,
     ReadingsSettings,
     RunStateSettings,
     ScheduleSettings,
@@ -51,7 +51,7 @@ from schedcheck.site import (
 )
 
 
-class SiteValidator(ValueReader):
+class SiteValidator(HolidaySections):
     """Walks the parsed TOML section by section, collecting every problem."""
 
     def __init__(self, path: Path, text: str | None = None, *,
@@ -125,8 +125,8 @@ class SiteValidator(ValueReader):
                 k = f"readings.columns.{ours}"
                 # one name, or a list of names tried in order (files from different exports)
                 names = theirs if isinstance(theirs, list) and theirs else [theirs]
-                if ours not in READING_COLUMNS:
-                    self.err(k, "unknown column" + hint(ours, READING_COLUMNS))
+                if ours not in READING_COLUMNS + EXTRA_COLUMNS:
+                    self.err(k, "unknown column" + hint(ours, READING_COLUMNS + EXTRA_COLUMNS))
                 elif not all(isinstance(t, str) and t.strip() for t in names):
                     self.err(k, "must be the column name in the file, or a list of names, not "
                              f"{theirs!r}")
@@ -140,152 +140,6 @@ class SiteValidator(ValueReader):
         skip = self.boolean(r, "skip_bad_rows", "readings.skip_bad_rows")
         return ReadingsSettings(files=tuple(files or ()), unit=unit, naive_time=naive,
                                 max_gap=max_gap, columns=columns, skip_bad_rows=skip)
-
-    def holidays(self, h: dict) -> HolidaySettings:
-        country = self.string(h, "country", "holidays.country")
-        if isinstance(h.get("subdivision"), int) and not isinstance(h["subdivision"], bool):
-            # subdivision = 3 would lose the leading zero of "03": ask for text
-            self.err("holidays.subdivision", f"write it as text in quotes, e.g. "
-                     f"\"{h['subdivision']:0>2}\"")
-            subdiv = None
-        else:
-            subdiv = self.string(h, "subdivision", "holidays.subdivision")
-        cats = h.get("categories", list(HolidaySettings.categories))
-        cats = [cats] if isinstance(cats, str) else cats   # one name needs no list
-        if not isinstance(cats, list) or not cats or not all(isinstance(c, str) for c in cats):
-            self.err("holidays.categories", f"must be a list of names such as [\"public\"], "
-                     f"not {cats!r}")
-            cats = list(HolidaySettings.categories)
-        language = self.string(h, "language", "holidays.language", default=HolidaySettings.language)
-        if country is not None:
-            self.holiday_country(country, subdiv, cats, language, "language" in h)
-        elif subdiv is not None:
-            self.err("holidays.subdivision", "needs holidays.country")
-        closed = []
-        raw = h.get("closed", [])
-        raw = [raw] if isinstance(raw, (str, dt.date)) else raw   # one date needs no list
-        if not isinstance(raw, list):
-            self.err("holidays.closed", "must be a list of dates or ranges, e.g. "
-                     "[\"2026-12-24\", \"2026-07-13/2026-07-31\"]")
-            raw = []
-        for i, item in enumerate(raw, 1):
-            rng = self.closed_item(item, f"holidays.closed[{i}]")
-            if rng is not None:
-                closed.append(rng)
-        names, dates = self.holiday_drop(h, country, subdiv, cats, language)
-        add = [d for i, x in enumerate(self.listed(h, "add"), 1)
-               if (d := self.one_date(x, f"holidays.add[{i}]")) is not None]
-        return HolidaySettings(country=country, subdivision=subdiv, categories=tuple(cats),
-                               closed=tuple(closed), language=language, drop_names=names,
-                               drop_dates=dates, add=tuple(add))
-
-    def listed(self, h: dict, name: str) -> list:
-        raw = h.get(name, [])
-        if isinstance(raw, (str, dt.date)):
-            return [raw]     # one item needs no list
-        if not isinstance(raw, list):
-            self.err(f"holidays.{name}", f"must be a list, e.g. [\"2026-11-27\"], not {raw!r}")
-            return []
-        return raw
-
-    def one_date(self, x, key: str, *, quiet: bool = False) -> dt.date | None:
-        if isinstance(x, dt.date) and not isinstance(x, dt.datetime):
-            return x
-        try:
-            return dt.date.fromisoformat(str(x).strip())
-        except ValueError:
-            if not quiet:
-                self.err(key, f"{x!r} is not a date (\"2026-11-27\")")
-            return None
-
-    def holiday_drop(self, h, country, subdiv, cats, language):
-        """``[holidays] drop``: public holiday names (checked against the country's) or dates."""
-        from schedcheck.schedule.daysoff import NAME_YEARS, holiday_names, public_holidays
-
-        names, dates = [], []
-        items = self.listed(h, "drop")
-        if items and country is None:
-            self.err("holidays.drop", "needs holidays.country")
-            return (), ()
-        known = None
-        for i, x in enumerate(items, 1):
-            key = f"holidays.drop[{i}]"
-            day = self.one_date(x, key, quiet=True)
-            if day is not None:
-                try:
-                    year = public_holidays(country, dt.date(day.year, 1, 1),
-                                           dt.date(day.year, 12, 31), subdivision=subdiv,
-                                           categories=tuple(cats), language=language)
-                except InputError:
-                    return (), ()     # the country's own keys are reported already
-                if day not in set(year["date"]):
-                    shown = ", ".join(d.isoformat() for d in year["date"])
-                    self.err(key, f"{day} is not a public holiday of {country}; "
-                             f"its {day.year} holidays: {shown}")
-                dates.append(day)
-            elif isinstance(x, str) and x.strip():
-                try:
-                    known = known or holiday_names(country, NAME_YEARS, subdivision=subdiv,
-                                                   categories=tuple(cats), language=language)
-                except (NotImplementedError, KeyError, ValueError):
-                    return (), ()     # the country's own keys are reported already
-                if x.strip() not in known:
-                    near = difflib.get_close_matches(x.strip(), known, n=1, cutoff=0.8)
-                    where = country + (f"-{subdiv}" if subdiv else "")
-                    self.err(key, f"{x!r} is not a holiday name of {where}"
-                             + (f' (did you mean "{near[0]}"?)' if near else "")
-                             + "; its names: " + "; ".join(known))
-                names.append(x.strip())
-            else:
-                self.err(key, f"{x!r} must be a holiday name or a date")
-        return tuple(names), tuple(dates)
-
-    def holiday_country(self, country, subdiv, cats, language, language_given) -> None:
-        import holidays as hol
-
-        supported = hol.list_supported_countries(include_aliases=False)
-        if country not in supported:
-            self.err("holidays.country", f"{country!r} is not a country the holidays package "
-                     "knows (ISO 3166-1 alpha-2 code such as 'NO')" + hint(country, supported))
-            return
-        cal = hol.country_holidays(country)
-        subs = list(supported[country])
-        aliases = getattr(cal, "subdivisions_aliases", {}) or {}
-        if subdiv is not None and subdiv not in subs and subdiv not in aliases:
-            listing = ", ".join(subs[:40]) + (" ..." if len(subs) > 40 else "")
-            self.err("holidays.subdivision", f"{subdiv!r} is not a subdivision of {country}"
-                     + (f"; valid: {listing}" if subs else f"; {country} has none"))
-        for c in cats:
-            if c not in cal.supported_categories:
-                self.err("holidays.categories", f"{c!r} is not a holiday category for {country}"
-                         f"; valid: {', '.join(cal.supported_categories)}")
-        langs = cal.supported_languages or ()
-        if language_given and langs and language not in langs:
-            self.err("holidays.language", f"{language!r} is not available for {country}; "
-                     f"valid: {', '.join(langs)}")
-
-    def closed_item(self, item, key):
-        def one(x):
-            if isinstance(x, dt.date) and not isinstance(x, dt.datetime):
-                return x
-            return dt.date.fromisoformat(str(x).strip())
-
-        try:
-            if isinstance(item, str) and "/" in item:
-                a, b = item.split("/", 1)
-                first, last = one(a), one(b)
-            elif isinstance(item, (str, dt.date)) and not isinstance(item, dt.datetime):
-                first = last = one(item)
-            else:
-                raise ValueError
-        except ValueError:
-            self.err(key, f"{item!r} is not a date (\"2026-12-24\") or an inclusive range "
-                     "(\"2026-07-13/2026-07-31\")")
-            return None
-        if last < first:
-            self.err(key, f"{item!r}: the range ends before it starts")
-            return None
-        return (first, last)
 
     def calendars(self, t: dict, name: str, key: str) -> tuple[Path, ...] | None:
         files = self.strings(t, name, key)
@@ -308,12 +162,43 @@ class SiteValidator(ValueReader):
     def schedule(self, t: dict, base: dict, key: str) -> ScheduleSettings:
         """Schedule from table ``t`` where given, else from ``base`` (already validated)."""
         occ = self.calendars(t, "occupied", f"{key}.occupied")
-        allowed = self.calendars(t, "allowed", f"{key}.allowed")
+        allowed, limits = self.allowed_windows(t, f"{key}.allowed")
         early = self.duration(t, "early_start", f"{key}.early_start", most=MAX_ALLOWANCE)
         late = self.duration(t, "late_stop", f"{key}.late_stop", most=MAX_ALLOWANCE)
-        given = {"occupied": occ, "allowed": allowed, "early_start": early, "late_stop": late}
+        lo, hi = SPEED_RANGE
+        standby = self.number(t, "standby_speed", f"{key}.standby_speed", lo=lo, hi=hi,
+                              lo_open=True)
+        given = {"occupied": occ, "allowed": allowed, "early_start": early, "late_stop": late,
+                 "allowed_limits": limits, "standby_speed": standby}
         return dataclasses.replace(ScheduleSettings(**base),
                                    **{k: v for k, v in given.items() if v is not None})
+
+    def allowed_windows(self, t: dict, key: str
+                        ) -> tuple[tuple[Path, ...] | None, tuple[float | None, ...] | None]:
+        """``allowed``: file names, or tables ``{ file = "x.ics", max_speed = 0.5 }``."""
+        if "allowed" not in t:
+            return None, None
+        raw = t["allowed"]
+        items = raw if isinstance(raw, list) else [raw]
+        names, limits = [], []
+        for i, item in enumerate(items, 1):
+            k = key if len(items) == 1 else f"{key}[{i}]"
+            if isinstance(item, dict):
+                self.unknown(item, k, _ALLOWED_ITEM)
+                lo, hi = SPEED_RANGE
+                limits.append(self.number(item, "max_speed", f"{k}.max_speed", lo=lo, hi=hi,
+                                          lo_open=True))
+                item = item.get("file")
+                if not isinstance(item, str) or not item.strip():
+                    self.err(f"{k}.file", "missing: name the calendar file (.ics)")
+                    continue
+            else:
+                limits.append(None)
+            names.append(item)
+        if len(names) < len(limits):
+            return None, None
+        files = self.calendars({"allowed": names}, "allowed", key)
+        return files, (tuple(limits) if files is not None else None)
 
     def energy(self, e: dict) -> EnergySettings:
         lo, hi = EXPONENT_RANGE
@@ -339,6 +224,8 @@ class SiteValidator(ValueReader):
         quiet = SiteValidator(self.path)
         d = quiet.schedule(sched_t, {}, "schedule")
         base = {k: getattr(d, k) for k in _SCHEDULE if k in sched_t}
+        if "allowed" in sched_t:
+            base["allowed_limits"] = d.allowed_limits
         units, unit_ids, sensors = [], set(), {}
         for i, u in enumerate(raw, 1):
             uid = u.get("id") if isinstance(u.get("id"), str) and u.get("id").strip() else None
@@ -395,16 +282,40 @@ class SiteValidator(ValueReader):
                                 lo_open=True)
             thr = self.number(c, "threshold", f"{k}.threshold", lo=0.0, lo_open=True,
                               hi=MAX_THRESHOLD)
+            speeds = self.speed_list(c, f"{k}.speeds")
+            rpm = self.number(c, "design_rpm", f"{k}.design_rpm", lo=0.0, lo_open=True,
+                              hi=MAX_RPM)
             out.append(Component(id=cid or "", unit=uid, role=role or "other",
                                  sensor=sensor or "", power_kw=power or 0.0,
-                                 speed=speed or 0.0, threshold=thr))
+                                 speed=speed or 0.0, threshold=thr, speeds=speeds,
+                                 design_rpm=rpm))
         return tuple(out)
+
+    def speed_list(self, c: dict, key: str) -> tuple[float, ...]:
+        """``speeds``: fractions of design speed, 0 < s <= 1.2, strictly ascending."""
+        if "speeds" not in c:
+            return ()
+        x = c["speeds"]
+        lo, hi = SPEED_RANGE
+        ok = (isinstance(x, list) and x and all(isinstance(v, (int, float))
+                                                 and not isinstance(v, bool) for v in x))
+        if not ok:
+            self.err(key, f"must be a list of speeds such as [0.45, 1.0], not {x!r}")
+            return ()
+        if any(not (lo < v <= hi) for v in x):
+            self.err(key, f"{x!r} is out of range: every speed must be > {lo:g} and <= {hi:g}")
+            return ()
+        if any(b <= a for a, b in zip(x, x[1:], strict=False)):
+            self.err(key, f"{x!r} must be ascending (lowest speed first), each speed once")
+            return ()
+        return tuple(float(v) for v in x)
 
     def derived(self, data: dict, name: str, cls):
         """A table whose keys and types come from the fields of dataclass ``cls``."""
         hints = typing.get_type_hints(cls)
         fields = [f.name for f in dataclasses.fields(cls)]
         lows = {f.name: f.metadata.get("min", 0) for f in dataclasses.fields(cls)}
+        highs = {f.name: f.metadata.get("max") for f in dataclasses.fields(cls)}
         t = self.table(data, name, name, fields)
         values = {}
         for f in fields:
@@ -419,7 +330,7 @@ class SiteValidator(ValueReader):
             elif kind is int:
                 val = self.number(t, f, key, lo=int(lows[f]), integer=True)
             elif kind is float:
-                val = self.number(t, f, key, lo=float(lows[f]))
+                val = self.number(t, f, key, lo=float(lows[f]), hi=highs[f])
             elif kind is str:
                 val = self.string(t, f, key)
             else:  # pragma: no cover - a field type the validator does not know yet

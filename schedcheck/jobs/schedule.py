@@ -75,7 +75,8 @@ def unit_schedules(site: Site, first: dt.date, last: dt.date,
         result[u.id] = expand_unit_schedule(
             cals(s.occupied), cals(s.allowed), site.timezone, first, last,
             early_start=s.early_start, late_stop=s.late_stop, holidays=site.holidays,
-            unit=u.id, site_path=site.path,
+            unit=u.id, site_path=site.path, allowed_limits=s.allowed_limits,
+            standby_speed=s.standby_speed,
         )
     return result
 

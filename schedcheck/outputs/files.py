@@ -19,6 +19,7 @@ import pandas as pd
 from schedcheck import __version__ as _version
 from schedcheck.audit.accounting import FIGURES
 from schedcheck.audit.run import AuditResult
+from schedcheck.audit.speed_limits import hours_by_speed
 from schedcheck.intervals import NS_PER_H, NS_PER_S, from_ns, to_ns
 from schedcheck.outputs.findings_files import (  # noqa: F401 - re-exported
     FINDINGS_COLUMNS,
@@ -42,12 +43,15 @@ from schedcheck.outputs.values import (  # noqa: F401 - re-exported
 from schedcheck.outputs.wording import separation_figure
 from schedcheck.runstate.lookback import learns_from_all
 from schedcheck.runstate.onofflevel import SEPARATION_CAP
+from schedcheck.runstate.speeds import SPEED_STEP, SpeedPieces
 from schedcheck.runstate.states import STATES, StateSets
+from schedcheck.window import local_midnight
 
 DAILY_COLUMNS = ("component", "date", "weekday", "day_off", "period_h", "scheduled_h",
                  "running_h", "in_schedule_h", "in_allowance_h", "off_schedule_h", "missed_h",
-                 "off_h", "no_data_h", "first_start", "last_stop", "starts", "off_schedule_kwh")
-RUNS_COLUMNS = ("component", "state", "start", "end", "hours", "level")
+                 "off_h", "no_data_h", "first_start", "last_stop", "starts", "off_schedule_kwh",
+                 "mean_speed")
+RUNS_COLUMNS = ("component", "state", "start", "end", "hours", "level", "speed", "speed_source")
 SCHEDULE_COLUMNS = ("unit", "kind", "start", "end", "source")
 
 # -- summary.json ---------------------------------------------------------------------------
@@ -87,8 +91,13 @@ def _component_summary(comp, result: AuditResult) -> dict:
         "exponent": result.site.energy.exponent, "is_state_component":
             comp.unit.state_component is not None and comp.unit.state_component.key == c.key,
         "missed_counted": acc.counts_missed,
-        "hours": {k: _r(acc.ns[k] / NS_PER_H, HOURS_DECIMALS) for k in FIGURES},
+        "hours": _hours(comp),
         "seconds": {k: _r(acc.ns[k] / NS_PER_S, 3) for k in FIGURES},
+        "speed_source": comp.speeds.main_source,
+        "speed_levels": [{"level": _r(lv.level, 4), "speed": _r(lv.speed, 3),
+                          "low": _r(lv.low, 3), "high": _r(lv.high, 3), "source": lv.source}
+                         for lv in comp.speeds.levels],
+        "speed_exponent": comp.speeds.exponent,
         "starts": acc.starts,
         "threshold": _threshold(comp),
         "energy": {
@@ -164,9 +173,16 @@ def _unit_summary(unit, result: AuditResult) -> dict:
     out = {"id": unit.id, "name": unit.name, "state_component": sc.key if sc else None,
            "off_schedule_unit_hours": _r(result.unit_hours.get(unit.id, 0.0), HOURS_DECIMALS)}
     if sc is not None:
-        acc = result.component(sc.key).account
-        out["hours"] = {k: _r(acc.ns[k] / NS_PER_H, HOURS_DECIMALS) for k in FIGURES}
+        out["hours"] = _hours(result.component(sc.key))
     return out
+
+
+def _hours(comp) -> dict:
+    """Hour figures of one component, with its running hours by speed (rounded to 0.05)."""
+    acc = comp.account
+    return {**{k: _r(acc.ns[k] / NS_PER_H, HOURS_DECIMALS) for k in FIGURES},
+            "by_speed": [{"speed": _r(v, 2), "hours": _r(h, HOURS_DECIMALS)}
+                         for v, h in hours_by_speed(comp.speeds, SPEED_STEP)]}
 
 
 def summary_dict(result: AuditResult, provenance: dict | None = None) -> dict:
@@ -237,6 +253,13 @@ def daily_frame(result: AuditResult) -> pd.DataFrame:
         f["last_stop"] = [local_iso(x, tz) for x in d["last_stop"]]
         f["starts"] = d["starts"].astype(int)
         f["off_schedule_kwh"] = d["off_schedule_kwh"].astype(float).round(ENERGY_DECIMALS)
+        edges = np.append(to_ns(d["date"].map(lambda x: local_midnight(x, tz))),
+                          to_ns(result.end))
+        run_ns = d["running_ns"].to_numpy(dtype=float)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            mean = comp.speeds.speed_ns_per_bin(np.clip(edges, to_ns(result.start),
+                                                         to_ns(result.end))) / run_ns
+        f["mean_speed"] = np.where(run_ns > 0, np.round(mean, 3), np.nan)
         parts.append(f)
     if not parts:
         return pd.DataFrame(columns=list(DAILY_COLUMNS))
@@ -252,7 +275,7 @@ def runs_frame(result: AuditResult) -> pd.DataFrame:
     tz = result.site.timezone
     parts = []
     for comp in result.components:
-        f = _state_frame(comp.account.states)
+        f = _state_frame(comp.account.states, comp.speeds)
         level = comp.states.level_at(to_ns(f["start"])) if len(f) else np.zeros(0)
         parts.append(pd.DataFrame({
             "component": comp.key, "state": f["state"].to_numpy(),
@@ -261,23 +284,33 @@ def runs_frame(result: AuditResult) -> pd.DataFrame:
             "hours": ((f["end"] - f["start"]) / pd.Timedelta("1h")).round(HOURS_DECIMALS)
             .to_numpy(),
             "level": np.round(level, 4),
+            "speed": np.round(f["speed"].to_numpy(dtype=float), 3),
+            "speed_source": f["speed_source"].to_numpy(),
         }))
     if not parts:
         return pd.DataFrame(columns=list(RUNS_COLUMNS))
     return pd.concat(parts, ignore_index=True)[list(RUNS_COLUMNS)]
 
 
-def _state_frame(states: StateSets) -> pd.DataFrame:
-    """A run-state table (``start``, ``end``, ``state``; UTC) from the three sets, by start."""
+def _state_frame(states: StateSets, speeds: SpeedPieces | None = None) -> pd.DataFrame:
+    """A run-state table (``start``, ``end``, ``state``, ``speed``, ``speed_source``; UTC) from
+    the three sets, by start; run intervals split where the speed changes (``speeds``)."""
     parts = []
     for name in STATES:
         s = states.of(name)
-        if len(s):
+        if name == "run" and speeds is not None and len(s):
+            parts.append(pd.DataFrame({"start": from_ns(speeds.starts),
+                                       "end": from_ns(speeds.ends), "state": name,
+                                       "speed": speeds.speed, "speed_source": speeds.source}))
+        elif len(s):
             f = s.to_frame()
             f["state"] = name
+            f["speed"] = np.nan
+            f["speed_source"] = ""
             parts.append(f)
     if not parts:
-        return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "state": []})
+        return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "state": [],
+                             "speed": [], "speed_source": []})
     out = pd.concat(parts, ignore_index=True).sort_values("start", kind="stable")
     return out.reset_index(drop=True)
 

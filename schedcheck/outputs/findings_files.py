@@ -31,7 +31,8 @@ KIND_WORDS = {
     "holiday": "holiday running", "unscheduled_day": "running on a working day off the calendar",
     "continuous": "continuous running", "clock_offset": "clock offset",
     "early_start": "early starts", "late_stop": "late stops", "missed": "missed operation",
-    "short_cycling": "short cycling",
+    "short_cycling": "short cycling", "setback": "set back instead of stopped",
+    "over_speed": "above the allowed speed",
 }
 
 

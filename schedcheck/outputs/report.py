@@ -28,6 +28,14 @@ from schedcheck.outputs.evidence_report import (
     strip_settings,
 )
 from schedcheck.outputs.histogram import histogram_svg
+from schedcheck.outputs.report_tables import (  # noqa: F401 - the report's smaller tables
+    _days_off_rows,
+    _dst_days,
+    _intended,
+    _local,
+    _sensors,
+    _when,
+)
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
 from schedcheck.outputs.wording import monitored_words, separation_text
 from schedcheck.runstate.onofflevel import SEPARATION_CAP
@@ -48,6 +56,8 @@ KIND_LABELS = {
     "late_stop": "Repeated late stop",
     "missed": "Off during occupied hours",
     "short_cycling": "Many starts per day",
+    "setback": "Set back to low speed instead of stopped",
+    "over_speed": "Ran above the allowed speed",
 }
 
 # What to ask the controls contractor, per finding kind (plain wording of our own).
@@ -67,6 +77,11 @@ KIND_ASKS = {
     "missed": "Find out why {what} was off in occupied hours (trip, fault, schedule error): "
               "occupants may have had too little outdoor air.",
     "short_cycling": "Check the control loop and minimum run and off times of {what}.",
+    "setback": "Check whether {what} may stop instead of running at low speed outside the "
+               "occupied period; keep any standby ventilation a code requires (then state it "
+               "as standby_speed).",
+    "over_speed": "Check the speed limit of the allowed or standby running of {what} in the "
+                  "drive or the time program.",
 }
 
 HOUR_KEYS = ("period", "scheduled", "running", "in_schedule", "in_allowance", "off_schedule",
@@ -96,12 +111,6 @@ def _fmt(value, digits: int = 1) -> str:
 
 _ENV.filters["num"] = _fmt
 _ENV.filters["separation"] = lambda x: separation_text(x, SEPARATION_CAP)
-
-
-def _local(ts: pd.Timestamp, tz: str, fmt: str = "%a %d %b %Y %H:%M") -> str:
-    if ts is None or pd.isna(ts):
-        return "–"
-    return ts.tz_convert(tz).strftime(fmt)
 
 
 def _span(start: pd.Timestamp, end: pd.Timestamp, tz: str) -> tuple[str, str]:
@@ -140,8 +149,28 @@ def _component_rows(data: SavedAudit) -> list[dict]:
             "power_kw": c.get("power_kw"), "speed": c.get("speed"),
             "exponent": c.get("exponent"), "threshold": threshold,
             "n_findings": c.get("findings"),
+            "by_speed": _by_speed_text(c),
         })
     return rows
+
+
+def _by_speed_text(c: dict) -> str:
+    """Running hours by speed in words, with an estimate's range: ``30 %: 120.0 h
+    (estimated, 11-43 %); 85 %: 120.0 h``; empty with one speed or none."""
+    rows = (c.get("hours") or {}).get("by_speed") or []
+    if len(rows) < 2:
+        return ""
+    est = {round(lv["speed"], 2): lv for lv in c.get("speed_levels") or []
+           if lv.get("source") == "estimated"}
+    parts = []
+    for r in rows:
+        text = f"{r['speed']:.0%}: {r['hours']:,.1f} h"
+        lv = est.get(round(r["speed"], 2)) or next(
+            (v for k, v in est.items() if abs(k - r["speed"]) <= 0.025), None)
+        if lv is not None:
+            text += f" (estimated from the vibration level, {lv['low']:.0%}-{lv['high']:.0%})"
+        parts.append(text)
+    return "; ".join(parts)
 
 
 def _charts(data: SavedAudit, comp: dict, days_off: pd.DataFrame) -> None:
@@ -328,73 +357,6 @@ def _sensitivity(comps: list[dict]) -> dict:
         hidden += (c["hours"].get("no_data") or 0.0) * (c["energy"].get("running_kw") or 0.0)
     return {"kwh_speed_low": low, "kwh_speed_high": high, "kwh_no_data_max": hidden,
             "speed_step": SPEED_STEP}
-
-
-def _intended(schedule: pd.DataFrame, units: list[dict]) -> list[dict]:
-    """Per unit: hours of each kind of intended interval and what they came from."""
-    out = []
-    sched = schedule.assign(hours=(schedule["end"] - schedule["start"]).dt.total_seconds() / 3600)
-    for u in units:
-        rows = sched[sched["unit"] == u["id"]]
-        entry = {"id": u["id"], "name": u["name"]}
-        for kind in ("occupied", "allowance", "allowed"):
-            part = rows[rows["kind"] == kind]
-            entry[f"{kind}_h"] = float(part["hours"].sum())
-            src = part["source"] if "source" in part else pd.Series(dtype=object)
-            counts = src.fillna("").astype(str).value_counts()
-            entry[f"{kind}_sources"] = [(name, int(n)) for name, n in counts.items() if name][:8]
-        out.append(entry)
-    return out
-
-
-def _days_off_rows(days_off: pd.DataFrame, unit_ids: list[str]) -> list[dict]:
-    """One row per day off (date, name, kind) with the units it applies to ("all" if every)."""
-    rows = []
-    if len(days_off) == 0:
-        return rows
-    for (date, name, kind), g in days_off.groupby(["date", "name", "kind"], sort=True):
-        units = sorted({str(u) for u in g["unit"] if u})
-        every = not units or set(units) >= set(unit_ids)
-        rows.append({"date": date.strftime("%a %d %b %Y"), "name": name, "kind": kind,
-                     "units": "all" if every else ", ".join(units)})
-    return rows
-
-
-def _when(text: str | None) -> str:
-    """The audit's creation instant as ``01 Dec 2026 22:02 UTC`` (as written if unreadable)."""
-    try:
-        ts = pd.Timestamp(text)
-    except (TypeError, ValueError):
-        return str(text or "")
-    if ts is pd.NaT or ts.tzinfo is None:
-        return str(text or "")
-    return ts.tz_convert("UTC").strftime("%d %b %Y %H:%M UTC")
-
-
-def _sensors(rows: list[dict], tz: str) -> list[dict]:
-    """Sensor health rows with every field present and first/last reading in local time."""
-    out = []
-    for r in rows:
-        r = {k: None for k in SENSOR_KEYS} | r
-        for key in ("first", "last"):
-            try:
-                ts = pd.Timestamp(r[key])
-                r[f"{key}_local"] = _local(ts, tz) if ts.tzinfo is not None else str(r[key])
-            except (TypeError, ValueError):
-                r[f"{key}_local"] = "–" if r[key] in (None, "") else str(r[key])
-        out.append(r)
-    return out
-
-
-def _dst_days(tz: str, first: dt.date, last: dt.date) -> list[str]:
-    """Local dates in the window whose length is not 24 h (clock changes)."""
-    days = pd.date_range(pd.Timestamp(first), pd.Timestamp(last + dt.timedelta(days=2)),
-                         freq="D").as_unit("ns")
-    days = days.tz_localize(tz, nonexistent="shift_forward", ambiguous=True)
-    lengths = np.diff(days.asi8) / 3.6e12
-    return [f"{d.strftime('%a %d %b %Y')} ({h:g} h)" for d, h in zip(days[:-1], lengths,
-                                                                      strict=True)
-            if abs(h - 24) > 1e-9 and d.date() <= last]
 
 
 def render_report(data: SavedAudit) -> str:

@@ -39,7 +39,7 @@ _CSV_SPECS: dict[str, tuple[tuple[str, ...], tuple[str, ...], tuple[str, ...], b
     "runs.csv": (
         ("component", "state", "start", "end"),
         ("start", "end"),
-        ("hours", "level"),
+        ("hours", "level", "speed"),
         False,
     ),
     "findings.csv": (
@@ -231,6 +231,14 @@ def _check_hours(components: list, path: Path) -> None:
         if not isinstance(comp.get("hours", {}), dict):
             raise InputError("must be an object", path=path, key=f"components[{i}].hours")
         for hkey, value in comp.get("hours", {}).items():
+            if hkey == "by_speed":   # a list of {"speed": ..., "hours": ...}
+                ok = isinstance(value, list) and all(
+                    isinstance(r, dict) and _is_number(r.get("speed"))
+                    and _is_number(r.get("hours")) for r in value)
+                if not ok:
+                    raise InputError("must be a list of {speed, hours} numbers", path=path,
+                                     key=f"components[{i}].hours.by_speed")
+                continue
             if not _is_number(value):
                 raise InputError(f"{value!r} is not a number", path=path,
                                  key=f"components[{i}].hours.{hkey}")

@@ -29,7 +29,8 @@ def component_record(cs: ComponentStates) -> dict:
     ``starts_per_day`` (per 24 h of known time), ``known_hours``, ``no_data_hours`` [h],
     ``confidence`` (``high`` / ``medium`` / ``low``), ``near_share`` (share of readings near
     the level), ``concerns`` (why the confidence is not high, in words), ``reason`` and
-    ``warnings``.
+    ``warnings``; ``speed_levels``: the running level groups with their speeds (``level``
+    [reading unit], ``speed``, ``low``, ``high`` [-], ``source``) and ``speed_source``.
     """
     th = cs.threshold
     hours = hours_by_state(cs.intervals)
@@ -52,6 +53,10 @@ def component_record(cs: ComponentStates) -> dict:
         "concerns": list(th.concerns),
         "reason": th.reason,
         "warnings": list(th.warnings) + list(cs.warnings),
+        "speed_levels": [{"level": _num(lv.level, 6), "speed": _num(lv.speed, 3),
+                          "low": _num(lv.low, 3), "high": _num(lv.high, 3), "source": lv.source}
+                         for lv in cs.speed_pieces.levels],
+        "speed_source": cs.speed_pieces.main_source,
     }
 
 

@@ -25,6 +25,9 @@ from markupsafe import escape
 # The palette (our own choice; contrast checked by eye in colour and grey-scale print).
 INK_RUN = "#1d3557"        # running: dark navy
 TINT_OFF = "#e6ebf1"       # off: pale blue-grey
+INK_LOW = "#6f88ab"        # running at reduced speed: mid blue-grey (a mid grey in print)
+LOW_SHARE = 0.75           # reduced speed: at most this share of the top speed (as the
+#                            setback finding; common practice, no source)
 HATCH_NODATA = "#8d939c"   # no data: grey hatch on white
 LINE_OCCUPIED = "#e59400"  # occupied period outline: amber ...
 LINE_UNDER = "#4a2f00"     # ... over a dark brown underlay
@@ -233,12 +236,22 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
     fills = {"off": TINT_OFF, "run": INK_RUN, "no_data": f"url(#{pid}-nd)"}
     if len(runs):
         rows, day, y0, y1 = day_pieces(runs["start"], runs["end"], tz, first, ndays)
-        states = runs["state"].to_numpy()[rows]
-        for state in ("off", "no_data", "run"):
+        states = runs["state"].to_numpy()[rows].astype(object)
+        if "speed" in runs.columns:   # running at reduced speed is shaded lighter
+            sp = pd.to_numeric(runs["speed"], errors="coerce").to_numpy(dtype=float)
+            top = np.nanmax(sp) if np.isfinite(sp).any() else np.nan
+            low = (sp <= LOW_SHARE * top)[rows] & (states == "run")
+            states[low] = "run_low"
+        fills["run_low"] = INK_LOW
+        for state in ("off", "no_data", "run", "run_low"):
             m = states == state
             if m.any():
                 d = rect_path(LEFT + day[m] * cw, TOP + y0[m] * k, cw, (y1[m] - y0[m]) * k)
                 out.append(f'<path class="st-{state}" fill="{fills[state]}" d="{d}"/>')
+        if (states == "run_low").any():
+            out.append(f'<rect x="{LEFT + 300}" y="3" width="10" height="10" fill="{INK_LOW}"/>'
+                       f'<text x="{LEFT + 314}" y="12" font-size="10" fill="{TEXT}">running '
+                       f'at reduced speed (at most {LOW_SHARE:.0%} of top speed)</text>')
     for h in (6, 12, 18):
         y = TOP + h * HOUR_PX
         out.append(f'<path d="M{LEFT} {y}h{ndays * cw:.1f}" stroke="#fff" stroke-opacity=".55" '

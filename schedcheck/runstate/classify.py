@@ -66,6 +66,11 @@ from schedcheck.runstate.onofflevel import (  # noqa: F401 - re-exported: the cl
     choose_threshold,
     default_floor,
 )
+from schedcheck.runstate.siblings import decided as _decided
+from schedcheck.runstate.siblings import moving as _moving
+from schedcheck.runstate.siblings import own as _own
+from schedcheck.runstate.siblings import sibling_moving as _sibling_moving
+from schedcheck.runstate.speeds import SpeedPieces, assign_speeds, rotation_values
 from schedcheck.runstate.states import NO_DATA, NO_DATA_WARN, OFF, RUN, STATES, StateSets
 from schedcheck.runstate.switching import hysteresis_states, min_dwell  # noqa: F401 - re-exported
 from schedcheck.site import Component, RunStateSettings, Unit
@@ -100,6 +105,17 @@ class ComponentStates:
     starts: int
     run_share: float
     warnings: tuple[str, ...] = ()
+    speeds: SpeedPieces | None = None   # run time by speed (runstate/speeds.py); None = `speed`
+
+    @cached_property
+    def speed_pieces(self) -> SpeedPieces:
+        """The run time cut into pieces of one speed each (:mod:`schedcheck.runstate.speeds`)."""
+        return (self.speeds if self.speeds is not None
+                else SpeedPieces.constant(self.sets.run, self.component.speed))
+
+    def speed_at(self, instants: np.ndarray) -> np.ndarray:
+        """The speed [-] at each of the int64 ns ``instants``; NaN where not running."""
+        return self.speed_pieces.speed_at(instants)
 
     @cached_property
     def intervals(self) -> pd.DataFrame:
@@ -146,6 +162,7 @@ class _Levels:
     level: np.ndarray
     crest: np.ndarray
     log_level: np.ndarray
+    rotation: np.ndarray | None = None   # rotation_hz per reading [Hz], NaN where absent
 
 
 # -- states ----------------------------------------------------------------------------------
@@ -251,33 +268,7 @@ def _prepared(frame: pd.DataFrame | None, name: str, floor: float) -> _Levels:
     t, lv, pk = reading_levels(frame, name=name)
     ok = np.isfinite(lv)
     t, lv, pk = t[ok], lv[ok], pk[ok]
-    return _Levels(t, lv, pk, log_levels(lv, floor))
-
-
-def _moving(t: np.ndarray, L: np.ndarray, g: th.LevelGroups, floor: float) -> np.ndarray:
-    b = g.boundaries[0] if g.count >= 2 else np.log10(floor)
-    return L > b
-
-
-def _sibling_moving(t: np.ndarray, others: list[tuple[np.ndarray, np.ndarray]],
-                    max_gap: int) -> np.ndarray | None:
-    """Per reading time: 1 if any other component moved (nearest reading within max_gap)."""
-    if not others or t.size == 0:
-        return None
-    out = np.full(t.size, np.nan)
-    for ts, mv in others:
-        if ts.size == 0:
-            continue
-        j = np.clip(np.searchsorted(ts, t), 1, max(ts.size - 1, 1)) if ts.size > 1 else None
-        if j is None:
-            near, dist = np.zeros(t.size, int), np.abs(ts[0] - t)
-        else:
-            left = np.abs(t - ts[j - 1]) <= np.abs(ts[j] - t)
-            near = np.where(left, j - 1, j)
-            dist = np.abs(ts[near] - t)
-        val = np.where(dist <= max_gap, mv[near].astype(float), np.nan)
-        out = np.where(np.isnan(out), val, np.where(np.isnan(val), out, np.maximum(out, val)))
-    return out
+    return _Levels(t, lv, pk, log_levels(lv, floor), rotation_values(frame, t))
 
 
 def classify_component(
@@ -371,8 +362,12 @@ def _finish(
     starts, share = run_summary(bs, be, names)
     sets = StateSets(*(Intervals.from_arrays(bs[names == st], be[names == st]) for st in STATES))
     warn = list(warnings) + data_warnings(component.sensor, bs, be, names, s0, e0)
+    rot = levels.rotation if levels.rotation is not None else np.full(t.size, np.nan)
+    sp = assign_speeds(component, sets.run, t[sel], levels.level[sel], rot[sel],
+                       exponent=settings.speed_exponent)
+    warn += [f"speeds: {w}" for w in sp.warnings]
     return ComponentStates(component, sets, bs, be, names, level, threshold, starts, share,
-                           tuple(warn))
+                           tuple(warn), sp)
 
 
 def classify_unit(
@@ -416,18 +411,25 @@ def classify_unit(
         gaps[c.key] = sensor.timing(t, pd.Timedelta(max_gap), c.sensor)
         groups[c.key] = th.level_groups(Lg) if Lg.size else None
         moving[c.key] = (t, _moving(t, Lg, groups[c.key], floor) if Lg.size else Lg.astype(bool))
+    # carried vibration is judged from a sibling's own decided state, never from a level this
+    # component may have caused: fans (the sources of vibration) first, against their siblings'
+    # top group only (a sibling's middle group may be this fan's echo); then the other
+    # components against the fans' decided states
     out: dict[str, ComponentStates] = {}
-    for c in unit.components:
+    order = sorted(unit.components, key=lambda c: not c.is_fan)
+    for c in order:
         levels, Lg = prep[c.key]
         t = levels.t
         floor, step = facts[c.key]
         gap, tw = gaps[c.key]
-        others = [moving[o.key] for o in unit.components
-                  if o.key != c.key and o.sensor != c.sensor]
+        others = [(moving[o.key] if o.key not in out else _decided(out[o.key], prep[o.key]))
+                  if not c.is_fan else _own(moving[o.key], prep[o.key][1], groups[o.key])
+                  for o in unit.components if o.key != c.key and o.sensor != c.sensor]
         mg = max([int(gaps[o.key][0].value) for o in unit.components])
         sib = _sibling_moving(t, others, mg)
         thr = choose_threshold(Lg, configured=c.threshold, floor=floor, sibling_moving=sib,
                                groups=groups[c.key], **_learning_settings(settings, step, t))
         out[c.key] = _finish(c, levels, thr, start=start, end=end, max_gap=gap,
                              settings=settings, warnings=fw + tw)
-    return out
+    return {c.key: out[c.key] for c in unit.components}
+

@@ -42,6 +42,7 @@ from schedcheck.runstate.classify import (
     data_warnings,
     run_summary,
 )
+from schedcheck.runstate.speeds import SpeedPieces
 from schedcheck.runstate.states import STATES, StateSets
 from schedcheck.site import RunStateSettings
 
@@ -110,7 +111,19 @@ def window_states(cs: ComponentStates, start: pd.Timestamp, end: pd.Timestamp) -
     warn += data_warnings(cs.component.sensor, bs, be, names, s0, e0)
     return dataclasses.replace(cs, sets=sets, piece_starts=bs, piece_ends=be,
                                piece_states=names, piece_levels=levels, starts=starts,
-                               run_share=share, warnings=tuple(warn))
+                               run_share=share, warnings=tuple(warn),
+                               speeds=_window_speeds(cs.speeds, s0, e0))
+
+
+def _window_speeds(sp: SpeedPieces | None, s0: int, e0: int) -> SpeedPieces | None:
+    """Speed pieces cut to the window ``[s0, e0)`` [int64 ns UTC]."""
+    if sp is None:
+        return None
+    a, b = np.clip(sp.starts, s0, e0), np.clip(sp.ends, s0, e0)
+    keep = b > a
+    return dataclasses.replace(sp, starts=a[keep].astype(np.int64),
+                               ends=b[keep].astype(np.int64), speed=sp.speed[keep],
+                               low=sp.low[keep], high=sp.high[keep], source=sp.source[keep])
 
 
 def classify_with_lookback(

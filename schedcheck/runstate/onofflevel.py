@@ -303,11 +303,13 @@ def _three_groups(ev: _Evidence) -> _Choice:
         as_off.reason += (f"; the middle group appears only while another component of the unit "
                           f"runs ({p_mid:.0%} of its readings): carried vibration, counted as off")
         return as_off
-    if med[1] <= F:
-        as_off.reason += f"; the middle group lies below the floor level {floor:g}: counted as off"
-        return as_off
     idle = lowgroups.idle_reason(10**med[1], 10**med[2], 0.0, ev.idle_ratio,
                                  noise=10**med[0])
+    if med[1] <= F and idle:
+        # off is the group at the noise floor only: a middle group below the default floor but
+        # above the idle ratio of the learned stopped group is a slow running level
+        as_off.reason += f"; the middle group lies below the floor level {floor:g}: counted as off"
+        return as_off
     if idle:
         as_off.reason += f"; {idle.replace('the low group', 'the middle group')}, counted as off"
         return as_off

@@ -48,6 +48,7 @@ INTERVAL_COLUMNS = ["start", "end", "kind", "source"]
 # a window of a week or more with no occupied period at all is worth a word (common practice,
 # no source: a building in use is occupied some time every week)
 EMPTY_WARN_DAYS = 7
+LIMIT_COLUMNS = ("start", "end", "max_speed")
 
 CalendarList = Sequence[tuple[str | Path, icalendar.Calendar]]
 
@@ -81,6 +82,10 @@ class UnitSchedule:
     first: dt.date | None = None
     last: dt.date | None = None
     timezone: str = "UTC"
+    # allowed windows with a max_speed: start, end [UTC], max_speed [-]; may overlap (the
+    # higher limit holds); already without occupied, allowance and unlimited allowed time
+    limits: pd.DataFrame = field(default_factory=lambda: pd.DataFrame(columns=LIMIT_COLUMNS))
+    standby_speed: float | None = None   # outside occupied and allowances: allowed up to this
 
     def of_kind(self, kind: str) -> Intervals:
         """The instants of one kind as an :class:`Intervals`."""
@@ -197,6 +202,8 @@ def expand_unit_schedule(
     days_off: pd.DataFrame | None = None,
     unit: str = "",
     site_path: str | Path | None = None,
+    allowed_limits: Sequence[float | None] = (),
+    standby_speed: float | None = None,
 ) -> UnitSchedule:
     """Intended intervals of one unit on local dates ``first..last`` (inclusive).
 
@@ -219,6 +226,10 @@ def expand_unit_schedule(
         The unit's id, carried into the result.
     site_path : str or Path, optional
         The site file, for messages about holiday settings.
+    allowed_limits : sequence of float or None
+        Per ``allowed`` calendar, its ``max_speed`` [-] (None or missing: any speed).
+    standby_speed : float, optional
+        Outside occupied periods and allowances, running at or below it is allowed [-].
 
     Returns
     -------
@@ -269,8 +280,33 @@ def expand_unit_schedule(
         window_off = padded_off[in_window].reset_index(drop=True)
     else:
         window_off = pd.DataFrame(columns=DAYS_OFF_COLUMNS)
+    limits = _limits(allowed, allowed_limits, tz, p_first, p_last, max_days,
+                     occ | allowance, w0, w1)
     return UnitSchedule(unit=unit, intervals=intervals, days_off=window_off,
-                        warnings=warnings, first=first, last=last, timezone=tz)
+                        warnings=warnings, first=first, last=last, timezone=tz,
+                        limits=limits, standby_speed=standby_speed)
+
+
+def _limits(allowed: CalendarList, limits: Sequence[float | None], tz, first, last, max_days,
+            taken: Intervals, w0, w1) -> pd.DataFrame:
+    """The allowed windows of calendars with a ``max_speed``, without ``taken`` time and
+    without any calendar's windows that allow every speed."""
+    lim = [(cal, limits[i] if i < len(limits) else None) for i, cal in enumerate(allowed)]
+    if all(v is None for _, v in lim):
+        return pd.DataFrame(columns=LIMIT_COLUMNS)
+    free = union_all(Intervals.from_frame(_expand_all([c], tz, first, last, max_days)[0])
+                     for c, v in lim if v is None)
+    rows = []
+    for c, v in lim:
+        if v is None:
+            continue
+        iv = (Intervals.from_frame(_expand_all([c], tz, first, last, max_days)[0]) - taken
+              - free).clip(w0, w1)
+        f = iv.to_frame()
+        f["max_speed"] = float(v)
+        rows.append(f)
+    out = pd.concat(rows, ignore_index=True)
+    return out.sort_values("start", kind="stable").reset_index(drop=True)[list(LIMIT_COLUMNS)]
 
 
 def _clip_pieces(pieces: pd.DataFrame, w0, w1) -> pd.DataFrame:
