@@ -27,6 +27,8 @@ import pandas as pd
 
 from schedcheck.audit.accounting import ComponentAccount, ScheduleSets, account
 from schedcheck.audit.energy import affinity_power, price
+from schedcheck.audit.outdoor_air import OutdoorTemperature, ThermalMinutes
+from schedcheck.audit.thermal import finding_thermal, price_outdoor_air, with_thermal
 from schedcheck.errors import TableError
 from schedcheck.findings.find import energy_words, find_in_sets
 from schedcheck.intervals import NS_PER_H, to_ns
@@ -59,6 +61,7 @@ class ComponentResult:
     energy: dict[str, float]          # running_kwh, running_cost, running_co2_kg, off_schedule_*
     daily: pd.DataFrame               # account.daily + off_schedule_kwh
     state_warnings: list[str] = field(default_factory=list)
+    thermal: ThermalMinutes | None = None   # outdoor-air energy by minute (its unit's supply fan)
 
     @property
     def key(self) -> str:
@@ -104,6 +107,7 @@ def run_audit(
     bad_rows: dict[str, object] | None = None,
     warnings: list[str] | None = None,
     find: Callable[[AuditResult], pd.DataFrame | None] | None = None,
+    weather: OutdoorTemperature | None = None,
 ) -> AuditResult:
     """Compare run states with the intended schedule for every component of a site.
 
@@ -129,6 +133,10 @@ def run_audit(
         optionally ``hours``, ``energy_hours``, ``kwh``, ``cost``, ``co2_kg``, ``detail``, ...);
         by default :func:`collect_findings`. The findings are then priced with the components
         in one step (:func:`price_findings`).
+    weather : OutdoorTemperature, optional
+        Outdoor temperature; with it, the supply fan of each unit with ``outdoor_air`` is
+        priced for heating and cooling its off-schedule outdoor air
+        (:func:`schedcheck.audit.thermal.price_outdoor_air`).
 
     Returns
     -------
@@ -195,6 +203,7 @@ def run_audit(
         health=dict(health or {}), bad_rows=bad_rows or {"count": 0, "examples": []},
         warnings=all_warnings,
     )
+    result.warnings += price_outdoor_air(result, weather)
     result.findings = price_findings((find or collect_findings)(result), result)
     return result
 
@@ -261,9 +270,11 @@ def price_findings(found: pd.DataFrame | None, result: AuditResult) -> pd.DataFr
     for col, computed in (("kwh", p.kwh), ("cost", p.cost), ("co2_kg", p.co2_kg)):
         given = f[col].astype(float) if col in f else pd.Series(np.nan, index=f.index)
         f[col] = given.fillna(pd.Series(np.atleast_1d(computed)))
-    f["detail"] = [str(d).replace("{energy}", energy_words(k, c, en.price, en.currency))
-                   for d, k, c in zip(f["detail"], f["kwh"].tolist(), f["cost"].tolist(),
-                                      strict=True)]
+    thermal = finding_thermal(f, result)
+    f["detail"] = [str(d).replace("{energy}", with_thermal(
+                       energy_words(k, c, en.price, en.currency), t))
+                   for d, k, c, t in zip(f["detail"], f["kwh"].tolist(), f["cost"].tolist(),
+                                         thermal, strict=True)]
     f = f.drop(columns=[c for c in ("energy_hours",) if c in f])
     f = f.sort_values(["start", "component", "kind"], kind="stable").reset_index(drop=True)
     extra = [c for c in f.columns if c not in FINDING_COLUMNS]

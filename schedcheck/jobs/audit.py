@@ -57,6 +57,13 @@ def audit_result(
     load_warnings = window_warnings(readings, start, end, site.timezone)
     say("expanding the intended schedule")
     schedules = unit_schedules(site, first, last)
+    weather = None
+    if site.weather is not None:
+        from schedcheck.inputs.weather_files import read_weather
+
+        say(f"reading the weather file {site.weather.file.name}")
+        weather = read_weather(site.weather, site.timezone,
+                               years=tuple(range(first.year, last.year + 1)))
     say("comparing and pricing")
     bad = {"count": int(readings.bad_rows_count),
            "examples": list(readings.bad_rows_examples)[:20]}
@@ -65,6 +72,7 @@ def audit_result(
         health=readings.health, bad_rows=bad,
         warnings=load_warnings + [str(w) for w in readings.warnings]
         + [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings],
+        weather=weather,
     )
     return result
 
