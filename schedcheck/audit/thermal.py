@@ -62,7 +62,7 @@ def price_outdoor_air(result, weather: OutdoorTemperature | None) -> list[str]:
         warnings.append(
             f"weather: {gap_h:.1f} h of the audit window are more than 3 h from any outdoor "
             f"temperature reading (the file runs {first:%Y-%m-%d %H:%M} .. {last:%Y-%m-%d %H:%M}"
-            "); off-schedule running there has no thermal estimate")
+            ", gaps inside it included); off-schedule running there has no thermal estimate")
     _, edges = day_edges(result.first_date, result.last_date, site.timezone)
     day_ns = to_ns(edges)
     keys = [c.key for c in result.components]

@@ -13,8 +13,10 @@ Program", section on the EPW data format): eight header lines, the first
 ``LOCATION,city,state,country,source,WMO,latitude,longitude,time zone,elevation`` with the time
 zone as hours from UTC; then one record per hour, ``year,month,day,hour,minute,flags,dry bulb
 [degC],...``. Hour 1..24 is the hour *ending* at that time, in local standard time (no daylight
-saving), so a record's instant is ``date + hour`` local standard time, ``- time zone`` in UTC
-(as pvlib.iotools.read_epw reads it; checked in tests/inputs/test_weather_files.py). A dry bulb
+saving). The dry bulb is the value at the end of that hour, so a record's instant is
+``date + hour`` local standard time, ``- time zone`` in UTC. (pvlib.iotools.read_epw reads the
+same dates, zone and values but labels each record at the start of its hour, one hour earlier;
+tests/inputs/test_weather_files.py checks both against each other.) A dry bulb
 of 99.9 is the format's missing-value code. A typical-year file (TMY, IWEC: months taken from
 different years) is laid on the audit's years with ``[weather] typical_year = true``.
 """

@@ -20,6 +20,7 @@ from markupsafe import Markup
 from schedcheck.errors import InputError
 from schedcheck.outputs import svg
 from schedcheck.outputs.histogram import histogram_svg
+from schedcheck.outputs.report_thermal import thermal_context
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
 
 FINDINGS_SHOWN = 300  # rows of the findings table on the page (common practice, no source)
@@ -241,6 +242,7 @@ def report_context(data: SavedAudit) -> dict:
                                if totals["period_h"] else 0.0)
     totals["per_year_cost"] = totals["off_schedule_cost"] * 365.0 / ndays if ndays else 0.0
     totals.update(_sensitivity(comps))
+    thermal = thermal_context(s, comps, units)
     return {
         "site": site, "currency": site.get("currency") or "", "price": site.get("price"),
         "co2_per_kwh": site.get("co2_per_kwh"), "reading_unit": site.get("reading_unit", ""),
@@ -257,6 +259,7 @@ def report_context(data: SavedAudit) -> dict:
         "dst_days": _dst_days(data.timezone, first, last),
         "intended": _intended(data.schedule, units),
         "uncertain": [c["id"] for c in comps if c["threshold"].get("confidence") == "low"],
+        "thermal": thermal,
     }
 
 
