@@ -29,7 +29,7 @@ OUTDOOR_AIR = {
 }
 # weather station silences, local wall times (invented): the first is bridged (under 3 h from a
 # reading), the second is not
-WEATHER_GAPS = (("2026-03-03T01:30", "2026-03-03T04:30"), ("2026-04-08T18:30", "2026-04-09T08:30"))
+WEATHER_GAPS = (("2026-03-03T01:30", "2026-03-03T04:30"), ("2026-04-28T18:30", "2026-04-29T08:30"))
 
 
 def weather_table(grid_ns: np.ndarray, temps: np.ndarray, tz: str) -> pd.DataFrame:

@@ -20,9 +20,16 @@ import pandas as pd
 from schedcheck import __version__ as _version
 from schedcheck.audit.accounting import FIGURES
 from schedcheck.audit.run import AuditResult
-from schedcheck.audit.thermal import THERMAL_ENERGY_KEYS
 from schedcheck.intervals import NS_PER_H, NS_PER_S, from_ns, to_ns
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
+from schedcheck.outputs.thermal_fields import (
+    DAILY_THERMAL,
+    FINDINGS_THERMAL,
+    energy_fields,
+    finding_fields,
+    prices_outdoor_air,
+    total_fields,
+)
 from schedcheck.runstate.states import STATES, StateSets
 
 HOURS_DECIMALS = 3      # 0.001 h = 3.6 s: finer than the one-minute readings
@@ -32,9 +39,6 @@ COST_DECIMALS = 2
 DAILY_COLUMNS = ("component", "date", "weekday", "day_off", "period_h", "scheduled_h",
                  "running_h", "in_schedule_h", "in_allowance_h", "off_schedule_h", "missed_h",
                  "off_h", "no_data_h", "first_start", "last_stop", "starts", "off_schedule_kwh")
-#: added to daily.csv and findings.csv (before ``detail``) when the site prices outdoor air
-DAILY_THERMAL = ("off_schedule_heating_kwh", "off_schedule_cooling_kwh")
-FINDINGS_THERMAL = ("heating_kwh", "cooling_kwh", "thermal_cost")
 RUNS_COLUMNS = ("component", "state", "start", "end", "hours", "level")
 FINDINGS_COLUMNS = ("component", "kind", "start", "end", "hours", "kwh", "cost", "co2_kg",
                     "detail")
@@ -135,22 +139,11 @@ def _component_summary(comp, result: AuditResult) -> dict:
             "off_schedule_kwh": _r(en["off_schedule_kwh"], ENERGY_DECIMALS),
             "off_schedule_cost": _r(en["off_schedule_cost"], COST_DECIMALS),
             "off_schedule_co2_kg": _r(en["off_schedule_co2_kg"], ENERGY_DECIMALS),
-            **_thermal_energy(en),
+            **energy_fields(en, ENERGY_DECIMALS, COST_DECIMALS, HOURS_DECIMALS),
         },
         "findings": n_find,
         "warnings": list(comp.state_warnings) + list(acc.warnings),
     }
-
-
-def _thermal_energy(en: dict) -> dict:
-    """The outdoor-air fields of a component's energy (only where it has outdoor air)."""
-    out = {}
-    for k in THERMAL_ENERGY_KEYS:
-        if k in en:
-            nd = COST_DECIMALS if k.endswith("_cost") else (
-                HOURS_DECIMALS if k.endswith("_weather") else ENERGY_DECIMALS)
-            out[k] = _r(en[k], nd)
-    return out
 
 
 def _sensor_rows(result: AuditResult) -> list[dict]:
@@ -205,10 +198,7 @@ def finding_records(result: AuditResult) -> list[dict]:
             "start": local_iso(row.start, tz), "end": local_iso(row.end, tz),
             "hours": _r(row.hours, HOURS_DECIMALS), "kwh": _r(row.kwh, ENERGY_DECIMALS),
             "cost": _r(row.cost, COST_DECIMALS), "co2_kg": _r(row.co2_kg, ENERGY_DECIMALS),
-            **{k: (None if pd.isna(v) else _r(v, COST_DECIMALS if k == "thermal_cost"
-                                               else ENERGY_DECIMALS))
-               for k in ("heating_kwh", "cooling_kwh", "thermal_cost")
-               for v in [getattr(row, k, float("nan"))]},
+            **finding_fields(row, ENERGY_DECIMALS, COST_DECIMALS),
             "detail": str(row.detail),
         })
     return out
@@ -236,10 +226,7 @@ def summary_dict(result: AuditResult) -> dict:
                                         for c in result.components), COST_DECIMALS)
     total["off_schedule_co2_kg"] = _r(sum(c.energy["off_schedule_co2_kg"]
                                           for c in result.components), ENERGY_DECIMALS)
-    for k in ("off_schedule_heating_kwh", "off_schedule_cooling_kwh",
-              "off_schedule_thermal_cost", "off_schedule_thermal_co2_kg"):
-        total[k] = _r(sum(c.energy.get(k, 0.0) for c in result.components),
-                      COST_DECIMALS if k.endswith("_cost") else ENERGY_DECIMALS)
+    total.update(total_fields(result.components, ENERGY_DECIMALS, COST_DECIMALS))
     total["findings"] = len(result.findings)
     return {
         "schema": SUMMARY_SCHEMA,
@@ -294,12 +281,8 @@ def daily_frame(result: AuditResult) -> pd.DataFrame:
         parts.append(f)
     if not parts:
         return pd.DataFrame(columns=list(DAILY_COLUMNS))
-    extra = list(DAILY_THERMAL) if _prices_outdoor_air(result) else []
+    extra = list(DAILY_THERMAL) if prices_outdoor_air(result) else []
     return pd.concat(parts, ignore_index=True)[list(DAILY_COLUMNS) + extra]
-
-
-def _prices_outdoor_air(result: AuditResult) -> bool:
-    return any(c.thermal is not None for c in result.components)
 
 
 def runs_frame(result: AuditResult) -> pd.DataFrame:
@@ -345,7 +328,7 @@ def findings_frame(result: AuditResult) -> pd.DataFrame:
     """The rows of ``findings.csv``."""
     recs = finding_records(result)
     cols = list(FINDINGS_COLUMNS)
-    if _prices_outdoor_air(result):
+    if prices_outdoor_air(result):
         cols[-1:-1] = FINDINGS_THERMAL
     return pd.DataFrame(recs, columns=cols)
 

@@ -58,6 +58,12 @@ def test_demo_site_prices_outdoor_air_beside_the_fans(demo_audit):
     thermal = sum(c.energy.get("off_schedule_thermal_cost", 0.0) for c in result.components)
     assert thermal > 0.2 * fans
     assert any("more than 3 h from any outdoor temperature" in w for w in result.warnings)
+    # the planted long silence falls inside AHU-4's continuous running: 21:00-06:00 has no
+    # estimate, of which 21:00-05:00 is off schedule (05:00 starts the 2 h early-start allowance)
+    assert result.component("AHU-4/supply").energy[
+        "off_schedule_hours_without_weather"] == pytest.approx(8.0, abs=0.05)
+    assert any(w.startswith("AHU-4/supply: 8.0 h of off-schedule running") for w in
+               result.warnings)
     report = (result.outdir / "report.html").read_text()
     assert "heating and cooling of outdoor air off schedule" in report
     assert "sensible heat only" in report and "not advice to stop it" in report
