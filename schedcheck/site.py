@@ -60,11 +60,27 @@ class Component:
 
 
 @dataclass(frozen=True)
+class OutdoorAir:
+    """A unit's outdoor air (``outdoor_air`` of a ``[[unit]]``), priced on its supply fan."""
+
+    flow: float                       # outdoor air at design speed [m3/h]; scales with speed
+    heat_recovery: float = 0.0        # temperature efficiency of the recovery [-]; 0 = none
+    supply_temperature: float = 18.0  # supply air set point [degC]
+    extract_temperature: float = 21.0  # air leaving the rooms [degC]
+
+
+@dataclass(frozen=True)
 class Unit:
     id: str
     name: str
     schedule: ScheduleSettings
     components: tuple[Component, ...]
+    outdoor_air: OutdoorAir | None = None    # None: no thermal cost is estimated
+
+    @property
+    def supply_fan(self) -> Component | None:
+        """The unit's supply fan (the component its outdoor air is priced on), if monitored."""
+        return next((c for c in self.components if c.role == "supply_fan"), None)
 
     @property
     def state_component(self) -> Component | None:
@@ -111,6 +127,34 @@ class EnergySettings:
     # fan affinity law exponent, power against speed [-]: the cube law (U.S. DOE Motor Systems
     # Tip Sheet #11); audit/energy.py takes its DEFAULT_EXPONENT from here
     exponent: float = 3.0
+
+
+@dataclass(frozen=True)
+class WeatherSettings:
+    """Optional ``[weather]`` table: the outdoor temperature file."""
+
+    file: Path                                # CSV (timestamp, temperature) or .epw, resolved
+    naive_time: str | None = None             # CSV only: None, "local" or "utc"
+    columns: dict[str, str] = field(default_factory=dict)   # ours -> the CSV's column name
+    typical_year: bool = False                # .epw of a typical year: laid on every audit year
+
+
+@dataclass(frozen=True)
+class HeatingSettings:
+    """Optional ``[heating]`` table: what delivered heat costs."""
+
+    price: float = 0.0            # per kWh of purchased heat or fuel [currency/kWh]
+    efficiency: float = 1.0       # delivered heat per unit purchased [-] (a heat pump: its COP)
+    co2_per_kwh: float = 0.0      # per kWh purchased [kg CO2e/kWh]
+
+
+@dataclass(frozen=True)
+class CoolingSettings:
+    """Optional ``[cooling]`` table: what delivered cooling costs."""
+
+    price: float = 0.0            # per kWh of electricity [currency/kWh]
+    cop: float = 3.0              # delivered cooling per kWh of electricity [-]
+    co2_per_kwh: float = 0.0      # per kWh of electricity [kg CO2e/kWh]
 
 
 @dataclass(frozen=True)
@@ -165,6 +209,9 @@ class Site:
     units: tuple[Unit, ...]
     run_state: RunStateSettings = RunStateSettings()
     findings: FindingSettings = FindingSettings()
+    weather: WeatherSettings | None = None       # None: no weather file, no thermal cost
+    heating: HeatingSettings = HeatingSettings()
+    cooling: CoolingSettings = CoolingSettings()
 
     @property
     def base_dir(self) -> Path:
@@ -186,3 +233,5 @@ LEVEL_COLUMNS = ("x_rms", "y_rms", "z_rms", "x_peak", "y_peak", "z_peak")
 #: optional: shaft rotation frequency some sensors estimate from the spectrum [Hz]
 EXTRA_COLUMNS = ("rotation_hz",)
 READING_COLUMNS = ("timestamp", "sensor") + LEVEL_COLUMNS
+# Column names of a weather CSV, ours ([weather] columns maps them to the file's)
+WEATHER_COLUMNS = ("timestamp", "temperature")

@@ -28,6 +28,7 @@ import pandas as pd
 
 from schedcheck.audit.accounting import ComponentAccount, ScheduleSets, account
 from schedcheck.audit.energy import affinity_power, price
+from schedcheck.audit.outdoor_air import OutdoorTemperature, ThermalMinutes
 from schedcheck.audit.speed_limits import (
     LimitZones,
     energy_between,
@@ -35,6 +36,7 @@ from schedcheck.audit.speed_limits import (
     limit_zones,
     within_limit,
 )
+from schedcheck.audit.thermal import finding_thermal, price_outdoor_air, with_thermal
 from schedcheck.errors import TableError
 from schedcheck.findings.find import energy_words, find_in_sets, resolved
 from schedcheck.findings.grouping import group_by_unit
@@ -79,6 +81,7 @@ class ComponentResult:
     def speeds(self) -> SpeedPieces:
         """The run time by speed (:mod:`schedcheck.runstate.speeds`)."""
         return self.states.speed_pieces
+    thermal: ThermalMinutes | None = None   # outdoor-air energy by minute (its unit's supply fan)
 
     @property
     def key(self) -> str:
@@ -136,6 +139,7 @@ def run_audit(
     warnings: list[str] | None = None,
     find: Callable[[AuditResult], pd.DataFrame | None] | None = None,
     lookback: Lookback | None = None,
+    weather: OutdoorTemperature | None = None,
 ) -> AuditResult:
     """Compare run states with the intended schedule for every component of a site.
 
@@ -164,6 +168,10 @@ def run_audit(
     lookback : Lookback, optional
         Run states and schedules over the look-back and the window (:class:`Lookback`): the
         clock rule's reference days. Every figure and finding stays inside the window.
+    weather : OutdoorTemperature, optional
+        Outdoor temperature; with it, the supply fan of each unit with ``outdoor_air`` is
+        priced for heating and cooling its off-schedule outdoor air
+        (:func:`schedcheck.audit.thermal.price_outdoor_air`).
 
     Returns
     -------
@@ -251,6 +259,7 @@ def run_audit(
         lb1 = pd.Timestamp(max(lookback.end, end)).tz_convert("UTC").as_unit("ns")
         result.lookback_start = lb0 if lb0 < start else None
         result.reference = lookback.references(site, lb0, lb1)
+    result.warnings += price_outdoor_air(result, weather)
     result.component_findings = price_findings((find or collect_findings)(result), result)
     result.findings = unit_findings(result.component_findings, result)
     result.unit_hours = unit_off_schedule_hours(result)
@@ -268,7 +277,8 @@ def unit_findings(component_findings: pd.DataFrame, result: AuditResult) -> pd.D
     lead_of = {u.id: u.state_component.key for u in site.units if u.state_component is not None}
     return group_by_unit(component_findings, unit_of, lead_of, site.timezone,
                          together=p.together,
-                         describe=lambda k, c: energy_words(k, c, en.price, en.currency))
+                         describe=lambda k, c, t="": with_thermal(
+                             energy_words(k, c, en.price, en.currency), t))
 
 
 def unit_off_schedule_hours(result: AuditResult) -> dict[str, float]:
@@ -426,10 +436,13 @@ def price_findings(found: pd.DataFrame | None, result: AuditResult) -> pd.DataFr
     for col, computed in (("kwh", p.kwh), ("cost", p.cost), ("co2_kg", p.co2_kg)):
         given = f[col].astype(float) if col in f else pd.Series(np.nan, index=f.index)
         f[col] = given.fillna(pd.Series(np.atleast_1d(computed)))
+    thermal = finding_thermal(f, result)
+    f["thermal_words"] = thermal
     f["detail_template"] = f["detail"].astype(str)
-    f["detail"] = [str(d).replace("{energy}", energy_words(k, c, en.price, en.currency))
-                   for d, k, c in zip(f["detail"], f["kwh"].tolist(), f["cost"].tolist(),
-                                      strict=True)]
+    f["detail"] = [str(d).replace("{energy}", with_thermal(
+                       energy_words(k, c, en.price, en.currency), t))
+                   for d, k, c, t in zip(f["detail"], f["kwh"].tolist(), f["cost"].tolist(),
+                                         thermal, strict=True)]
     f = f.drop(columns=[c for c in ("energy_hours",) if c in f])
     f = f.sort_values(["start", "component", "kind"], kind="stable").reset_index(drop=True)
     extra = [c for c in f.columns if c not in FINDING_COLUMNS]

@@ -29,8 +29,11 @@ def summary_table(result) -> object:
                   collapse_padding=True)
     keys = [c.key for c in result.components] + ["Total"]
     table.add_column("Component", no_wrap=True, min_width=max(len(k) for k in keys))
+    thermal = any(c.thermal is not None for c in result.components)
     heads = ("Sched.\nh", "Running\nh", "Off-\nsched.\nh", "Missed\nh", "No data\nh",
              "Off-\nsched.\nkWh", f"Cost\n{cur}".strip(), "Find-\nings")
+    if thermal:   # heating and cooling the outdoor air off schedule, beside the fan's cost
+        heads += ("Heat +\ncool\nkWh", f"Outdoor\nair\n{cur}".strip())
     for h in heads:
         table.add_column(h, justify="right", overflow="fold")
     counts: dict[str, int] = {}
@@ -44,13 +47,19 @@ def summary_table(result) -> object:
                 ns["off_schedule"] / NS_PER_H, ns["missed"] / NS_PER_H,
                 ns["no_data"] / NS_PER_H, comp.energy["off_schedule_kwh"],
                 comp.energy["off_schedule_cost"], counts.get(comp.key, 0)]
+        if thermal:
+            en = comp.energy
+            vals += [en.get("off_schedule_heating_kwh", 0.0) + en.get(
+                "off_schedule_cooling_kwh", 0.0), en.get("off_schedule_thermal_cost", 0.0)]
         tot = [a + b for a, b in zip(tot, vals, strict=True)]
         missed = f"{vals[3]:.1f}" if comp.account.counts_missed else "-"
+        extra = ([f"{vals[8]:.0f}", f"{vals[9]:.0f}"] if comp.thermal is not None else
+                 ["-", "-"]) if thermal else []
         table.add_row(comp.key, f"{vals[0]:.1f}", f"{vals[1]:.1f}", f"{vals[2]:.1f}", missed,
-                      f"{vals[4]:.1f}", f"{vals[5]:.0f}", f"{vals[6]:.0f}", str(vals[7]))
+                      f"{vals[4]:.1f}", f"{vals[5]:.0f}", f"{vals[6]:.0f}", str(vals[7]), *extra)
     table.add_section()
     table.add_row("Total", *[f"{v:.1f}" for v in tot[:5]], f"{tot[5]:.0f}", f"{tot[6]:.0f}",
-                  str(len(result.findings)), style="bold")
+                  str(int(tot[7])), *[f"{v:.0f}" for v in tot[8:]], style="bold")
     return table
 
 
@@ -123,6 +132,11 @@ def audit(
             console.print(f"  {result.files[name]}", markup=False, soft_wrap=True)
     console.print("Energy figures are affinity-law estimates, not meter readings.",
                   markup=False, soft_wrap=True)
+    if any(c.thermal is not None for c in result.components):
+        console.print("Outdoor-air figures are sensible heat only (no latent heat, duct losses or "
+                      "the building's own heat balance); frost protection and minimum "
+                      "ventilation can be reasons to run in the cold.", markup=False,
+                      soft_wrap=True)
     console.print("Before changing schedules: keep ventilation minimums, freeze protection and "
                   "smoke control as designed; defer to local codes.", markup=False,
                   soft_wrap=True)

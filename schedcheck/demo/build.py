@@ -63,6 +63,7 @@ from schedcheck.demo.plan import (
     outdoor_temperature,
     site_toml,
 )
+from schedcheck.demo.weather import weather_table
 from schedcheck.durations import parse_duration
 from schedcheck.errors import InputError
 from schedcheck.intervals import NS_PER_S, Intervals, from_ns, to_ns
@@ -126,6 +127,10 @@ class DemoSite:
     faults: list[PlantedFault]
     days_off: dict[dt.date, str] = field(default_factory=dict)
     speed: dict[str, pd.Series] = field(default_factory=dict)   # variable-speed drives
+    # the true outdoor temperature (five-minute grid, UTC ns -> degC) and the weather file's
+    # hourly readings made from it (demo/weather.py)
+    outdoor: tuple[np.ndarray, np.ndarray] | None = None
+    weather: pd.DataFrame | None = None
 
     @property
     def clean_components(self) -> list[str]:
@@ -332,7 +337,8 @@ def build_demo(seed: int = DEFAULT_SEED, months: int = DEFAULT_MONTHS) -> DemoSi
     return DemoSite(seed=int(seed), first=first, last=last, start=start, end=end,
                     site_toml=site_toml(), calendars={n: calendar_text(n) for n in CALENDARS},
                     machines=MACHINES, truth=truth, gaps=_gaps(s0, e0), faults=faults,
-                    days_off=off, speed=speed)
+                    days_off=off, speed=speed, outdoor=(grid, temps),
+                    weather=weather_table(grid, temps, TZ))
 
 
 def _gaps(s0: int, e0: int) -> pd.DataFrame:

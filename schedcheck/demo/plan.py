@@ -15,6 +15,7 @@ import holidays as holidays_lib
 import numpy as np
 import pandas as pd
 
+from schedcheck.demo.weather import outdoor_air_line, weather_toml
 from schedcheck.intervals import NS_PER_S, from_ns, to_ns
 from schedcheck.schedule.calendars import HOLIDAY_MARKER
 
@@ -261,6 +262,7 @@ def site_toml() -> str:
         'currency = "NOK"',
         "co2_per_kwh = 0.017         # kg CO2e per kWh (invented for the demo)",
         "exponent = 3.0              # fan affinity law: power against speed cubed",
+        *weather_toml(),
     ]
     for u in UNITS:
         out += ["", "[[unit]]", f'id = "{u.id}"', f'name = "{u.name}"']
@@ -269,6 +271,8 @@ def site_toml() -> str:
             over.append(f'early_start = "{u.early_start}"')
         if over:
             out.append("schedule = { " + ", ".join(over) + " }")
+        if outdoor_air_line(u.id):
+            out.append(outdoor_air_line(u.id))
         for m in (m for m in MACHINES if m.unit == u.id):
             out += ["", "[[unit.component]]", f'id = "{m.id}"', f'role = "{m.role}"',
                     f'sensor = "{m.sensor}"', f"power_kw = {m.power_kw}", f"speed = {m.speed}"]

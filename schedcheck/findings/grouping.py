@@ -38,6 +38,8 @@ from schedcheck.intervals import to_ns
 DEFAULT_TOGETHER = pd.Timedelta("30min")
 
 #: Columns of :func:`group_by_unit`'s table, in order (more may follow).
+#: Outdoor-air columns a finding carries where its unit prices outdoor air (summed over parts).
+THERMAL_COLUMNS = ("heating_kwh", "cooling_kwh", "thermal_cost", "thermal_co2_kg")
 GROUPED_COLUMNS = ("id", "unit", "component", "components", "kind", "start", "end", "date",
                    "hours", "component_hours", "kwh", "cost", "co2_kg", "detail", "parts")
 
@@ -122,7 +124,8 @@ def group_by_unit(
     out = pd.DataFrame(rows)
     out = out.sort_values(["start", "unit", "kind"], kind="stable").reset_index(drop=True)
     out["id"] = _ids(out)
-    return out[list(GROUPED_COLUMNS)]
+    extra = [c for c in THERMAL_COLUMNS if c in out]
+    return out[list(GROUPED_COLUMNS) + extra]
 
 
 def _joined(part: pd.DataFrame, lead_of: dict[str, str], describe) -> dict:
@@ -142,8 +145,11 @@ def _joined(part: pd.DataFrame, lead_of: dict[str, str], describe) -> dict:
                       "cost": float(mine["cost"].fillna(0.0).sum()),
                       "co2_kg": float(mine["co2_kg"].fillna(0.0).sum())})
     detail = str(lead["detail_template"])
+    # outdoor-air words (heating and cooling of the unit's outdoor air, on its supply fan)
+    words = next((str(w) for w in part.get("thermal_words", pd.Series(dtype=object)) if w), "")
     if describe is not None:
-        detail = detail.replace("{energy}", describe(kwh, cost))
+        detail = detail.replace("{energy}", describe(kwh, cost, words) if words
+                                else describe(kwh, cost))
     if len(comps) > 1:
         shown = ", ".join(
             f"{p['component']}" + (f" {p['kwh']:,.1f} kWh" if kwh > 0 else "") for p in parts)
@@ -152,7 +158,8 @@ def _joined(part: pd.DataFrame, lead_of: dict[str, str], describe) -> dict:
     return {"unit": unit, "component": comps[0], "components": comps, "kind": lead["kind"],
             "start": part["start"].min(), "end": part["end"].max(), "date": first["date"],
             "hours": float(part["hours"].max()), "component_hours": float(part["hours"].sum()),
-            "kwh": kwh, "cost": cost, "co2_kg": co2, "detail": detail, "parts": parts}
+            "kwh": kwh, "cost": cost, "co2_kg": co2, "detail": detail, "parts": parts,
+            **{c: float(part[c].sum(min_count=1)) for c in THERMAL_COLUMNS if c in part}}
 
 
 def _ids(out: pd.DataFrame) -> list[str]:

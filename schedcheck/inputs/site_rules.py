@@ -10,13 +10,18 @@ from __future__ import annotations
 import pandas as pd
 
 # keys of each table, in the order the reference (docs/site-file.md) lists them
-_TOP = ("site", "readings", "holidays", "schedule", "energy", "unit", "run_state", "findings")
+_TOP = ("site", "readings", "holidays", "schedule", "energy", "unit", "run_state", "findings",
+        "weather", "heating", "cooling")
 _SITE = ("name", "timezone")
 _READINGS = ("files", "unit", "naive_time", "max_gap", "columns", "skip_bad_rows")
 _HOLIDAYS = ("country", "subdivision", "categories", "closed", "language", "drop", "add")
 _SCHEDULE = ("occupied", "allowed", "early_start", "late_stop", "standby_speed")
 _ENERGY = ("price", "currency", "co2_per_kwh", "exponent")
-_UNIT = ("id", "name", "schedule", "component")
+_UNIT = ("id", "name", "schedule", "component", "outdoor_air")
+_WEATHER = ("file", "naive_time", "columns", "typical_year")
+_HEATING = ("price", "efficiency", "co2_per_kwh")
+_COOLING = ("price", "cop", "co2_per_kwh")
+_OUTDOOR_AIR = ("flow", "heat_recovery", "supply_temperature", "extract_temperature")
 _COMPONENT = ("id", "role", "sensor", "power_kw", "speed", "threshold", "speeds", "design_rpm")
 _ALLOWED_ITEM = ("file", "max_speed")   # an allowed window given as a table
 
@@ -38,3 +43,14 @@ MAX_POWER_KW = 100_000.0          # [kW]
 MAX_THRESHOLD = 1e6               # [reading unit]
 # design_rpm at most 100,000 rpm: beyond any fan or motor shaft (common practice, no source)
 MAX_RPM = 100_000.0               # [rpm]
+
+# Outdoor air ([heating], [cooling], a unit's outdoor_air). Ranges that catch a wrong unit or a
+# typing slip (common practice, no source): air handling units move up to a few hundred thousand
+# m3/h; a temperature efficiency is a ratio below 1 (EN 308 defines it as a temperature ratio);
+# set points outside 5-40 degC are not comfort air; a boiler's efficiency stays below 1.1 (on
+# the gross calorific value) and a heat pump's or chiller's COP below 10.
+MAX_FLOW = 1_000_000.0            # [m3/h]
+HEAT_RECOVERY_RANGE = (0.0, 0.95)  # inclusive [-]
+AIR_TEMPERATURE_RANGE = (5.0, 40.0)   # inclusive [degC]
+EFFICIENCY_RANGE = (0.1, 10.0)    # inclusive [-]: a boiler 0.7-1.1, a heat pump up to ~6
+COP_RANGE = (0.5, 10.0)           # inclusive [-]

@@ -18,6 +18,12 @@ import pandas as pd
 from schedcheck.audit.energy import EXPONENT_RANGE
 from schedcheck.inputs.file_patterns import resolve_patterns
 from schedcheck.inputs.site_holidays import HolidaySections
+from schedcheck.inputs.site_outdoor import (
+    cooling_settings,
+    heating_settings,
+    outdoor_air,
+    weather_settings,
+)
 from schedcheck.inputs.site_rules import (
     _ALLOWED_ITEM,
     _COMPONENT,
@@ -74,11 +80,19 @@ class SiteValidator(HolidaySections):
         units = self.units(data, sched_t)
         run_state = self.derived(data, "run_state", RunStateSettings)
         findings = self.derived(data, "findings", FindingSettings)
+        weather = weather_settings(self, data, self.base)
+        heating, cooling = heating_settings(self, data), cooling_settings(self, data)
+        if "weather" not in data:
+            for i, u in enumerate(units, 1):
+                if u.outdoor_air is not None:
+                    self.err(f"unit[{u.id or '#' + str(i)}].outdoor_air", "needs a [weather] "
+                             "table with the outdoor temperature file")
         if self.problems:
             return None
         return Site(name=name, timezone=tz, path=self.path, readings=readings, holidays=hol,
                     schedule=default_sched, energy=energy, units=units,
-                    run_state=run_state, findings=findings)
+                    run_state=run_state, findings=findings, weather=weather,
+                    heating=heating, cooling=cooling)
 
     def timezone(self, s: dict) -> str:
         tz = self.string(s, "timezone", "site.timezone", required=True)
@@ -248,7 +262,9 @@ class SiteValidator(HolidaySections):
                 self.err(f"{ukey}.schedule.occupied", "no occupied calendar: set occupied in "
                          "[schedule] or in this unit's schedule")
             comps = self.components(u, uid or f"#{i}", ukey, sensors)
-            units.append(Unit(id=uid or "", name=name or "", schedule=sched, components=comps))
+            air = outdoor_air(self, u, ukey)
+            units.append(Unit(id=uid or "", name=name or "", schedule=sched, components=comps,
+                              outdoor_air=air))
         return tuple(units)
 
     def components(self, u: dict, uid: str, ukey: str, sensors: dict) -> tuple[Component, ...]:

@@ -64,6 +64,13 @@ def audit_result(
     load_warnings = window_warnings(readings, start, end, site.timezone)
     say("expanding the intended schedule")
     schedules = unit_schedules(site, first, last)
+    weather = None
+    if site.weather is not None:
+        from schedcheck.inputs.weather_files import read_weather
+
+        say(f"reading the weather file {site.weather.file.name}")
+        weather = read_weather(site.weather, site.timezone,
+                               years=tuple(range(first.year, last.year + 1)))
     lookback = (Lookback(span.start, span.end, whole,
                          unit_schedules(site, span.first, span.last))
                 if span.start < start or span.end > end else None)
@@ -76,6 +83,7 @@ def audit_result(
         warnings=load_warnings + [str(w) for w in readings.warnings]
         + [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings],
         lookback=lookback,
+        weather=weather,
     )
     result.levels = evidence_levels(result.findings, {c.key: c.sensor for c in site.components},
                                     readings.by_sensor, start, end,

@@ -100,6 +100,7 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
     report.calendars = site_calendars(site)
     calendar_problems = check_calendars(site, report.calendars)
     report.problems.extend(calendar_problems)
+    report.problems.extend(check_weather(site))
     skip = skip_bad_rows or site.readings.skip_bad_rows
     try:
         # read with skipping so that the health table is complete; bad rows become problems
@@ -168,3 +169,16 @@ def _schedule_warnings(site: Site, readings, report: CheckReport) -> list[str]:
                 "take them all; nothing could be judged", path=site.path,
                 key=f"unit[{unit.id}].schedule.occupied"))
     return [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings]
+
+
+def check_weather(site: Site) -> list[InputError]:
+    """Problems in the site's weather file (every bad row, up to a limit), if it has one."""
+    if site.weather is None:
+        return []
+    from schedcheck.inputs.weather_files import read_weather
+
+    try:
+        read_weather(site.weather, site.timezone)
+    except InputError as e:
+        return _problems(e)
+    return []

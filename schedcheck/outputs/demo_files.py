@@ -33,6 +33,7 @@ import pyarrow.parquet as pq
 
 from schedcheck.demo.build import DemoSite, machine_truth, observed_truth
 from schedcheck.demo.plan import SITE_NAME, TZ
+from schedcheck.demo.weather import WEATHER_FILE
 from schedcheck.errors import InputError
 from schedcheck.intervals import NS_PER_S, from_ns, to_ns
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
@@ -128,6 +129,7 @@ def _readme(demo: DemoSite) -> str:
         "  site.toml              the site file: start here (schedcheck check site.toml)",
         "  calendars/*.ics        occupied hours and night-cooling windows (iCalendar)",
         "  readings/              one-a-minute vibration readings (CSV.gz and Parquet)",
+        "  weather/               hourly outdoor temperature of the invented town (CSV)",
         "  truth/runs.csv         the true run / off / no_data intervals (UTC)",
         "  truth/machine_runs.csv what the machines really did, ignoring data gaps (UTC)",
         "  truth/faults.json      the planted faults: " + ", ".join(kinds),
@@ -175,6 +177,8 @@ def write_demo(demo: DemoSite, readings: dict[str, pd.DataFrame], folder: Path) 
     for name, frame in readings.items():
         if name.endswith(".csv.gz"):
             files[f"readings/{name}"] = _readings_csv_gz(frame)
+    if demo.weather is not None:
+        files[WEATHER_FILE] = demo.weather.to_csv(index=False, lineterminator="\n").encode()
     files["truth/runs.csv"] = _runs_csv(observed_truth(demo))
     files["truth/machine_runs.csv"] = _runs_csv(machine_truth(demo))
     files["truth/faults.json"] = (json.dumps(faults_document(demo), indent=2) + "\n").encode()

@@ -33,6 +33,12 @@ from schedcheck.outputs.findings_files import (  # noqa: F401 - re-exported
 from schedcheck.outputs.instants import csv_encoding, local_iso, with_local_columns
 from schedcheck.outputs.levels_file import LEVELS_FILE, write_levels
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
+from schedcheck.outputs.thermal_fields import (
+    DAILY_THERMAL,
+    energy_fields,
+    prices_outdoor_air,
+    total_fields,
+)
 from schedcheck.outputs.values import (  # noqa: F401 - re-exported
     COST_DECIMALS,
     ENERGY_DECIMALS,
@@ -108,6 +114,7 @@ def _component_summary(comp, result: AuditResult) -> dict:
             "off_schedule_kwh": _r(en["off_schedule_kwh"], ENERGY_DECIMALS),
             "off_schedule_cost": _r(en["off_schedule_cost"], COST_DECIMALS),
             "off_schedule_co2_kg": _r(en["off_schedule_co2_kg"], ENERGY_DECIMALS),
+            **energy_fields(en, ENERGY_DECIMALS, COST_DECIMALS, HOURS_DECIMALS),
         },
         "findings": n_find,
         "warnings": list(comp.state_warnings) + list(acc.warnings),
@@ -198,6 +205,7 @@ def summary_dict(result: AuditResult, provenance: dict | None = None) -> dict:
                                         for c in result.components), COST_DECIMALS)
     total["off_schedule_co2_kg"] = _r(sum(c.energy["off_schedule_co2_kg"]
                                           for c in result.components), ENERGY_DECIMALS)
+    total.update(total_fields(result.components, ENERGY_DECIMALS, COST_DECIMALS))
     total["findings"] = len(result.findings)
     total["component_findings"] = (len(result.component_findings)
                                    if result.component_findings is not None else None)
@@ -260,10 +268,13 @@ def daily_frame(result: AuditResult) -> pd.DataFrame:
             mean = comp.speeds.speed_ns_per_bin(np.clip(edges, to_ns(result.start),
                                                          to_ns(result.end))) / run_ns
         f["mean_speed"] = np.where(run_ns > 0, np.round(mean, 3), np.nan)
+        for k in DAILY_THERMAL:
+            f[k] = d[k].astype(float).round(ENERGY_DECIMALS) if k in d else float("nan")
         parts.append(f)
     if not parts:
         return pd.DataFrame(columns=list(DAILY_COLUMNS))
-    return pd.concat(parts, ignore_index=True)[list(DAILY_COLUMNS)]
+    extra = list(DAILY_THERMAL) if prices_outdoor_air(result) else []
+    return pd.concat(parts, ignore_index=True)[list(DAILY_COLUMNS) + extra]
 
 
 def runs_frame(result: AuditResult) -> pd.DataFrame:

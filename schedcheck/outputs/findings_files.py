@@ -13,6 +13,7 @@ import pandas as pd
 from schedcheck import __version__ as _version
 from schedcheck.audit.run import AuditResult
 from schedcheck.outputs.instants import to_second
+from schedcheck.outputs.thermal_fields import FINDINGS_THERMAL, finding_fields, prices_outdoor_air
 from schedcheck.outputs.values import (
     COST_DECIMALS,
     ENERGY_DECIMALS,
@@ -57,6 +58,7 @@ def finding_records(result: AuditResult) -> list[dict]:
             "component_hours": _r(row.component_hours, HOURS_DECIMALS),
             "kwh": _r(row.kwh, ENERGY_DECIMALS),
             "cost": _r(row.cost, COST_DECIMALS), "co2_kg": _r(row.co2_kg, ENERGY_DECIMALS),
+            **finding_fields(row, ENERGY_DECIMALS, COST_DECIMALS),
             "detail": str(row.detail),
             "parts": [_part_record(p, tz) for p in row.parts],
         })
@@ -84,7 +86,10 @@ def findings_frame(result: AuditResult) -> pd.DataFrame:
     for r in recs:
         r["components"] = "; ".join(r["components"])
         r["kwh_by_component"] = "; ".join(f"{p['component']}={p['kwh']}" for p in r["parts"])
-    return pd.DataFrame(recs, columns=list(FINDINGS_COLUMNS))
+    cols = list(FINDINGS_COLUMNS)
+    if prices_outdoor_air(result):
+        cols[-1:-1] = FINDINGS_THERMAL
+    return pd.DataFrame(recs, columns=cols)
 
 
 # -- findings.ics ---------------------------------------------------------------------------

@@ -36,6 +36,7 @@ from schedcheck.outputs.report_tables import (  # noqa: F401 - the report's smal
     _sensors,
     _when,
 )
+from schedcheck.outputs.report_thermal import thermal_context
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
 from schedcheck.outputs.wording import monitored_words, separation_text
 from schedcheck.runstate.onofflevel import SEPARATION_CAP
@@ -300,6 +301,7 @@ def report_context(data: SavedAudit) -> dict:
     totals["unit_h"] = saved_totals.get("unit_hours", totals["off_schedule_h"])
     totals["hours_differ"] = abs(totals["off_schedule_h"] - (totals["unit_h"] or 0.0)) >= 0.05
     totals.update(_sensitivity(comps))
+    thermal = thermal_context(s, comps, units)
     return {
         "site": site, "currency": site.get("currency") or "", "price": site.get("price"),
         "co2_per_kwh": site.get("co2_per_kwh"), "reading_unit": site.get("reading_unit", ""),
@@ -322,6 +324,7 @@ def report_context(data: SavedAudit) -> dict:
         "strips": strips, "strip": strip_settings(), "provenance": provenance_rows(s),
         "page_footer": css_string(f"{site['name']} · {first:%d %b %Y} to {last:%d %b %Y}"
                                   f" · audit made {_when(s.get('generated'))}"),
+        "thermal": thermal,
     }
 
 
