@@ -25,7 +25,7 @@ def run_on_cluster(func: Callable, tasks: list, address: str,
         raise InputError("needs dask and distributed: pip install 'schedcheck[cluster]'",
                          key="--scheduler") from None
     try:
-        client = Client(address, timeout=connect_timeout, set_as_default=False)
+        client = Client(address, timeout=connect_timeout)
     except (OSError, TimeoutError, ValueError) as e:
         raise InputError(f"cannot reach the scheduler at {address} ({e})",
                          key="--scheduler") from None
