@@ -50,9 +50,10 @@ def portfolio(
             print(f"{rec['site']}: {rec['error']}", file=sys.stderr, flush=True)
 
     if interactive():
+        from rich.console import Console
         from rich.progress import Progress
 
-        with Progress(transient=True) as bar:
+        with Progress(console=Console(stderr=True), transient=True) as bar:
             task = bar.add_task("auditing sites", total=len(sites))
 
             def step(rec: dict) -> None:
