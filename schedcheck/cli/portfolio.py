@@ -57,7 +57,9 @@ def portfolio(
             task = bar.add_task("auditing sites", total=len(sites))
 
             def step(rec: dict) -> None:
-                report_failure(rec)
+                if rec["status"] != "ok":   # above the live bar, not through it
+                    bar.console.print(f"{rec['site']}: {rec['error']}", markup=False,
+                                      highlight=False, soft_wrap=True)
                 bar.advance(task)
 
             result = run_portfolio(sites, out, d0, d1, jobs=jobs, scheduler=scheduler,
