@@ -16,6 +16,7 @@ from schedcheck.cli import audit as _audit  # noqa: E402,F401
 from schedcheck.cli import check as _check  # noqa: E402,F401
 from schedcheck.cli import compare as _compare  # noqa: E402,F401
 from schedcheck.cli import demo as _demo  # noqa: E402,F401
+from schedcheck.cli import portfolio as _portfolio  # noqa: E402,F401
 from schedcheck.cli import report as _report  # noqa: E402,F401
 from schedcheck.cli import schedule as _schedule  # noqa: E402,F401
 from schedcheck.cli import states as _states  # noqa: E402,F401

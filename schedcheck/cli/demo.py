@@ -9,7 +9,7 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.demo.build import DEFAULT_MONTHS, DEFAULT_SEED, MAX_MONTHS
+from schedcheck.demo.defaults import DEFAULT_MONTHS, DEFAULT_SEED, MAX_MONTHS
 
 
 def _faults_table(result) -> object:

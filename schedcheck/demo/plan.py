@@ -15,6 +15,7 @@ import holidays as holidays_lib
 import numpy as np
 import pandas as pd
 
+from schedcheck.demo.defaults import DEFAULT_MONTHS, DEFAULT_SEED, MAX_MONTHS  # noqa: F401
 from schedcheck.demo.weather import outdoor_air_line, weather_toml
 from schedcheck.intervals import NS_PER_S, from_ns, to_ns
 from schedcheck.schedule.calendars import HOLIDAY_MARKER
@@ -22,9 +23,6 @@ from schedcheck.schedule.calendars import HOLIDAY_MARKER
 TZ = "Europe/Oslo"
 SITE_NAME = "Lindeskar Learning House"
 FIRST_DAY = dt.date(2026, 2, 16)          # a Monday
-DEFAULT_SEED = 20260216
-DEFAULT_MONTHS = 3
-MAX_MONTHS = 12
 EARLY_START, LATE_STOP = "2h", "30min"    # site default allowances (invented for the demo)
 CLOSED = ((dt.date(2026, 5, 15), dt.date(2026, 5, 15)),     # the Friday after Ascension Day
           (dt.date(2026, 7, 13), dt.date(2026, 7, 31)))     # summer closure

@@ -186,7 +186,7 @@ def _read_parquet(col: Collector, site: Site, path: Path, file_idx: int) -> tupl
         # batch size
         pos = 0
         for batch in pf.iter_batches(batch_size=CSV_CHUNK_ROWS, columns=names):
-            frame = _sensor_text(batch.to_pandas().rename(columns=inverse))
+            frame = _batch_frame(batch, scol).rename(columns=inverse)
             if rename:   # whole-number ids: "0417" in the site file is 417 in the file
                 frame["sensor"] = frame["sensor"].map(lambda v: rename.get(v, v))
             col.take(frame, path, file_idx, levels, None,
@@ -211,10 +211,16 @@ def _read_parquet(col: Collector, site: Site, path: Path, file_idx: int) -> tupl
     return levels
 
 
-def _sensor_text(frame: pd.DataFrame) -> pd.DataFrame:
-    """The sensor column as plain text ("" where missing), whatever its Parquet type."""
-    sens = frame["sensor"].astype(object)
-    frame["sensor"] = sens.where(sens.notna(), "").astype(str)
+def _batch_frame(batch, scol: str) -> pd.DataFrame:
+    """A Parquet batch as a frame, its sensor column as text ("" where missing) made from the
+    distinct ids (dictionary-encoded in Arrow), not converted row by row."""
+    import pyarrow.compute as pc
+
+    enc = pc.dictionary_encode(batch.column(scol))
+    ids = ["" if v is None else str(v) for v in enc.dictionary.to_pylist()]
+    idx = pc.fill_null(enc.indices, len(ids)).to_numpy(zero_copy_only=False)
+    frame = batch.drop_columns([scol]).to_pandas()
+    frame[scol] = np.asarray(ids + [""], dtype=object)[idx]
     return frame
 
 

@@ -137,7 +137,10 @@ class Collector:
         """
         if len(raw) == 0:
             return
-        codes, uniques = pd.factorize(raw["sensor"].fillna("").astype("str").str.strip())
+        # text work on the distinct ids only, not on every row (first-appearance order kept)
+        raw_codes, raw_ids = pd.factorize(raw["sensor"].fillna(""))
+        new_codes, uniques = pd.factorize(pd.Series(raw_ids).astype("str").str.strip())
+        codes = new_codes[raw_codes]
         names = np.asarray(uniques, dtype=object)
         rows = _Rows(raw, names[codes], codes, lines, positions)
         if lines is not None:   # blank lines in a CSV are not data

@@ -223,7 +223,10 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
     """
     warnings: list[str] = []
     health = SensorHealth(sensor=sensor, columns=columns)
-    p = parts.sort_values("order", kind="stable").reset_index(drop=True)
+    order = parts["order"].to_numpy()
+    if len(order) > 1 and not (order[1:] >= order[:-1]).all():
+        parts = parts.sort_values("order", kind="stable")
+    p = parts.reset_index(drop=True)
     utc = p["utc"].to_numpy(np.int64).copy()
     amb = utc == NAT
     fold_dupes = 0
@@ -263,11 +266,17 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
         prior = np.maximum.accumulate(utc)
         health.out_of_order = int((utc[1:] < prior[:-1]).sum())
     frame = pd.DataFrame({"timestamp": utc}).join(levels)
-    frame = frame.sort_values("timestamp", kind="stable")
-    exact = frame.duplicated(keep="first")
-    health.duplicates_exact = int(exact.sum()) + fold_dupes
-    frame = frame[~exact.to_numpy()]
-    same = frame["timestamp"].duplicated(keep=False).to_numpy()
+    if len(utc) > 1 and not (utc[1:] > utc[:-1]).all():
+        # only then can rows be out of order or share an instant (the usual file is neither:
+        # the sort and the two duplicate passes are skipped)
+        frame = frame.sort_values("timestamp", kind="stable")
+        exact = frame.duplicated(keep="first")
+        health.duplicates_exact = int(exact.sum())
+        frame = frame[~exact.to_numpy()]
+        same = frame["timestamp"].duplicated(keep=False).to_numpy()
+    else:
+        same = np.zeros(len(frame), dtype=bool)
+    health.duplicates_exact += fold_dupes
     if same.any():
         health.duplicates_conflicting = int(same.sum() - frame["timestamp"][same].nunique())
         frame = frame.groupby("timestamp", sort=True, as_index=False).mean()
