@@ -8,7 +8,15 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import SiteArg, SkipBadRows, interactive, parse_date
+from schedcheck.cli._common import (
+    SiteArg,
+    SkipBadRows,
+    add_row,
+    interactive,
+    make_console,
+    parse_date,
+    terminal_text,
+)
 from schedcheck.errors import InputError
 
 FORMATS = ("table", "json")
@@ -67,12 +75,12 @@ def compare_table(result) -> object:
     table.add_column("Pattern changed on")
     for c in result.components:
         if not c.figures:
-            table.add_row(c.id, "-", "-", "-", "-", "not enough data", "-")
+            add_row(table, c.id, "-", "-", "-", "-", "not enough data", "-")
             continue
         off = c.figures["off_schedule_h_per_day"]
         kwh = c.figures["kwh_per_day"]
         missed = c.figures.get("missed_h_per_day")
-        table.add_row(
+        add_row(table,
             c.id, f"{off.before_mean:.1f} to {off.after_mean:.1f}",
             f"{_signed(off.difference)} {_interval(*off.ci95)}",
             f"{kwh.before_mean:.1f} to {kwh.after_mean:.1f}",
@@ -142,8 +150,6 @@ def compare(
 
     Example: schedcheck compare site.toml --change 2026-04-20 --before 28 --after 28
     """
-    from rich.console import Console
-
     from schedcheck.jobs.compare import compare_site
     from schedcheck.outputs.compare_json import compare_json_text
 
@@ -155,12 +161,12 @@ def compare(
     if fmt == "json":
         sys.stdout.write(compare_json_text(result))
         return 0
-    console = Console(width=None if sys.stdout.isatty() else 160, highlight=False)
+    console = make_console(160)
     console.print(compare_table(result))
     for line in _advice(result):
         console.print(line, markup=False, soft_wrap=True)
     for w in result.warnings[:10]:
-        console.print(f"warning: {w}", markup=False, soft_wrap=True)
+        console.print(f"warning: {terminal_text(w)}", soft_wrap=True)
     if len(result.warnings) > 10:
         console.print(f"... and {len(result.warnings) - 10} more warnings (--format json)",
                       markup=False)

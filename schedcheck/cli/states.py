@@ -10,7 +10,14 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import SiteArg, SkipBadRows, parse_date
+from schedcheck.cli._common import (
+    SiteArg,
+    SkipBadRows,
+    add_row,
+    make_console,
+    parse_date,
+    terminal_text,
+)
 from schedcheck.errors import InputError
 
 FORMATS = ("table", "json")
@@ -28,7 +35,7 @@ def states_table(result) -> object:
     unit = result.site.readings.unit
     title = (f"{result.site.name}: run states {result.first} to {result.last} "
              f"({result.site.timezone} local dates)")
-    table = Table(title=title, title_justify="left", show_lines=True)
+    table = Table(title=terminal_text(title), title_justify="left", show_lines=True)
     for head, just in (("Component", "left"), (f"Level [{unit}]", "right"),
                        ("Source", "left"), ("Separation", "right"), ("Confidence", "left"),
                        ("Running", "right"),
@@ -39,7 +46,7 @@ def states_table(result) -> object:
         sep_text = "-" if sep is None else (f">{sep:.0f}" if sep >= 1000 else f"{sep:.1f}")
         share = "-" if r["running_share"] is None else f"{r['running_share']:.1%}"
         why = r["reason"] + "".join(f"\nwarning: {w}" for w in r["warnings"])
-        table.add_row(r["component"], _cell(r["level"], ".3g"), r["source"], sep_text,
+        add_row(table, r["component"], _cell(r["level"], ".3g"), r["source"], sep_text,
                       r.get("confidence") or "-", share,
                       _cell(r["starts_per_day"], ".1f"), why)
     return table
@@ -73,13 +80,11 @@ def states(
     d0, d1 = parse_date(first, "--from"), parse_date(last, "--to")
     result = site_states(site, d0, d1, skip_bad_rows=skip_bad_rows, plot_dir=plot)
     for w in result.warnings:
-        print(f"warning: {w}", file=sys.stderr)
+        print(f"warning: {terminal_text(w)}", file=sys.stderr)
     if fmt == "json":
         sys.stdout.write(json.dumps(result.records, indent=2, ensure_ascii=False) + "\n")
     else:
-        from rich.console import Console
-
-        console = Console(width=None if sys.stdout.isatty() else 140, highlight=False)
+        console = make_console(140)
         console.print(states_table(result))
         console.print("Separation is Ashman's D between stopped and running readings (above 2: "
                       "cleanly apart). Set `threshold` on a component in the site file to "

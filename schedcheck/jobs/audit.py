@@ -15,7 +15,6 @@ from collections.abc import Callable
 from pathlib import Path
 
 from schedcheck.audit.run import AuditResult, run_audit
-from schedcheck.errors import InputError
 from schedcheck.inputs.readings_files import ReadingsSource
 from schedcheck.readings.window_clip import audit_window, clip_readings, window_warnings
 from schedcheck.site import Site
@@ -127,20 +126,17 @@ def audit_site(
     """
     from schedcheck.jobs.common import open_site
     from schedcheck.outputs.files import write_audit_files
+    from schedcheck.outputs.folder import output_folder
 
     say = progress or (lambda _msg: None)
     site = open_site(site_path)
     result = audit_result(site, first, last, skip_bad_rows=skip_bad_rows, progress=say)
     outdir = Path(out) if out is not None else default_outdir(site)
     say(f"writing files to {outdir}")
-    if outdir.exists() and not outdir.is_dir():
-        raise InputError("exists and is not a folder; give another --out", path=outdir)
-    try:
-        result.files = write_audit_files(result, outdir)
-        result.files["report.html"] = write_report_file(outdir)
-    except OSError as e:
-        raise InputError(f"cannot write the audit files here ({e.strerror or e})",
-                         path=outdir) from None
+    with output_folder(outdir, complete="summary.json") as stage:
+        staged = write_audit_files(result, stage.path)
+        staged["report.html"] = write_report_file(stage.path)
+    result.files = {name: outdir / path.name for name, path in staged.items()}
     result.outdir = outdir
     return result
 

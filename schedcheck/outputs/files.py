@@ -21,6 +21,7 @@ from schedcheck import __version__ as _version
 from schedcheck.audit.accounting import FIGURES
 from schedcheck.audit.run import AuditResult
 from schedcheck.intervals import NS_PER_H, NS_PER_S, from_ns, to_ns
+from schedcheck.outputs.cells import csv_frame, ics_text
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
 from schedcheck.runstate.states import STATES, StateSets
 
@@ -334,7 +335,7 @@ def schedule_frame(result: AuditResult) -> pd.DataFrame:
 
 
 def _write_csv(frame: pd.DataFrame, path: Path) -> Path:
-    frame.to_csv(path, index=False, encoding="utf-8", lineterminator="\n")
+    csv_frame(frame).to_csv(path, index=False, encoding="utf-8", lineterminator="\n")
     return path
 
 
@@ -354,7 +355,7 @@ def findings_calendar(result: AuditResult) -> bytes:
     cal.add("prodid", f"-//schedcheck//audit findings {_version}//EN")
     cal.add("version", "2.0")
     cal.add("calscale", "GREGORIAN")
-    cal.add("name", f"{result.site.name}: schedule findings")   # RFC 7986 section 5.1
+    cal.add("name", ics_text(f"{result.site.name}: schedule findings"))   # RFC 7986 section 5.1
     stamp = result.generated.tz_convert("UTC").to_pydatetime()
     for row in result.findings.itertuples(index=False):
         ev = icalendar.Event()
@@ -363,9 +364,9 @@ def findings_calendar(result: AuditResult) -> bytes:
         ev.add("dtstart", pd.Timestamp(row.start).tz_convert("UTC").floor("s").to_pydatetime())
         ev.add("dtend", pd.Timestamp(row.end).tz_convert("UTC").ceil("s").to_pydatetime())
         words = KIND_WORDS.get(row.kind, str(row.kind).replace("_", " "))
-        ev.add("summary", f"{row.component}: {words}, {row.hours:.1f} h")
-        ev.add("description", str(row.detail))
-        ev.add("categories", [str(row.kind)])
+        ev.add("summary", ics_text(f"{row.component}: {words}, {row.hours:.1f} h"))
+        ev.add("description", ics_text(row.detail))
+        ev.add("categories", [ics_text(row.kind)])
         ev.add("transp", "TRANSPARENT")
         cal.add_component(ev)
     if len(result.findings) == 0:
@@ -375,8 +376,8 @@ def findings_calendar(result: AuditResult) -> bytes:
         note.add("uid", finding_uid(result.site.name, "no_findings", result.start))
         note.add("dtstamp", stamp)
         note.add("dtstart", result.first_date)
-        note.add("summary", f"{result.site.name}: no findings from {result.first_date} to "
-                            f"{result.last_date}")
+        note.add("summary", ics_text(f"{result.site.name}: no findings from "
+                                     f"{result.first_date} to {result.last_date}"))
         cal.add_component(note)
     return cal.to_ical()
 

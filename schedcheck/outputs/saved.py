@@ -21,6 +21,7 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.errors import InputError
+from schedcheck.outputs.cells import uncell_frame
 from schedcheck.outputs.schema import SUMMARY_SCHEMA as SCHEMA
 from schedcheck.runstate.states import STATES
 from schedcheck.schedule.kinds import SCHEDULE_KINDS
@@ -339,7 +340,8 @@ def _load_csv(path: Path) -> pd.DataFrame:
     if not path.is_file():
         raise InputError("missing; this folder holds no complete audit output", path=path)
     try:
-        return pd.read_csv(path, dtype=str, keep_default_na=False, encoding="utf-8")
+        return uncell_frame(pd.read_csv(path, dtype=str, keep_default_na=False,
+                                        encoding="utf-8"))
     except UnicodeDecodeError:
         raise InputError("is not UTF-8 text", path=path) from None
     except pd.errors.EmptyDataError:

@@ -1,0 +1,35 @@
+"""Checks on the ids of a site file (unit, component and sensor ids).
+
+Ids are keys: they join into ``unit/component`` keys, name files and rows, and are matched to
+the readings. A control character in one (a CR or an ESC sequence) would break a CSV row, a
+calendar line or a terminal, and a ``/`` in a unit or component id would let ``A/B`` + ``c``
+and ``A`` + ``B/c`` both become ``A/B/c``; both are refused where the id is read. Names (free
+text) are not refused: every writer escapes them (docs/site-file.md, "Ids and names").
+"""
+
+from __future__ import annotations
+
+from schedcheck.errors import excerpt
+
+#: the fields whose values are ids (checked by :func:`id_problem`)
+ID_FIELDS = ("id", "sensor")
+
+#: joins a unit id and a component id into a component key (``AHU-1/supply``)
+KEY_SEPARATOR = "/"
+
+
+def _control(ch: str) -> bool:
+    o = ord(ch)
+    return o < 0x20 or 0x7F <= o < 0xA0 or ch in "\u2028\u2029"
+
+
+def id_problem(value: str, field: str) -> str | None:
+    """What is wrong with id ``value`` of field ``field`` (``id`` or ``sensor``), or None."""
+    if any(_control(ch) for ch in value):
+        return (f"{excerpt(value)} holds a control character (a line break, tab or escape "
+                f"code); an id must be plain text")
+    if field == "id" and KEY_SEPARATOR in value:
+        return (f"{excerpt(value)} holds {KEY_SEPARATOR!r}, which joins unit and component ids "
+                f"(AHU-1/supply), so two different pairs could give the same key; use another "
+                f"character, such as '-'")
+    return None
