@@ -47,20 +47,26 @@ def csv_uncell(value):
     return value
 
 
+def _texty(col: pd.Series) -> bool:
+    return col.dtype == object or pd.api.types.is_string_dtype(col.dtype)
+
+
 def csv_frame(frame: pd.DataFrame) -> pd.DataFrame:
     """A copy of ``frame`` with every text cell passed through :func:`csv_cell`."""
     out = frame.copy()
     for col in out.columns:
-        if out[col].dtype == object:
-            out[col] = [csv_cell(v) for v in out[col]]
+        if _texty(out[col]):
+            out[col] = pd.Series([csv_cell(v) for v in out[col]], index=out.index,
+                                 dtype=out[col].dtype)
     return out
 
 
 def uncell_frame(frame: pd.DataFrame) -> pd.DataFrame:
     """``frame`` (all text columns, as read back) with :func:`csv_uncell` applied in place."""
     for col in frame.columns:
-        if frame[col].dtype == object:
-            frame[col] = [csv_uncell(v) for v in frame[col]]
+        if _texty(frame[col]):
+            frame[col] = pd.Series([csv_uncell(v) for v in frame[col]], index=frame.index,
+                                   dtype=frame[col].dtype)
     return frame
 
 

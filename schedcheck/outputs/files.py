@@ -355,7 +355,8 @@ def findings_calendar(result: AuditResult) -> bytes:
     cal.add("prodid", f"-//schedcheck//audit findings {_version}//EN")
     cal.add("version", "2.0")
     cal.add("calscale", "GREGORIAN")
-    cal.add("name", ics_text(f"{result.site.name}: schedule findings"))   # RFC 7986 section 5.1
+    # RFC 7986 section 5.1; given as TEXT so it is escaped (the library types NAME as unknown)
+    cal.add("name", icalendar.vText(ics_text(f"{result.site.name}: schedule findings")))
     stamp = result.generated.tz_convert("UTC").to_pydatetime()
     for row in result.findings.itertuples(index=False):
         ev = icalendar.Event()
