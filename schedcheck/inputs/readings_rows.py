@@ -92,7 +92,7 @@ def _levels(rows: _Rows, levels: tuple[str, ...], n_names: int
     if absent:
         lbad = np.zeros(len(rows.raw), bool)
         for c in levels:
-            cbad = ~np.isfinite(lv[c].to_numpy()) | (lv[c].to_numpy() < 0)
+            cbad = rd.bad_levels(lv[c].to_numpy())
             lbad |= cbad & ~np.isin(rows.codes, absent.get(c, []))
     return lv, lbad, absent
 

@@ -33,3 +33,30 @@ def id_problem(value: str, field: str) -> str | None:
                 f"(AHU-1/supply), so two different pairs could give the same key; use another "
                 f"character, such as '-'")
     return None
+
+
+#: the most per kWh [currency/kWh]: far above any tariff, so that totals stay finite
+#: (common practice, no source)
+MAX_PRICE = 1e6
+
+#: the most kg CO2e per kWh [kg/kWh]: the dirtiest generation is about 1 (common practice,
+#: no source)
+MAX_CO2_PER_KWH = 100.0
+
+#: the longest time zone name [characters]; IANA names are at most about 30 (common practice,
+#: no source)
+MAX_TIMEZONE_CHARS = 64
+
+
+def timezone_problem(tz: str) -> str | None:
+    """Why ``tz`` is refused before it is looked up, or None.
+
+    ``localtime`` (and a path) names the host's zone, so results would depend on the computer;
+    a very long name is refused before the zone database is searched for it.
+    """
+    if len(tz) > MAX_TIMEZONE_CHARS:
+        return f"{excerpt(tz)} is longer than {MAX_TIMEZONE_CHARS} characters; give an IANA name"
+    if tz.lower() in ("localtime", "local") or tz.startswith(("/", ".")) or ".." in tz:
+        return (f"{excerpt(tz)} names this computer's zone, so results would depend on where "
+                "they are computed; give an IANA name such as 'Europe/Oslo'")
+    return None

@@ -17,7 +17,9 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.audit.energy import EXPONENT_RANGE
+from schedcheck.inputs.file_limits import pattern_problem
 from schedcheck.inputs.file_patterns import resolve_patterns
+from schedcheck.inputs.site_ids import MAX_CO2_PER_KWH, MAX_PRICE, timezone_problem
 from schedcheck.inputs.site_rules import (
     _COMPONENT,
     _ENERGY,
@@ -82,6 +84,9 @@ class SiteValidator(ValueReader):
         tz = self.string(s, "timezone", "site.timezone", required=True)
         if tz is None:
             return "UTC"
+        if problem := timezone_problem(tz):
+            self.err("site.timezone", problem)
+            return "UTC"
         try:
             zoneinfo.ZoneInfo(tz)
         except (zoneinfo.ZoneInfoNotFoundError, ValueError, OSError):
@@ -99,8 +104,10 @@ class SiteValidator(ValueReader):
             if not files:
                 self.err(key, "is empty: give at least one file or glob pattern")
             for i, (pat, hits) in enumerate(resolve_patterns(self.base, tuple(files)), 1):
-                if not hits and self.require_readings:
-                    k = key if len(files) == 1 else f"{key}[{i}]"
+                k = key if len(files) == 1 else f"{key}[{i}]"
+                if problem := pattern_problem(self.base, pat):
+                    self.err(k, problem)
+                elif not hits and self.require_readings:
                     where = Path(pat).expanduser()
                     where = where if where.is_absolute() else self.base / where
                     if where.is_dir():
@@ -251,11 +258,12 @@ class SiteValidator(ValueReader):
     def energy(self, e: dict) -> EnergySettings:
         lo, hi = EXPONENT_RANGE
         return EnergySettings(
-            price=self.number(e, "price", "energy.price", EnergySettings.price, lo=0.0),
+            price=self.number(e, "price", "energy.price", EnergySettings.price, lo=0.0,
+                              hi=MAX_PRICE),
             currency=self.string(e, "currency", "energy.currency",
                                  default=EnergySettings.currency) or "",
             co2_per_kwh=self.number(e, "co2_per_kwh", "energy.co2_per_kwh",
-                                    EnergySettings.co2_per_kwh, lo=0.0),
+                                    EnergySettings.co2_per_kwh, lo=0.0, hi=MAX_CO2_PER_KWH),
             exponent=self.number(e, "exponent", "energy.exponent", EnergySettings.exponent,
                                  lo=lo, hi=hi),
         )
