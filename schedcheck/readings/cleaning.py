@@ -27,7 +27,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from schedcheck.durations import format_duration
-from schedcheck.errors import excerpt
+from schedcheck.errors import EXCERPT_CHARS, excerpt
 from schedcheck.readings.timestamps import (  # noqa: F401 - re-exported: the readings rules in one place
     AMBIGUOUS,
     EMPTY,
@@ -123,7 +123,7 @@ def describe_level(raw_value, column: str) -> str | None:
     if not np.isfinite(v):
         return f"level {column} is {excerpt(text)}, not a finite number"
     if v < 0:
-        return f"level {column} is negative ({excerpt(text)})"
+        return f"level {column} is negative ({text[:EXCERPT_CHARS]})"
     if v > MAX_LEVEL:
         return (f"level {column} is {v:g}, above the plausible most of {MAX_LEVEL:g} in any "
                 "reading unit")
