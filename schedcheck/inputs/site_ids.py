@@ -60,3 +60,9 @@ def timezone_problem(tz: str) -> str | None:
         return (f"{excerpt(tz)} names this computer's zone, so results would depend on where "
                 "they are computed; give an IANA name such as 'Europe/Oslo'")
     return None
+
+
+#: the most units in one site file: a large campus has a few hundred air handling units; more
+#: belong in several site files audited with ``schedcheck portfolio`` (common practice, no
+#: source)
+MAX_UNITS = 2000

@@ -19,7 +19,7 @@ import pandas as pd
 from schedcheck.audit.energy import EXPONENT_RANGE
 from schedcheck.inputs.file_limits import pattern_problem
 from schedcheck.inputs.file_patterns import resolve_patterns
-from schedcheck.inputs.site_ids import MAX_CO2_PER_KWH, MAX_PRICE, timezone_problem
+from schedcheck.inputs.site_ids import MAX_CO2_PER_KWH, MAX_PRICE, MAX_UNITS, timezone_problem
 from schedcheck.inputs.site_rules import (
     _COMPONENT,
     _ENERGY,
@@ -275,6 +275,11 @@ class SiteValidator(ValueReader):
             return ()
         if not isinstance(raw, list) or not all(isinstance(u, dict) for u in raw):
             self.err("unit", "must be written as [[unit]] tables")
+            return ()
+        if len(raw) > MAX_UNITS:
+            self.err("unit", f"{len(raw):,} units; one site file holds at most {MAX_UNITS:,}: "
+                     "split the site into several site files and audit them with "
+                     "`schedcheck portfolio`")
             return ()
         # the site default, validated once (its problems are reported under [schedule])
         quiet = SiteValidator(self.path)

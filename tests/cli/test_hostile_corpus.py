@@ -201,6 +201,16 @@ CASES = {
     "report-wrong-types": report_folder(lambda out: (out / "summary.json").write_text(
         '{"schema": 1, "site": [], "period": 3, "components": {}}')),
 }
+def _many_units(d: Path):
+    p = write_site(d)
+    more = "".join(f'\n[[unit]]\nid = "U{i}"\n[[unit.component]]\nid = "s"\nrole = "supply_fan"\n'
+                   f'sensor = "X{i}"\npower_kw = 1\nspeed = 1\n' for i in range(10_000))
+    p.write_text(p.read_text() + more)
+    return ["check", p], "unit:"
+
+
+CASES["units-too-many"] = _many_units
+
 for _i, _c in enumerate(CONTROL):
     CASES[f"unit-control-{_i}"] = site_key(unit=f"AHU{_c}1")
     CASES[f"component-control-{_i}"] = site_key(component=f"sup{_c}ply")
