@@ -17,6 +17,7 @@ from schedcheck.errors import InputError, InputProblems
 from schedcheck.inputs.file_limits import (
     MAX_CALENDAR_BYTES,
     MAX_TZID_CHARS,
+    dense_zone_rule_line,
     long_tzid_line,
     read_regular,
 )
@@ -85,6 +86,10 @@ def read_calendar(path: str | Path) -> icalendar.Calendar:
     if tzid_line is not None:
         raise InputError(f"a TZID is longer than {MAX_TZID_CHARS} characters; time zone ids are "
                          "short names such as Europe/Oslo", path=path, line=tzid_line)
+    zone_line = dense_zone_rule_line(text)
+    if zone_line is not None:
+        raise InputError("a VTIMEZONE rule repeats more often than weekly; daylight-saving "
+                         "rules repeat yearly", path=path, line=zone_line)
     _forget_custom_zones(text)
     try:
         cals = icalendar.Calendar.from_ical(text, multiple=True)

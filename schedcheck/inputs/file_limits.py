@@ -116,3 +116,23 @@ def long_tzid_line(text: str) -> int | None:
         if len(m.group(1)) > MAX_TZID_CHARS:
             return text.count("\n", 0, m.start()) + 1
     return None
+
+
+#: the densest rule a VTIMEZONE block may use: clocks change once or twice a year, so a rule
+#: more frequent than daily only makes a calendar library generate millions of transitions
+#: (RFC 5545 section 3.6.5 describes yearly rules; the bound is common practice, no source)
+_DENSE_ZONE_RULE = re.compile(r"^RRULE:.*FREQ=(SECONDLY|MINUTELY|HOURLY|DAILY)", re.IGNORECASE)
+
+
+def dense_zone_rule_line(text: str) -> int | None:
+    """The 1-based line of the first VTIMEZONE rule more frequent than weekly, or None."""
+    inside = False
+    for n, line in enumerate(text.splitlines(), 1):
+        up = line.strip().upper()
+        if up == "BEGIN:VTIMEZONE":
+            inside = True
+        elif up == "END:VTIMEZONE":
+            inside = False
+        elif inside and _DENSE_ZONE_RULE.match(up):
+            return n
+    return None

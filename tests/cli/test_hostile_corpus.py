@@ -116,6 +116,15 @@ def report_folder(make):
     return build
 
 
+def _zone(ics: str, freq: str) -> str:
+    """``ics`` with its events read in a made-up zone whose daylight rule repeats at ``freq``."""
+    block = ("BEGIN:VTIMEZONE\r\nTZID:Foo\r\nBEGIN:DAYLIGHT\r\nDTSTART:19700101T000000\r\n"
+             f"RRULE:FREQ={freq}\r\nTZOFFSETFROM:+0000\r\nTZOFFSETTO:+0100\r\n"
+             "END:DAYLIGHT\r\nEND:VTIMEZONE\r\n")
+    return ics.replace("BEGIN:VEVENT", block + "BEGIN:VEVENT", 1).replace(
+        "TZID=Europe/Oslo", "TZID=Foo")
+
+
 CONTROL = ["\x00", "\x01", "\x07", "\x08", "\t", "\n", "\x0b", "\x0c", "\r", "\x1b[2J",
            "\x1b]0;title\x07", "\x7f", "\x85", "\x9b"]
 
@@ -160,6 +169,8 @@ CASES = {
     "cal-big": calendar(_big(33 * 1024 * 1024)),
     "cal-tzid-long": calendar(lambda p: p.write_text(
         p.read_text().replace("TZID=Europe/Oslo", "TZID=" + "Z" * 5000))),
+    "cal-zone-secondly": calendar(lambda p: p.write_text(_zone(p.read_text(), "SECONDLY"))),
+    "cal-zone-minutely": calendar(lambda p: p.write_text(_zone(p.read_text(), "MINUTELY"))),
     "cal-not-utf8": calendar(lambda p: p.write_bytes(b"BEGIN:VCALENDAR\r\nX:\xff\r\n")),
     "cal-not-ics": calendar(lambda p: p.write_text("hello\n")),
     "cal-missing": calendar(lambda p: p.unlink()),
