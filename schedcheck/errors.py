@@ -11,6 +11,36 @@ from __future__ import annotations
 from collections.abc import Iterable
 from pathlib import Path
 
+#: how many characters of a bad value an error line quotes (common practice, no source)
+EXCERPT_CHARS = 60
+
+
+def terminal_text(text: object, *, line_breaks: bool = False) -> str:
+    """``text`` with control characters (C0, DEL, C1, line separators) shown as visible escapes
+    (``\\x1b``), so text from an input file cannot move the cursor, set a window title or
+    clear a terminal; ``line_breaks`` keeps line feeds (a table cell's own line breaks)."""
+    s = str(text)
+    if s.isascii() and s.isprintable():
+        return s
+    out = []
+    for ch in s:
+        o = ord(ch)
+        if line_breaks and ch == "\n":
+            out.append(ch)
+        elif o < 0x20 or 0x7F <= o < 0xA0 or ch in "\u2028\u2029":
+            out.append(ch.encode("unicode_escape").decode("ascii"))
+        else:
+            out.append(ch)
+    return "".join(out)
+
+
+def excerpt(text: object, limit: int = EXCERPT_CHARS) -> str:
+    """A short, quoted, escaped excerpt of a bad value for an error line (at most ``limit``
+    characters of it)."""
+    s = str(text)
+    quoted = repr(s[:limit])
+    return quoted[:-1] + "..." + quoted[-1] if len(s) > limit else quoted
+
 
 class SchedcheckError(Exception):
     """Base class of every error the library raises on purpose."""

@@ -21,7 +21,7 @@ from schedcheck.cli import report as _report  # noqa: E402,F401
 from schedcheck.cli import schedule as _schedule  # noqa: E402,F401
 from schedcheck.cli import states as _states  # noqa: E402,F401
 from schedcheck.cli._app import app
-from schedcheck.errors import SchedcheckError
+from schedcheck.errors import SchedcheckError, terminal_text
 
 __all__ = ["app", "main"]
 
@@ -34,8 +34,14 @@ except ImportError:  # pragma: no cover
 _Abort = getattr(_cx, "Abort", None) or __import__("typer.exceptions").exceptions.Abort
 
 
+#: the line an interrupted command (Ctrl-C, SIGINT) ends with; exit status 130 = 128 + SIGINT
+INTERRUPTED = ("interrupted; an output folder being written was left as it was (or marked "
+               "INCOMPLETE, see docs/outputs.md)")
+
+
 def _one_line(text: str) -> str:
-    return " ".join(str(text).split())
+    """One line, control characters from input text shown as visible escapes."""
+    return terminal_text(" ".join(str(text).split()))
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -46,7 +52,7 @@ def main(argv: list[str] | None = None) -> int:
         print(e.format_message(), file=sys.stderr)
         return 2
     except _Abort:
-        print("error: aborted", file=sys.stderr)
+        print(f"error: {INTERRUPTED}", file=sys.stderr)
         return 130
     except _cx.ClickException as e:  # usage errors, bad parameters
         print(f"error: {_one_line(e.format_message())}", file=sys.stderr)
@@ -55,7 +61,7 @@ def main(argv: list[str] | None = None) -> int:
         print(f"error: {_one_line(str(e))}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
-        print("error: interrupted", file=sys.stderr)
+        print(f"error: {INTERRUPTED}", file=sys.stderr)
         return 130
     except Exception as e:  # noqa: BLE001 - the last line of defence
         if os.environ.get("SCHEDCHECK_DEBUG"):
@@ -66,4 +72,9 @@ def main(argv: list[str] | None = None) -> int:
             file=sys.stderr,
         )
         return 1
+    if rv == 130:
+        # typer turns a KeyboardInterrupt inside a command into exit code 130 with no word;
+        # no command returns 130 itself
+        print(f"error: {INTERRUPTED}", file=sys.stderr)
+        return 130
     return rv if isinstance(rv, int) else 0

@@ -9,7 +9,7 @@ from typing import Annotated
 
 import typer
 
-from schedcheck.errors import InputError
+from schedcheck.errors import InputError, terminal_text
 
 #: the SITE argument every command but ``report`` and ``demo`` takes
 SiteArg = Annotated[Path, typer.Argument(help="The site file (TOML).")]
@@ -46,3 +46,17 @@ FIRST_DATE, LAST_DATE = dt.date(1900, 1, 1), dt.date(2199, 12, 31)
 def interactive() -> bool:
     """True when stderr is a terminal (progress is shown only then)."""
     return sys.stderr.isatty()
+
+
+def make_console(width: int) -> object:
+    """A rich Console that never reads markup from text (ids and names may hold ``[/]``);
+    ``width`` columns when output is not a terminal."""
+    from rich.console import Console
+
+    return Console(width=None if sys.stdout.isatty() else width, highlight=False, markup=False)
+
+
+def add_row(table, *cells, **options) -> None:
+    """``table.add_row`` with control characters in text cells shown as visible escapes."""
+    table.add_row(*(terminal_text(c, line_breaks=True) if isinstance(c, str) else c
+                    for c in cells), **options)

@@ -9,7 +9,16 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import Excel, SiteArg, SkipBadRows, interactive, parse_date
+from schedcheck.cli._common import (
+    Excel,
+    SiteArg,
+    SkipBadRows,
+    add_row,
+    interactive,
+    make_console,
+    parse_date,
+    terminal_text,
+)
 
 
 def _progress(message: str) -> None:
@@ -24,7 +33,8 @@ def summary_table(result) -> object:
     from schedcheck.intervals import NS_PER_H
 
     cur = result.site.energy.currency
-    table = Table(title=f"{result.site.name}: {result.first_date} to {result.last_date}",
+    table = Table(title=terminal_text(f"{result.site.name}: {result.first_date} to "
+                                      f"{result.last_date}"),
                   title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False,
                   collapse_padding=True)
     keys = [c.key for c in result.components] + ["Total"]
@@ -55,10 +65,10 @@ def summary_table(result) -> object:
         missed = f"{vals[3]:.1f}" if comp.account.counts_missed else "-"
         extra = ([f"{vals[8]:.0f}", f"{vals[9]:.0f}"] if comp.thermal is not None else
                  ["-", "-"]) if thermal else []
-        table.add_row(comp.key, f"{vals[0]:.1f}", f"{vals[1]:.1f}", f"{vals[2]:.1f}", missed,
+        add_row(table, comp.key, f"{vals[0]:.1f}", f"{vals[1]:.1f}", f"{vals[2]:.1f}", missed,
                       f"{vals[4]:.1f}", f"{vals[5]:.0f}", f"{vals[6]:.0f}", str(vals[7]), *extra)
     table.add_section()
-    table.add_row("Total", *[f"{v:.1f}" for v in tot[:5]], f"{tot[5]:.0f}", f"{tot[6]:.0f}",
+    add_row(table, "Total", *[f"{v:.1f}" for v in tot[:5]], f"{tot[5]:.0f}", f"{tot[6]:.0f}",
                   str(int(tot[7])), *[f"{v:.0f}" for v in tot[8:]], style="bold")
     return table
 
@@ -106,21 +116,19 @@ def audit(
 
     Example: schedcheck audit site.toml --from 2026-03-01 --to 2026-05-31 --out audit-march
     """
-    from rich.console import Console
-
     from schedcheck.jobs.audit import audit_site
 
     d0, d1 = parse_date(first, "--from"), parse_date(last, "--to")
     result = audit_site(site, d0, d1, out=out, skip_bad_rows=skip_bad_rows,
                         progress=_progress if interactive() else None, excel=excel)
-    console = Console(width=None if sys.stdout.isatty() else 120, highlight=False)
+    console = make_console(120)
     console.print(summary_table(result))
     # the site's warnings, then each component's run-state warnings (a level that does not
     # split its readings changes every figure of that component)
     warnings = list(result.warnings) + [f"{c.key}: {w}" for c in result.components
                                         for w in c.state_warnings]
     for w in warnings[:10]:
-        console.print(f"warning: {w}", markup=False, soft_wrap=True)
+        console.print(f"warning: {terminal_text(w)}", soft_wrap=True)
     if len(warnings) > 10:
         console.print(f"... and {len(warnings) - 10} more warnings in summary.json")
     for line in headline_lines(result):

@@ -8,7 +8,7 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import SiteArg
+from schedcheck.cli._common import SiteArg, add_row, make_console, terminal_text
 
 UNMAPPED_SHOWN = 20   # unmapped sensors named on screen; the rest are counted
 
@@ -26,8 +26,9 @@ def health_table(report) -> object:
 
     site = report.site
     tz = site.timezone
-    table = Table(title=f"{site.name}: readings per sensor (times in {tz}, silences longer "
-                  f"than {format_duration(site.readings.max_gap)} are gaps)",
+    table = Table(title=terminal_text(f"{site.name}: readings per sensor (times in {tz}, silences "
+                                      f"longer than {format_duration(site.readings.max_gap)} "
+                                      "are gaps)"),
                   title_justify="left", box=box.SIMPLE_HEAD,
                   caption="Step: median time between readings. Dupl.: identical rows dropped. "
                   "Conflicts: rows at an instant already seen with other levels (averaged). "
@@ -42,7 +43,7 @@ def health_table(report) -> object:
         table.add_column(name, justify=just, no_wrap=True)
     for h in report.health:
         step = "-" if h.median_interval is None else format_duration(h.median_interval)
-        table.add_row(h.sensor, h.component or "-", _local(h.first, tz), _local(h.last, tz),
+        add_row(table, h.sensor, h.component or "-", _local(h.first, tz), _local(h.last, tz),
                       f"{h.count:,}", step, str(h.gaps), f"{h.gap_hours:.1f}",
                       str(h.duplicates_exact), str(h.duplicates_conflicting),
                       str(h.out_of_order), str(h.ambiguous_dropped), str(h.bad_rows))
@@ -61,8 +62,6 @@ def check(
 
     Example: schedcheck check site.toml
     """
-    from rich.console import Console
-
     from schedcheck.cli._common import interactive
     from schedcheck.jobs.check import check_site
 
@@ -71,7 +70,7 @@ def check(
 
     report = check_site(site, skip_bad_rows=skip_bad_rows,
                         progress=say if interactive() else None)
-    out = Console(width=None if sys.stdout.isatty() else 200, highlight=False)
+    out = make_console(200)
     if report.site is not None:
         s = report.site
         comps = len(s.components)
@@ -93,9 +92,9 @@ def check(
     for note in report.notes:
         out.print(f"note: {note}", markup=False)
     for w in report.warnings:
-        print(f"warning: {' '.join(w.split())}", file=sys.stderr)
+        print(f"warning: {terminal_text(' '.join(w.split()))}", file=sys.stderr)
     for p in report.problems:
-        print(f"error: {' '.join(str(p).split())}", file=sys.stderr)
+        print(f"error: {terminal_text(' '.join(str(p).split()))}", file=sys.stderr)
     n = len(report.problems)
     if n:
         print(f"{n} problem{'s' if n > 1 else ''} found in the inputs of {site}", file=sys.stderr)

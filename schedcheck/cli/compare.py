@@ -8,7 +8,15 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import SiteArg, SkipBadRows, interactive, parse_date
+from schedcheck.cli._common import (
+    SiteArg,
+    SkipBadRows,
+    add_row,
+    interactive,
+    make_console,
+    parse_date,
+    terminal_text,
+)
 from schedcheck.errors import InputError
 
 FORMATS = ("table", "json")
@@ -76,13 +84,13 @@ def compare_table(result) -> object:
     for c in result.components:
         cid = c.id + (f"*{marks[c.id]}" if c.id in marks else "")
         if not c.figures:
-            table.add_row(cid, "-", "-", "-", "-", "not enough data", "-")
+            add_row(table, cid, "-", "-", "-", "-", "not enough data", "-")
             continue
         off = c.figures["off_schedule_h_per_day"]
         kwh = c.figures["kwh_per_day"]
         missed = c.figures.get("missed_h_per_day")
         lo, hi = off.ci95
-        table.add_row(
+        add_row(table,
             cid, f"{off.before_mean:.1f} to\n{off.after_mean:.1f}",
             f"{_signed(off.difference)}\n{_interval(lo, hi)}",
             f"{kwh.before_mean:.1f} to\n{kwh.after_mean:.1f}",
@@ -187,8 +195,6 @@ def compare(
 
     Example: schedcheck compare site.toml --change 2026-04-20 --before 28 --after 28
     """
-    from rich.console import Console
-
     from schedcheck.jobs.compare import compare_site
     from schedcheck.outputs.compare_json import compare_json_text
 
@@ -200,12 +206,12 @@ def compare(
     if fmt == "json":
         sys.stdout.write(compare_json_text(result))
         return 0
-    console = Console(width=None if sys.stdout.isatty() else 160, highlight=False)
+    console = make_console(160)
     console.print(compare_table(result))
     for line in note_lines(result) + _advice(result):
         console.print(line, markup=False, soft_wrap=True)
     for w in result.warnings[:10]:
-        console.print(f"warning: {w}", markup=False, soft_wrap=True)
+        console.print(f"warning: {terminal_text(w)}", soft_wrap=True)
     if len(result.warnings) > 10:
         console.print(f"... and {len(result.warnings) - 10} more warnings (--format json)",
                       markup=False)

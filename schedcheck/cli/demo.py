@@ -2,13 +2,13 @@
 
 from __future__ import annotations
 
-import sys
 from pathlib import Path
 from typing import Annotated
 
 import typer
 
 from schedcheck.cli._app import app
+from schedcheck.cli._common import add_row, make_console
 from schedcheck.demo.defaults import DEFAULT_MONTHS, DEFAULT_SEED, MAX_MONTHS
 
 
@@ -32,7 +32,7 @@ def _faults_table(result) -> object:
     for (_unit, kind), fs in groups.items():
         dates = fs[0].dates
         shown = ", ".join(dates) if len(dates) <= 4 else f"{dates[0]} .. {dates[-1]} ({len(dates)})"
-        table.add_row(", ".join(f.component for f in fs), kind, shown,
+        add_row(table, ", ".join(f.component for f in fs), kind, shown,
                       " / ".join(f"{hours.get((f.component, f.kind), f.hours):.1f}" for f in fs))
     return table
 
@@ -60,11 +60,9 @@ def demo(
 
     Example: schedcheck demo my-demo --seed 7
     """
-    from rich.console import Console
-
     from schedcheck.jobs.demo import make_demo
 
-    out = Console(width=None if sys.stdout.isatty() else 120, highlight=False)
+    out = make_console(120)
     result = make_demo(folder, seed=seed, months=months)
     d = result.demo
     out.print(f"Wrote an invented demo site to {result.folder} ({len(result.files)} files, "

@@ -11,7 +11,7 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import Excel, SiteArg, parse_date
+from schedcheck.cli._common import Excel, SiteArg, add_row, make_console, parse_date, terminal_text
 from schedcheck.errors import InputError
 
 FORMATS = ("table", "json", "csv")
@@ -51,19 +51,19 @@ def schedule_table(result, records: list[dict]) -> object:
 
     title = (f"{result.site.name}: intended schedule {result.first} to {result.last} "
              f"({result.site.timezone} local time)")
-    table = Table(title=title, title_justify="left")
+    table = Table(title=terminal_text(title), title_justify="left")
     for head in ("Unit", "Date", "Day", "Kind", "Start", "End", "Source"):
         table.add_column(head)
     styles = {"occupied": "bold", "allowance": "", "allowed": "dim", "holiday": "italic"}
     for rec in records:
         if rec["kind"] == "holiday":
             day = dt.date.fromisoformat(rec["date"])
-            table.add_row(rec["unit"], rec["date"], day.strftime("%a"), "day off", "", "",
+            add_row(table, rec["unit"], rec["date"], day.strftime("%a"), "day off", "", "",
                           rec["name"], style=styles["holiday"])
             continue
         s, e = dt.datetime.fromisoformat(rec["start"]), dt.datetime.fromisoformat(rec["end"])
         end = e.strftime("%H:%M") if e.date() == s.date() else e.strftime("%Y-%m-%d %H:%M")
-        table.add_row(rec["unit"], s.date().isoformat(), s.strftime("%a"), rec["kind"],
+        add_row(table, rec["unit"], s.date().isoformat(), s.strftime("%a"), rec["kind"],
                       s.strftime("%H:%M"), end, rec["source"], style=styles[rec["kind"]])
     return table
 
@@ -71,6 +71,7 @@ def schedule_table(result, records: list[dict]) -> object:
 def schedule_csv(records: list[dict]) -> str:
     """CSV text with the JSON fields, one row per record (empty cells where a field is absent),
     and the local date and time of each start and end beside it."""
+    from schedcheck.outputs.cells import csv_cell
     from schedcheck.outputs.instants import local_parts
 
     buf = io.StringIO()
@@ -80,7 +81,7 @@ def schedule_csv(records: list[dict]) -> str:
         row = {k: rec.get(k, "") for k in CSV_FIELDS}
         for end in ("start", "end"):
             row[f"{end}_date"], row[f"{end}_time"] = local_parts(row[end])
-        writer.writerow(row)
+        writer.writerow({k: csv_cell(v) for k, v in row.items()})
     return buf.getvalue()
 
 
@@ -113,7 +114,7 @@ def schedule(
     d0, d1 = parse_date(first, "--from"), parse_date(last, "--to")
     result = site_schedule(site, unit=unit, first=d0, last=d1)
     for w in result.warnings:
-        print(f"warning: {w}", file=sys.stderr)
+        print(f"warning: {terminal_text(w)}", file=sys.stderr)
     records = schedule_records(result)
     if fmt == "json":
         sys.stdout.write(json.dumps(records, indent=2, ensure_ascii=False) + "\n")
@@ -127,9 +128,7 @@ def schedule(
             raw.write(text.encode(csv_encoding(excel=excel)))
             raw.flush()
     else:
-        from rich.console import Console
-
-        console = Console(width=None if sys.stdout.isatty() else 120, highlight=False)
+        console = make_console(120)
         if result.window_note != "given":
             print(f"window: {result.first} to {result.last} ({result.window_note})",
                   file=sys.stderr)

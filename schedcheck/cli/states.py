@@ -10,7 +10,14 @@ from typing import Annotated
 import typer
 
 from schedcheck.cli._app import app
-from schedcheck.cli._common import SiteArg, SkipBadRows, parse_date
+from schedcheck.cli._common import (
+    SiteArg,
+    SkipBadRows,
+    add_row,
+    make_console,
+    parse_date,
+    terminal_text,
+)
 from schedcheck.errors import InputError
 
 FORMATS = ("table", "json")
@@ -33,8 +40,8 @@ def states_table(result) -> object:
     unit = result.site.readings.unit
     title = (f"{result.site.name}: run states {result.first} to {result.last} "
              f"({result.site.timezone} local dates)")
-    table = Table(title=title, title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False,
-                  show_edge=False)
+    table = Table(title=terminal_text(title), title_justify="left", box=box.SIMPLE_HEAD,
+                  pad_edge=False, show_edge=False)
     from rich.text import Text
 
     for head, just in (("Component", "left"), (Text(f"Level\n[{unit}]"), "right"),
@@ -44,7 +51,7 @@ def states_table(result) -> object:
     # a Text header: "[mm/s]" would otherwise be read as console markup and vanish
     for i, r in enumerate(result.records, 1):
         share = "-" if r["running_share"] is None else f"{r['running_share']:.1%}"
-        table.add_row(r["component"], _cell(r["level"], ".3g"), r["source"],
+        add_row(table, r["component"], _cell(r["level"], ".3g"), r["source"],
                       separation_text(r["separation"], SEPARATION_CAP),
                       r.get("confidence") or "-", share,
                       _cell(r["starts_per_day"], ".1f"), f"*{i}")
@@ -106,13 +113,11 @@ def states(
     d0, d1 = parse_date(first, "--from"), parse_date(last, "--to")
     result = site_states(site, d0, d1, skip_bad_rows=skip_bad_rows, plot_dir=plot)
     for w in result.warnings:
-        print(f"warning: {w}", file=sys.stderr)
+        print(f"warning: {terminal_text(w)}", file=sys.stderr)
     if fmt == "json":
         sys.stdout.write(json.dumps(result.records, indent=2, ensure_ascii=False) + "\n")
     else:
-        from rich.console import Console
-
-        console = Console(width=None if sys.stdout.isatty() else 140, highlight=False)
+        console = make_console(140)
         console.print(states_table(result))
         for line in reason_lines(result):
             console.print(line, markup=False)

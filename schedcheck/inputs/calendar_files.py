@@ -14,6 +14,13 @@ from pathlib import Path
 import icalendar
 
 from schedcheck.errors import InputError, InputProblems
+from schedcheck.inputs.file_limits import (
+    MAX_CALENDAR_BYTES,
+    MAX_TZID_CHARS,
+    dense_zone_rule_line,
+    long_tzid_line,
+    read_regular,
+)
 from schedcheck.schedule.calendars import expand_calendar
 from schedcheck.schedule.guards import check_calendar
 
@@ -61,7 +68,7 @@ def read_calendar(path: str | Path) -> icalendar.Calendar:
     """
     path = Path(path)
     try:
-        data = path.read_bytes()
+        data = read_regular(path, MAX_CALENDAR_BYTES, "calendar file")
     except FileNotFoundError:
         raise InputError("calendar file not found", path=path) from None
     except OSError as exc:
@@ -75,6 +82,14 @@ def read_calendar(path: str | Path) -> icalendar.Calendar:
                          line=line) from None
     if "BEGIN:VCALENDAR" not in text.upper():
         raise InputError("is not an iCalendar file (no BEGIN:VCALENDAR)", path=path)
+    tzid_line = long_tzid_line(text)
+    if tzid_line is not None:
+        raise InputError(f"a TZID is longer than {MAX_TZID_CHARS} characters; time zone ids are "
+                         "short names such as Europe/Oslo", path=path, line=tzid_line)
+    zone_line = dense_zone_rule_line(text)
+    if zone_line is not None:
+        raise InputError("a VTIMEZONE rule repeats more often than weekly; daylight-saving "
+                         "rules repeat yearly", path=path, line=zone_line)
     _forget_custom_zones(text)
     try:
         cals = icalendar.Calendar.from_ical(text, multiple=True)

@@ -17,6 +17,7 @@ import numpy as np
 import pandas as pd
 
 from schedcheck.errors import InputError, InputProblems, NoReadingsError
+from schedcheck.inputs.file_limits import special_files
 from schedcheck.inputs.file_patterns import resolve_patterns
 from schedcheck.inputs.readings_rows import Collector
 from schedcheck.readings import cleaning as rd
@@ -421,6 +422,8 @@ def _assemble(col: Collector, site: Site, files, start, end, skip: bool,
         skipped = (f"skipped {col.bad_total:,} bad row{'s' if col.bad_total > 1 else ''} "
                    f"(first: {first})")
         warns.append(skipped)
+    warns.extend(f"{f}: matched by readings.files but not a regular file (a device, pipe or "
+                 "socket); not read" for f in special_files(site.base_dir, site.readings.files))
     return rd.Readings(by_sensor=by_sensor, health=health, unconfigured=dict(col.unconfigured),
                        bad_rows_count=col.bad_total,
                        bad_rows_examples=[str(e) for e in col.bad_examples],

@@ -102,7 +102,7 @@ def _levels(rows: _Rows, levels: tuple[str, ...], n_names: int
             v = lv[c].to_numpy()
             lbad |= (v < 0) | np.isinf(v)
         for c in levels:
-            cbad = ~np.isfinite(lv[c].to_numpy()) | (lv[c].to_numpy() < 0)
+            cbad = rd.bad_levels(lv[c].to_numpy())
             lbad |= cbad & ~np.isin(rows.codes, absent.get(c, []))
     return lv, lbad, absent
 

@@ -18,6 +18,7 @@ import tomllib
 from pathlib import Path
 
 from schedcheck.errors import InputError, InputProblems
+from schedcheck.inputs.file_limits import MAX_SITE_FILE_BYTES, read_regular
 from schedcheck.inputs.site_sections import SiteValidator
 from schedcheck.site import Site
 
@@ -48,6 +49,10 @@ def load_site(path: str | Path, *, require_readings: bool = True) -> Site:
     text = _read_text(path)
     try:
         data = tomllib.loads(text)
+    except RecursionError:
+        # tables or arrays nested thousands deep: no site file needs more than a few levels
+        raise InputProblems([InputError("not valid TOML: nested too deeply", path=path)]
+                            ) from None
     except tomllib.TOMLDecodeError as e:
         msg = str(e)
         m = re.search(r"\(at line (\d+), column \d+\)", msg)
@@ -68,7 +73,9 @@ def load_site(path: str | Path, *, require_readings: bool = True) -> Site:
 def _read_text(path: Path) -> str:
     """The site file's text; a missing, unreadable or non-UTF-8 file raises InputProblems."""
     try:
-        raw = path.read_bytes()
+        raw = read_regular(path, MAX_SITE_FILE_BYTES, "site file")
+    except InputError as e:
+        raise InputProblems([e]) from None
     except FileNotFoundError:
         raise InputProblems([InputError("the site file does not exist", path=path)]) from None
     except IsADirectoryError:

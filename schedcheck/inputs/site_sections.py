@@ -16,8 +16,10 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.audit.energy import EXPONENT_RANGE
+from schedcheck.inputs.file_limits import pattern_problem
 from schedcheck.inputs.file_patterns import resolve_patterns
 from schedcheck.inputs.site_holidays import HolidaySections
+from schedcheck.inputs.site_ids import MAX_CO2_PER_KWH, MAX_PRICE, MAX_UNITS, timezone_problem
 from schedcheck.inputs.site_outdoor import (
     cooling_settings,
     heating_settings,
@@ -98,6 +100,9 @@ class SiteValidator(HolidaySections):
         tz = self.string(s, "timezone", "site.timezone", required=True)
         if tz is None:
             return "UTC"
+        if problem := timezone_problem(tz):
+            self.err("site.timezone", problem)
+            return "UTC"
         try:
             zoneinfo.ZoneInfo(tz)
         except (zoneinfo.ZoneInfoNotFoundError, ValueError, OSError):
@@ -115,8 +120,10 @@ class SiteValidator(HolidaySections):
             if not files:
                 self.err(key, "is empty: give at least one file or glob pattern")
             for i, (pat, hits) in enumerate(resolve_patterns(self.base, tuple(files)), 1):
-                if not hits and self.require_readings:
-                    k = key if len(files) == 1 else f"{key}[{i}]"
+                k = key if len(files) == 1 else f"{key}[{i}]"
+                if problem := pattern_problem(self.base, pat):
+                    self.err(k, problem)
+                elif not hits and self.require_readings:
                     where = Path(pat).expanduser()
                     where = where if where.is_absolute() else self.base / where
                     if where.is_dir():
@@ -217,11 +224,12 @@ class SiteValidator(HolidaySections):
     def energy(self, e: dict) -> EnergySettings:
         lo, hi = EXPONENT_RANGE
         return EnergySettings(
-            price=self.number(e, "price", "energy.price", EnergySettings.price, lo=0.0),
+            price=self.number(e, "price", "energy.price", EnergySettings.price, lo=0.0,
+                              hi=MAX_PRICE),
             currency=self.string(e, "currency", "energy.currency",
                                  default=EnergySettings.currency) or "",
             co2_per_kwh=self.number(e, "co2_per_kwh", "energy.co2_per_kwh",
-                                    EnergySettings.co2_per_kwh, lo=0.0),
+                                    EnergySettings.co2_per_kwh, lo=0.0, hi=MAX_CO2_PER_KWH),
             exponent=self.number(e, "exponent", "energy.exponent", EnergySettings.exponent,
                                  lo=lo, hi=hi),
         )
@@ -233,6 +241,11 @@ class SiteValidator(HolidaySections):
             return ()
         if not isinstance(raw, list) or not all(isinstance(u, dict) for u in raw):
             self.err("unit", "must be written as [[unit]] tables")
+            return ()
+        if len(raw) > MAX_UNITS:
+            self.err("unit", f"{len(raw):,} units; one site file holds at most {MAX_UNITS:,}: "
+                     "split the site into several site files and audit them with "
+                     "`schedcheck portfolio`")
             return ()
         # the site default, validated once (its problems are reported under [schedule])
         quiet = SiteValidator(self.path)

@@ -15,6 +15,7 @@ import pandas as pd
 
 from schedcheck.durations import format_duration, parse_duration
 from schedcheck.errors import InputError
+from schedcheck.inputs.site_ids import ID_FIELDS, id_problem
 from schedcheck.inputs.toml_lines import key_lines
 
 HINT_LIST = 12   # allowed values listed in a message at most
@@ -102,7 +103,10 @@ class ValueReader:
         if choices is not None and x not in choices:
             self.err(key, f"{x!r} is not allowed" + hint(x, choices))
             return default
-        return x.strip() if name != "sensor" else x
+        if name in ID_FIELDS and (problem := id_problem(x.strip(), name)):
+            self.err(key, problem)
+            return default
+        return x.strip()
 
     def number(self, t, name, key, default=None, required=False, lo=None, hi=None,
                lo_open=False, integer=False):

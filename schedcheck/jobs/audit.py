@@ -191,6 +191,7 @@ def audit_site(
     """
     from schedcheck.jobs.common import open_site
     from schedcheck.outputs.files import write_audit_files
+    from schedcheck.outputs.folder import output_folder
 
     say = progress or (lambda _msg: None)
     site = open_site(site_path)
@@ -202,12 +203,14 @@ def audit_site(
     say("hashing the input files")
     prov = provenance(site)
     try:
-        result.files = write_audit_files(result, outdir, provenance=prov,
-                                         levels=result.levels, excel=excel)
-        result.files["report.html"] = write_report_file(outdir)
+        with output_folder(outdir, complete="summary.json") as stage:
+            staged = write_audit_files(result, stage.path, provenance=prov,
+                                       levels=result.levels, excel=excel)
+            staged["report.html"] = write_report_file(stage.path)
     except OSError as e:
         raise InputError(f"cannot write the audit files here ({e.strerror or e})",
                          path=outdir) from None
+    result.files = {name: outdir / path.name for name, path in staged.items()}
     result.outdir = outdir
     return result
 

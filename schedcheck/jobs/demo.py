@@ -48,12 +48,15 @@ def make_demo(folder: str | Path = "schedcheck-demo", seed: int = DEFAULT_SEED,
     DemoResult
     """
     from schedcheck.outputs.demo_files import check_demo_folder, write_demo
+    from schedcheck.outputs.folder import output_folder
 
     folder = Path(folder)
     check_demo_folder(folder)
     demo = build_demo(seed=seed, months=months)
     readings = demo_readings(demo)
-    files = write_demo(demo, readings, folder)
+    with output_folder(folder, complete="site.toml") as stage:
+        staged = write_demo(demo, readings, stage.path)
+    files = sorted(folder / p.relative_to(stage.path) for p in staged)
     return DemoResult(folder=folder, files=files, site_file=folder / "site.toml", demo=demo,
                       readings_rows=sum(len(f) for f in readings.values()),
                       audited_hours=audited_fault_hours(folder / "site.toml", demo))

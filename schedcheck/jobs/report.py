@@ -4,11 +4,16 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from schedcheck.outputs.report import write_report
+from schedcheck.outputs.folder import output_folder
+from schedcheck.outputs.report import render_report
+from schedcheck.outputs.saved import read_saved_audit
 
 
 def rerender_report(outdir: str | Path) -> Path:
     """Re-render ``outdir/report.html`` from the audit files saved in ``outdir``.
+
+    The page is staged and moved into place (:func:`schedcheck.outputs.folder.output_folder`),
+    so a link planted as ``report.html`` is replaced, never written through.
 
     Parameters
     ----------
@@ -25,4 +30,8 @@ def rerender_report(outdir: str | Path) -> Path:
     InputError
         The folder or one of its files is missing or malformed (the message names the file).
     """
-    return write_report(Path(outdir))
+    outdir = Path(outdir)
+    html = render_report(read_saved_audit(outdir))
+    with output_folder(outdir, complete=()) as stage:
+        path = stage.write_text("report.html", html)
+    return path

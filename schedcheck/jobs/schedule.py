@@ -7,6 +7,7 @@ cannot be read), the current local calendar month.
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -70,14 +71,29 @@ def unit_schedules(site: Site, first: dt.date, last: dt.date,
         return out
 
     result: dict[str, UnitSchedule] = {}
+    shared: dict[object, UnitSchedule] = {}    # units with the same schedule settings
     for u in units:
         s = u.schedule
+        try:
+            done = shared.get(s)
+        except TypeError:                      # settings that cannot be a key: no sharing
+            done = None
+        if done is not None:
+            result[u.id] = dataclasses.replace(done, unit=u.id,
+                                               intervals=done.intervals.copy(),
+                                               days_off=done.days_off.copy(),
+                                               warnings=list(done.warnings))
+            continue
         result[u.id] = expand_unit_schedule(
             cals(s.occupied), cals(s.allowed), site.timezone, first, last,
             early_start=s.early_start, late_stop=s.late_stop, holidays=site.holidays,
             unit=u.id, site_path=site.path, allowed_limits=s.allowed_limits,
             standby_speed=s.standby_speed,
         )
+        try:
+            shared[s] = result[u.id]
+        except TypeError:
+            pass
     return result
 
 

@@ -21,6 +21,7 @@ from schedcheck.audit.accounting import FIGURES
 from schedcheck.audit.run import AuditResult
 from schedcheck.audit.speed_limits import hours_by_speed
 from schedcheck.intervals import NS_PER_H, NS_PER_S, from_ns, to_ns
+from schedcheck.outputs.cells import csv_frame
 from schedcheck.outputs.findings_files import (  # noqa: F401 - re-exported
     FINDINGS_COLUMNS,
     KIND_WORDS,
@@ -345,9 +346,10 @@ def schedule_frame(result: AuditResult) -> pd.DataFrame:
 
 def _write_csv(frame: pd.DataFrame, path: Path, *, excel: bool = False,
                instants: tuple[str, ...] = ("start", "end")) -> Path:
-    """Write ``frame`` with local date and time columns beside its ISO ``instants``."""
-    with_local_columns(frame, instants).to_csv(path, index=False, lineterminator="\n",
-                                               encoding=csv_encoding(excel=excel))
+    """Write ``frame`` with local date and time columns beside its ISO ``instants``, cells
+    from input text neutralised for spreadsheets (:func:`schedcheck.outputs.cells.csv_frame`)."""
+    csv_frame(with_local_columns(frame, instants)).to_csv(
+        path, index=False, lineterminator="\n", encoding=csv_encoding(excel=excel))
     return path
 
 

@@ -12,6 +12,7 @@ import pandas as pd
 
 from schedcheck import __version__ as _version
 from schedcheck.audit.run import AuditResult
+from schedcheck.outputs.cells import ics_text
 from schedcheck.outputs.instants import to_second
 from schedcheck.outputs.thermal_fields import FINDINGS_THERMAL, finding_fields, prices_outdoor_air
 from schedcheck.outputs.values import (
@@ -111,9 +112,10 @@ def findings_calendar(result: AuditResult) -> bytes:
     cal.add("prodid", f"-//schedcheck//audit findings {_version}//EN")
     cal.add("version", "2.0")
     cal.add("calscale", "GREGORIAN")
-    title = f"{result.site.name}: schedule findings"
-    cal.add("name", title)              # RFC 7986 section 5.1
-    cal.add("x-wr-calname", title)      # the same name for calendar programs without RFC 7986
+    title = ics_text(f"{result.site.name}: schedule findings")
+    # RFC 7986 section 5.1; given as TEXT so it is escaped (the library types NAME as unknown)
+    cal.add("name", icalendar.vText(title))
+    cal.add("x-wr-calname", icalendar.vText(title))   # for calendar programs without RFC 7986
     stamp = result.generated.tz_convert("UTC").to_pydatetime()
     for row in result.findings.itertuples(index=False):
         ev = icalendar.Event()
@@ -121,12 +123,12 @@ def findings_calendar(result: AuditResult) -> bytes:
         ev.add("dtstamp", stamp)
         ev.add("dtstart", to_second(pd.Timestamp(row.start).tz_convert("UTC")).to_pydatetime())
         ev.add("dtend", to_second(pd.Timestamp(row.end).tz_convert("UTC")).to_pydatetime())
-        ev.add("location", result.site.name)
+        ev.add("location", ics_text(result.site.name))
         words = KIND_WORDS.get(row.kind, str(row.kind).replace("_", " "))
         who = row.unit if len(row.components) > 1 else row.component
-        ev.add("summary", f"{who}: {words}, {row.hours:.1f} h")
-        ev.add("description", str(row.detail))
-        ev.add("categories", [str(row.kind)])
+        ev.add("summary", ics_text(f"{who}: {words}, {row.hours:.1f} h"))
+        ev.add("description", ics_text(row.detail))
+        ev.add("categories", [ics_text(row.kind)])
         ev.add("transp", "TRANSPARENT")
         cal.add_component(ev)
     if len(result.findings) == 0:
@@ -136,8 +138,8 @@ def findings_calendar(result: AuditResult) -> bytes:
         note.add("uid", finding_uid(result.site.name, f"no-findings-{result.first_date}"))
         note.add("dtstamp", stamp)
         note.add("dtstart", result.first_date)
-        note.add("summary", f"{result.site.name}: no findings from {result.first_date} to "
-                            f"{result.last_date}")
+        note.add("summary", ics_text(f"{result.site.name}: no findings from "
+                                     f"{result.first_date} to {result.last_date}"))
         cal.add_component(note)
     return cal.to_ical()
 

@@ -21,6 +21,7 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.errors import InputError
+from schedcheck.outputs.cells import uncell_frame
 from schedcheck.outputs.levels_file import LEVELS_FILE, read_levels
 from schedcheck.outputs.schema import SUMMARY_SCHEMA as SCHEMA
 from schedcheck.runstate.states import STATES
@@ -353,7 +354,8 @@ def _load_csv(path: Path) -> pd.DataFrame:
         raise InputError("missing; this folder holds no complete audit output", path=path)
     try:
         # utf-8-sig also reads a file written with --excel (a byte-order mark first)
-        return pd.read_csv(path, dtype=str, keep_default_na=False, encoding="utf-8-sig")
+        return uncell_frame(pd.read_csv(path, dtype=str, keep_default_na=False,
+                                        encoding="utf-8-sig"))
     except UnicodeDecodeError:
         raise InputError("is not UTF-8 text", path=path) from None
     except pd.errors.EmptyDataError:

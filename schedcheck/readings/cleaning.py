@@ -27,6 +27,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from schedcheck.durations import format_duration
+from schedcheck.errors import EXCERPT_CHARS, excerpt
 from schedcheck.readings.timestamps import (  # noqa: F401 - re-exported: the readings rules in one place
     AMBIGUOUS,
     EMPTY,
@@ -36,7 +37,9 @@ from schedcheck.readings.timestamps import (  # noqa: F401 - re-exported: the re
     NAT,
     NONEXISTENT,
     OK,
+    OUT_OF_RANGE,
     UNPARSEABLE,
+    YEAR_RANGE,
     TimeParse,
     arrow_text,
     describe_time,
@@ -61,13 +64,31 @@ FOLD_MARGIN_S = 1800.0
 # of the fold (common practice, no source).
 FOLD_MIN_NEAR = 6
 
+#: the largest level accepted [reading unit]: far above any machine's vibration in any usual
+#: unit (mm/s, in/s, g, m/s2, um), and small enough that sums of squares stay finite
+#: (common practice, no source)
+MAX_LEVEL = 1e6
+
+
+def bad_levels(v: np.ndarray) -> np.ndarray:
+    """True where a level is not a finite number from 0 to :data:`MAX_LEVEL`."""
+    with np.errstate(invalid="ignore"):
+        return ~np.isfinite(v) | (v < 0) | (v > MAX_LEVEL)
+
+
 def level_values(raw: pd.DataFrame, columns: tuple[str, ...]) -> tuple[pd.DataFrame, np.ndarray]:
-    """Levels as float64 and a per-row flag: True where any level is not a finite number >= 0."""
+    """Levels as float64 and a per-row flag: True where any level is not a finite number from 0
+    to :data:`MAX_LEVEL`. A column of true/false values or of timestamps (a Parquet file's
+    types) holds no levels: every row of it is bad."""
     out = {}
     bad = np.zeros(len(raw), bool)
     for c in columns:
         col = raw[c]
-        if pd.api.types.is_numeric_dtype(col):
+        if (pd.api.types.is_bool_dtype(col) or pd.api.types.is_datetime64_any_dtype(col)
+                or isinstance(col.dtype, pd.PeriodDtype)
+                or pd.api.types.is_timedelta64_dtype(col)):
+            v = np.full(len(col), np.nan)
+        elif pd.api.types.is_numeric_dtype(col):
             v = col.to_numpy(dtype=float, na_value=np.nan)
         else:
             try:  # fast path: Arrow's number parser, all or nothing; empty cells are null
@@ -77,13 +98,17 @@ def level_values(raw: pd.DataFrame, columns: tuple[str, ...]) -> tuple[pd.DataFr
                     zero_copy_only=False)
             except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
                 v = pd.to_numeric(col, errors="coerce").to_numpy(dtype=float, na_value=np.nan)
-        bad |= ~np.isfinite(v) | (v < 0)
+        bad |= bad_levels(v)
         out[c] = v
     return pd.DataFrame(out, index=raw.index), bad
 
 
 def describe_level(raw_value, column: str) -> str | None:
     """Why one raw level is not acceptable (None if it is)."""
+    if isinstance(raw_value, (bool, np.bool_)):
+        return f"level {column} is a true/false value, not a number"
+    if isinstance(raw_value, (pd.Timestamp, np.datetime64)) or hasattr(raw_value, "isoformat"):
+        return f"level {column} is a date or time, not a number"
     if raw_value is None or (not isinstance(raw_value, str) and pd.isna(raw_value)):
         return f"level {column} is missing or NaN"
     text = str(raw_value).strip()
@@ -92,13 +117,16 @@ def describe_level(raw_value, column: str) -> str | None:
     try:
         v = float(text)
     except ValueError:
-        return f"level {column} is {text!r}, not a number"
+        return f"level {column} is {excerpt(text)}, not a number"
     if np.isnan(v):
         return f"level {column} is NaN, not a number"
     if not np.isfinite(v):
-        return f"level {column} is {text!r}, not a finite number"
+        return f"level {column} is {excerpt(text)}, not a finite number"
     if v < 0:
-        return f"level {column} is negative ({text})"
+        return f"level {column} is negative ({text[:EXCERPT_CHARS]})"
+    if v > MAX_LEVEL:
+        return (f"level {column} is {v:g}, above the plausible most of {MAX_LEVEL:g} in any "
+                "reading unit")
     return None
 
 

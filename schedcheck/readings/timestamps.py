@@ -13,6 +13,8 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
+from schedcheck.errors import excerpt
+
 NAT = np.iinfo(np.int64).min
 
 # Epoch seconds outside 2000-01-01 .. 2100-01-01 are refused: they are almost always
@@ -20,7 +22,15 @@ NAT = np.iinfo(np.int64).min
 EPOCH_RANGE = (946_684_800, 4_102_444_800)
 
 # Row status codes from parse_timestamps.
-OK, EMPTY, UNPARSEABLE, NAIVE, NONEXISTENT, AMBIGUOUS, EPOCH_RANGE_BAD = range(7)
+OK, EMPTY, UNPARSEABLE, NAIVE, NONEXISTENT, AMBIGUOUS, EPOCH_RANGE_BAD, OUT_OF_RANGE = range(8)
+
+#: readings dated outside these years [first, last) are refused as bad rows: no vibration
+#: sensor logged before 1970, and instants past 2262 do not fit the nanosecond clock
+#: (common practice, no source)
+YEAR_RANGE = (1970, 2200)
+_RANGE_NS = (pd.Timestamp(f"{YEAR_RANGE[0]}-01-01", tz="UTC").value,
+             pd.Timestamp(f"{YEAR_RANGE[1]}-01-01", tz="UTC").value)
+_OUT_NS = NAT + 1      # marks a parsed instant outside YEAR_RANGE inside this module
 
 _OFFSET_RE = (r"^\s*\d{4}-\d{2}-\d{2}[T ]\d{1,2}:\d{2}(?::\d{2}(?:[.,]\d+)?)?\s*"
               r"(?:[zZ]|UTC|[+-]\d{2}(?::?\d{2})?)\s*$")
@@ -62,17 +72,19 @@ def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str) -> T
     late = np.full(n, NAT, dtype=np.int64)
     wall = np.full(n, NAT, dtype=np.int64)
     s = values.reset_index(drop=True)
+    if isinstance(s.dtype, pd.DatetimeTZDtype) or pd.api.types.is_datetime64_dtype(s.dtype):
+        s = _clip_typed(s, status)
     if isinstance(s.dtype, pd.DatetimeTZDtype):
         t = s.dt.tz_convert("UTC").dt.as_unit("ns")
         utc[:] = t.array.asi8
-        status[t.isna().to_numpy()] = EMPTY
-        return TimeParse(utc, status, early, late, wall)
+        status[t.isna().to_numpy() & (status == OK)] = EMPTY
+        return _ranged(TimeParse(utc, status, early, late, wall))
     if pd.api.types.is_datetime64_dtype(s.dtype):
         naive = s.dt.as_unit("ns")
-        status[naive.isna().to_numpy()] = EMPTY
+        status[naive.isna().to_numpy() & (status == OK)] = EMPTY
         _naive(naive, np.ones(n, bool) & ~naive.isna().to_numpy(), naive_time, tz,
                utc, status, early, late, wall)
-        return TimeParse(utc, status, early, late, wall)
+        return _ranged(TimeParse(utc, status, early, late, wall))
     if pd.api.types.is_numeric_dtype(s.dtype) and not pd.api.types.is_bool_dtype(s.dtype):
         _epoch(s.astype("float64").to_numpy(), np.ones(n, bool), utc, status)
         return TimeParse(utc, status, early, late, wall)
@@ -89,22 +101,46 @@ def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str) -> T
         sub = pc.filter(text, pa.array(offset))
         sub = pc.replace_substring(pc.replace_substring(sub, "UTC", "Z"), ",", ".")
         v = _to_ns(sub, utc=True)
-        utc[offset] = v
         idx = np.flatnonzero(offset)
         status[idx[v == NAT]] = UNPARSEABLE
+        status[idx[v == _OUT_NS]] = OUT_OF_RANGE
+        utc[offset] = np.where(v == _OUT_NS, NAT, v)
     rest = ~empty & ~number & ~offset
     if rest.any():
         v = _to_ns(pc.filter(text, pa.array(rest)), utc=False)
-        bad = v == NAT
         idx = np.flatnonzero(rest)
-        status[idx[bad]] = UNPARSEABLE
+        status[idx[v == _OUT_NS]] = OUT_OF_RANGE
+        bad = (v == NAT) | (v == _OUT_NS)
+        status[idx[v == NAT]] = UNPARSEABLE
         good = rest.copy()
         good[idx[bad]] = False
         full = np.full(n, NAT, dtype=np.int64)
         full[idx] = v
         _naive(pd.Series(full.view("datetime64[ns]")), good, naive_time, tz, utc, status,
                early, late, wall)
-    return TimeParse(utc, status, early, late, wall)
+    return _ranged(TimeParse(utc, status, early, late, wall))
+
+
+def _clip_typed(s: pd.Series, status: np.ndarray) -> pd.Series:
+    """Typed timestamps outside :data:`YEAR_RANGE` -> NaT (status OUT_OF_RANGE), before any
+    conversion to nanoseconds can overflow."""
+    lo, hi = (pd.Timestamp(f"{y}-01-01") for y in YEAR_RANGE)
+    naive = s.dt.tz_convert("UTC").dt.tz_localize(None) if isinstance(
+        s.dtype, pd.DatetimeTZDtype) else s
+    out = ((naive < lo) | (naive >= hi)).to_numpy()
+    if out.any():
+        status[out] = OUT_OF_RANGE
+        s = s.where(~out)
+    return s
+
+
+def _ranged(tp: TimeParse) -> TimeParse:
+    """Instants read as OK but outside :data:`YEAR_RANGE` become OUT_OF_RANGE."""
+    ok = tp.status == OK
+    far = ok & ((tp.utc < _RANGE_NS[0]) | (tp.utc >= _RANGE_NS[1]))
+    tp.status[far] = OUT_OF_RANGE
+    tp.utc[far] = NAT
+    return tp
 
 
 def arrow_text(s: pd.Series) -> pa.Array:
@@ -131,7 +167,11 @@ def _to_ns(text: pa.Array, *, utc: bool) -> np.ndarray:
         pass
     t = pd.to_datetime(pd.Series(text.to_pylist(), dtype=object), format="ISO8601", utc=utc,
                        errors="coerce")
-    return t.dt.as_unit("ns").array.asi8.copy()
+    lo, hi = (pd.Timestamp(f"{y}-01-01", tz="UTC" if utc else None) for y in YEAR_RANGE)
+    far = ((t < lo) | (t >= hi)).to_numpy()
+    v = t.where(~far).dt.as_unit("ns").array.asi8.copy()
+    v[far] = _OUT_NS
+    return v
 
 
 def _epoch(x: np.ndarray, where: np.ndarray, utc, status) -> None:
@@ -177,15 +217,18 @@ def describe_time(raw_value, code: int, tz: str) -> str:
     if code == EMPTY:
         return "timestamp is missing"
     if code == NAIVE:
-        return f"timestamp {text!r} has no UTC offset"
+        return f"timestamp {excerpt(text)} has no UTC offset"
     if code == NONEXISTENT:
-        return (f"local time {text!r} does not exist in {tz} (the clocks skip that hour in "
+        return (f"local time {excerpt(text)} does not exist in {tz} (the clocks skip that hour in "
                 "spring), so this row cannot be right")
+    if code == OUT_OF_RANGE:
+        return (f"timestamp {excerpt(text)} is outside the years {YEAR_RANGE[0]} to "
+                f"{YEAR_RANGE[1] - 1}")
     if code == EPOCH_RANGE_BAD:
         try:
             hint = " (milliseconds? divide by 1000)" if float(text) >= EPOCH_RANGE[1] else ""
         except ValueError:
             hint = ""
-        return f"timestamp {text!r} read as epoch seconds is outside 2000-2100{hint}"
-    return (f"timestamp {text!r} is not a date and time (ISO 8601 with Z or an offset, or "
+        return f"timestamp {excerpt(text)} read as epoch seconds is outside 2000-2100{hint}"
+    return (f"timestamp {excerpt(text)} is not a date and time (ISO 8601 with Z or an offset, or "
             "epoch seconds)")
