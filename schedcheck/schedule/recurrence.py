@@ -13,6 +13,14 @@ refuses the one construct it cannot be steered around:
   weekday of each listed week, as libical does and as RFC 8984 (JSCalendar) section 4.3.3.1
   spells out for its equivalent rule; the library gives all seven days of each week (seven
   occupied days where one was meant).
+* **YEARLY with BYMONTHDAY and no BYMONTH** (nor BYWEEKNO, BYYEARDAY or BYDAY) occurs in
+  DTSTART's month of each year, as libical does (its own test data, src/test/icalrecur_test.txt,
+  expects ``FREQ=YEARLY;BYMONTHDAY=29`` from 29 February to give 29 February of leap years);
+  the library gives that day of every month. "Yearly on the 1st" means once a year.
+* **YEARLY with BYWEEKNO and INTERVAL above 1 from a DTSTART whose week belongs to another
+  year** (2 January 2010 is in week 53 of 2009) is refused: libical counts the years from the
+  week's year, the library from the calendar year, and RFC 5545 does not say which (libical's
+  test data, src/test/icalrecur_test.txt, has both kinds of case).
 * **WEEKLY with BYSETPOS and a DTSTART that is not on the week's first day** (WKST, Monday by
   default) is refused: RFC 5545 section 3.3.10 says the set for BYSETPOS "starts at the
   beginning of the interval defined by the FREQ rule part", but the library counts the first
@@ -75,6 +83,19 @@ def read_rules(cal: icalendar.Calendar, *, path=None) -> tuple[icalendar.Calenda
             if (freq == "YEARLY" and "BYWEEKNO" in rule
                     and not any(p in rule for p in ("BYDAY", "BYMONTHDAY", "BYYEARDAY"))):
                 todo.append((i, j, "weekno-day"))
+            if (freq == "YEARLY" and "BYMONTHDAY" in rule
+                    and not any(p in rule for p in ("BYMONTH", "BYWEEKNO", "BYYEARDAY",
+                                                    "BYDAY", "BYSETPOS"))):
+                todo.append((i, j, "monthday-month"))
+            interval = int(_first(rule, "INTERVAL") or 1)
+            if (freq == "YEARLY" and "BYWEEKNO" in rule and interval > 1
+                    and start.dt.isocalendar()[0] != start.dt.year):
+                raise InputError(
+                    f"its RRULE counts every {interval} years by week number (BYWEEKNO) from a "
+                    f"DTSTART ({start.dt:%Y-%m-%d}) that lies in a week of "
+                    f"{start.dt.isocalendar()[0]}; implementations count such years "
+                    "differently (RFC 5545 leaves it open); move DTSTART into a week of its "
+                    "own year", path=path, key=event_label(event))
             if freq == "WEEKLY" and "BYSETPOS" in rule:
                 wkst = str(_first(rule, "WKST") or "MO").upper()
                 if _WEEKDAYS[start.dt.weekday()] != wkst:
@@ -99,8 +120,10 @@ def read_rules(cal: icalendar.Calendar, *, path=None) -> tuple[icalendar.Calenda
                 del rule[p]
             notes.append(f"{event_label(event)}: {'/'.join(parts)} ignored on an all-day "
                          "event (RFC 5545 section 3.3.10)")
-        else:
+        elif what == "weekno-day":
             rule["BYDAY"] = [_WEEKDAYS[event["DTSTART"].dt.weekday()]]
+        else:
+            rule["BYMONTH"] = [event["DTSTART"].dt.month]
     return cal, notes
 
 

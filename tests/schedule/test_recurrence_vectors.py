@@ -33,7 +33,9 @@ from schedcheck.schedule.calendars import expand_calendar
 
 pytestmark = pytest.mark.validation
 
-CASES = json.loads((Path(__file__).parent / "vectors" / "dateutil_rrule.json").read_text())
+VECTORS = Path(__file__).parent / "vectors"
+CASES = [case for name in ("dateutil_rrule.json", "libical_recur.json")
+         for case in json.loads((VECTORS / name).read_text(encoding="utf-8"))]
 
 REFUSALS = {   # rule part -> words the refusal must contain
     "FREQ=MINUTELY": "MINUTELY", "FREQ=SECONDLY": "SECONDLY",
@@ -47,17 +49,30 @@ DECIDED = {
         dt.datetime.combine(dt.date.fromisocalendar(y, 20, 2), dt.time(9))
         for y in (1998, 1999, 2000)
     ],
+    # YEARLY + BYMONTHDAY without BYMONTH: days 1 and 3 of DTSTART's month (September) each
+    # year, as libical reads it; dateutil gives those days of every month.
+    "dateutil:testYearlyByMonthDay:84": [
+        dt.datetime(1997, 9, 3, 9), dt.datetime(1998, 9, 1, 9), dt.datetime(1998, 9, 3, 9)],
 }
 
 
 def _parse(text: str) -> dt.datetime:
-    return dt.datetime.strptime(text, "%Y%m%dT%H%M%S")
+    """A DATE, floating or UTC DATE-TIME as a naive UTC instant (the site's zone is UTC)."""
+    if len(text) == 8:
+        return dt.datetime.strptime(text, "%Y%m%d")
+    return dt.datetime.strptime(text.removesuffix("Z"), "%Y%m%dT%H%M%S")
+
+
+def _start_lines(start: str) -> str:
+    if len(start) == 8:   # an all-day series: one day each
+        return f"DTSTART;VALUE=DATE:{start}\r\nDURATION:P1D\r\n"
+    return f"DTSTART:{start}\r\nDURATION:PT1S\r\n"
 
 
 def _expand(case: dict, last: dt.date | None = None) -> list[dt.datetime]:
     text = ("BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//schedcheck vectors//EN\r\n"
             f"BEGIN:VEVENT\r\nUID:{case['id']}\r\nDTSTAMP:20260101T000000Z\r\n"
-            f"DTSTART:{case['dtstart']}\r\nDURATION:PT1S\r\nRRULE:{case['rrule']}\r\n"
+            f"{_start_lines(case['dtstart'])}RRULE:{case['rrule']}\r\n"
             "SUMMARY:vector\r\nEND:VEVENT\r\nEND:VCALENDAR\r\n")
     want = [_parse(x) for x in case["expected"]]
     first = min([*want, _parse(case["dtstart"])]).date()
@@ -93,17 +108,19 @@ def test_vector(case):
         words = [w for part, w in REFUSALS.items() if part in case["rrule"]]
         if "BYSETPOS" in case["rrule"] and "FREQ=WEEKLY" in case["rrule"]:
             words = ["BYSETPOS"]
+        elif "BYWEEKNO" in case["rrule"] and "INTERVAL" in case["rrule"]:
+            words = ["week number"]
         elif not words:
             words = ["starts a day"]
         assert any(w in detail for w in words), detail
 
 
 def test_the_suite_is_large_and_every_case_names_its_source():
-    assert len(CASES) >= 150
+    assert len(CASES) >= 300
     for case in CASES:
         src = case["source"]
-        assert src["repository"] == "dateutil/dateutil" and len(src["commit"]) == 40
-        assert src["file"] == "tests/test_rrule.py" and src["line"] > 0 and src["test"]
+        assert src["repository"] in ("dateutil/dateutil", "libical/libical")
+        assert len(src["commit"]) == 40 and src["file"] and src["line"] > 0 and src["test"]
 
 
 def test_most_cases_are_expanded_not_refused():
