@@ -14,12 +14,14 @@ Time rules
   and UTC times, and the rules built on them, then follow that zone's wall clock.
 - All-day events (DATE values) run from local midnight of the first date to local midnight of
   the DTEND date, which is exclusive (RFC 5545 section 3.6.1); without DTEND, one day.
-- Event ends follow the wall clock: an event from 07:00 to 17:00 ends at 17:00 local time on
-  every date, including daylight-saving change days (a 9 or 11 hour period then); a DURATION
-  is added on the wall clock too.
+- An event given with DTEND ends at its DTEND's wall-clock time on every date, including
+  daylight-saving change days (a night from 22:00 to 06:00 is then 7 or 9 hours); the hours
+  and minutes of a DURATION are exact (RFC 5545 section 3.3.6), its days nominal. See
+  :mod:`schedcheck.schedule.recurrence` and docs/calendars.md, "How recurrence is read".
 - A local time that does not exist (spring gap) is read with the UTC offset before the gap; a
   local time that occurs twice (autumn fold) is the first of the two (RFC 5545 section 3.3.5).
-  An occurrence that ends up with zero or negative length is dropped with a warning naming it.
+  An occurrence whose start falls in the gap keeps its length; one written with no length (no
+  DTEND or DURATION) is left out with a warning naming it.
 - ``STATUS:CANCELLED`` occurrences are not periods (RFC 5545 section 3.8.1.11).
 - An event whose CATEGORIES contain ``OPEN-ON-HOLIDAYS`` (any case) also applies on public
   holidays and closure dates; see :mod:`schedcheck.schedule.intended`.
@@ -59,6 +61,7 @@ from schedcheck.schedule.guards import (
     event_summary,
     rule_dicts,
 )
+from schedcheck.schedule.recurrence import has_duration, occurrence_end, read_rules
 from schedcheck.window import day_window, local_midnight
 
 HOLIDAY_MARKER = "OPEN-ON-HOLIDAYS"
@@ -218,6 +221,18 @@ def _to_utc_ns(value, zone: zoneinfo.ZoneInfo, tz: str) -> int:
     return int(pd.Timestamp(value.astimezone(dt.UTC)).as_unit("ns").value)
 
 
+def _end_ns(occ, comp, start_ns: int, zone: zoneinfo.ZoneInfo, tz: str) -> int:
+    """An occurrence's end [ns UTC]: exact DURATION hours, wall-clock DTEND
+    (:func:`schedcheck.schedule.recurrence.occurrence_end`)."""
+    start = occ.start
+    if isinstance(start, dt.datetime) and start.tzinfo is None:
+        start = start.replace(tzinfo=zone)
+    duration = comp["DURATION"].dt if has_duration(comp) else None
+    wall = (occ.end - occ.start) if isinstance(occ.start, dt.datetime) else dt.timedelta(0)
+    return occurrence_end(start_ns, _to_utc_ns(occ.end, zone, tz), start, duration, wall,
+                          lambda v: _to_utc_ns(v, zone, tz))
+
+
 def _source_component(occ) -> icalendar.cal.Component:
     """The VEVENT an occurrence comes from (the series, or its changed instance).
 
@@ -340,6 +355,8 @@ def expand_calendar(
     if problems:
         raise problems[0] if len(problems) == 1 else InputProblems(problems)
     cal, notes = _date_until_inclusive(cal)
+    cal, rule_notes = read_rules(cal, path=path)
+    notes = notes + rule_notes
     zone = zoneinfo.ZoneInfo(tz)
     w0, w1 = day_window(first, last, tz)
     w0_ns, w1_ns = int(w0.value), int(w1.value)
@@ -377,7 +394,7 @@ def expand_calendar(
                 if cancelled:
                     continue
                 s = _to_utc_ns(occ.start, zone, tz)
-                e = _to_utc_ns(occ.end, zone, tz)
+                e = _end_ns(occ, comp, s, zone, tz)
                 if e <= s:
                     if not w0_ns <= s < w1_ns:
                         continue   # outside the window: not this window's concern

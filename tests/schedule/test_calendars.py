@@ -160,21 +160,39 @@ def test_holiday_marker_in_categories():
     assert sorted(res.events["open_on_holidays"].tolist()) == [False, True]
 
 
-# -- daylight saving: wall-clock ends (IANA rules: EU last Sunday of March/October,
-#    US second Sunday of March / first Sunday of November) ------------------------------------
-@pytest.mark.parametrize("tz,day,expected_h", [
-    (OSLO, "20260328", 7.0),    # night into 2026-03-29 (spring gap): 22:00-06:00 is 7 h
-    (OSLO, "20261024", 9.0),    # night into 2026-10-25 (autumn fold): 9 h
-    (NY, "20260307", 7.0),      # night into 2026-03-08
-    (NY, "20261031", 9.0),      # night into 2026-11-01
-])
-def test_night_event_across_dst_change_follows_wall_clock(tz, day, expected_h):
-    c = cal(f"DTSTART;TZID={tz}:{day}T220000\nDURATION:PT8H\nRRULE:FREQ=DAILY;COUNT=2")
+# -- daylight saving: DTEND ends follow the wall clock (our documented choice), DURATION hours
+#    are exact (RFC 5545 section 3.3.6). IANA rules: EU last Sunday of March/October, US second
+#    Sunday of March / first Sunday of November --------------------------------------------
+NIGHTS = [
+    (OSLO, "20260328", 7.0, "07:00"),    # night into 2026-03-29 (spring gap)
+    (OSLO, "20261024", 9.0, "05:00"),    # night into 2026-10-25 (autumn fold)
+    (NY, "20260307", 7.0, "07:00"),      # night into 2026-03-08
+    (NY, "20261031", 9.0, "05:00"),      # night into 2026-11-01
+]
+
+
+@pytest.mark.parametrize("tz,day,expected_h,_exact_end", NIGHTS)
+def test_night_event_with_dtend_across_dst_change_follows_wall_clock(tz, day, expected_h,
+                                                                     _exact_end):
     d = dt.datetime.strptime(day, "%Y%m%d").date()
+    nxt = (d + dt.timedelta(days=1)).strftime("%Y%m%d")
+    c = cal(f"DTSTART;TZID={tz}:{day}T220000\nDTEND;TZID={tz}:{nxt}T060000\n"
+            "RRULE:FREQ=DAILY;COUNT=2")
     res = expand_calendar(c, tz, d, d + dt.timedelta(days=2))
     assert hours(res) == [expected_h, 8.0]
     ends = [e for _, e in local_spans(res, tz)]
     assert all(e[11:16] == "06:00" for e in ends)
+
+
+@pytest.mark.validation   # RFC 5545 section 3.3.6: the time part of a duration is exact
+@pytest.mark.parametrize("tz,day,_wall_h,exact_end", NIGHTS)
+def test_night_event_with_duration_across_dst_change_lasts_exactly(tz, day, _wall_h, exact_end):
+    c = cal(f"DTSTART;TZID={tz}:{day}T220000\nDURATION:PT8H\nRRULE:FREQ=DAILY;COUNT=2")
+    d = dt.datetime.strptime(day, "%Y%m%d").date()
+    res = expand_calendar(c, tz, d, d + dt.timedelta(days=2))
+    assert hours(res) == [8.0, 8.0]
+    ends = [e for _, e in local_spans(res, tz)]
+    assert ends[0][11:16] == exact_end and ends[1][11:16] == "06:00"
 
 
 @pytest.mark.validation   # expected values from the outside source named in the comments
@@ -204,16 +222,26 @@ def test_oslo_fold_floating_time_first_occurrence():
     assert local_spans(res, OSLO) == [("2026-10-25T02:30:00+02:00", "2026-10-25T04:00:00+01:00")]
 
 
-@pytest.mark.parametrize("start,end,word", [("020000", "030000", "zero"),
-                                            ("023000", "030000", "negative")])
-def test_event_inside_spring_gap_is_a_warning_naming_it(start, end, word):
+@pytest.mark.parametrize("start,end,span", [
+    ("020000", "030000", ("2026-03-29T03:00:00+02:00", "2026-03-29T04:00:00+02:00")),
+    ("023000", "030000", ("2026-03-29T03:30:00+02:00", "2026-03-29T04:00:00+02:00")),
+    ("023000", "043000", ("2026-03-29T03:30:00+02:00", "2026-03-29T04:30:00+02:00")),
+])
+def test_event_starting_in_spring_gap_is_kept_at_the_shifted_time(start, end, span):
+    # The start is read with the offset before the gap (RFC 5545 section 3.3.5); where the
+    # wall-clock end would come at or before it, the event keeps its written length instead
+    # of being dropped (never lose an event because its start fell into a gap).
     c = cal(f"SUMMARY:Gap test\nUID:gap@x\nDTSTART;TZID=Europe/Oslo:20260329T{start}\n"
             f"DTEND;TZID=Europe/Oslo:20260329T{end}")
     res = expand_calendar(c, OSLO, D(2026, 3, 29), D(2026, 3, 29), path="occ.ics")
-    assert len(res.events) == 0
-    assert len(res.warnings) == 1
-    assert "occ.ics" in res.warnings[0] and "'Gap test'" in res.warnings[0]
-    assert word in res.warnings[0]
+    assert local_spans(res, OSLO) == [span]
+    assert res.warnings == []
+
+
+def test_duration_event_starting_in_spring_gap_keeps_its_exact_length():
+    c = cal("DTSTART;TZID=Europe/Oslo:20260329T023000\nDURATION:PT1H")
+    res = expand_calendar(c, OSLO, D(2026, 3, 29), D(2026, 3, 29))
+    assert local_spans(res, OSLO) == [("2026-03-29T03:30:00+02:00", "2026-03-29T04:30:00+02:00")]
 
 
 def test_instant_event_without_end_is_a_warning():
@@ -463,3 +491,57 @@ def test_two_files_defining_one_custom_tzid_differently_each_keep_their_own(tmp_
                  for p, c in ((first, a), (second, b))}
         assert spans["new.ics"] == [("2026-03-09T07:00:00-04:00", "2026-03-09T18:00:00-04:00")]
         assert spans["old.ics"] == [("2026-03-09T08:00:00-04:00", "2026-03-09T19:00:00-04:00")]
+
+
+# -- how recurrence is read (docs/calendars.md): RFC 5545 section 3.3.10 -------------------
+@pytest.mark.validation   # RFC 5545 section 3.3.10: BYHOUR etc. "MUST be ignored" on a DATE
+def test_time_parts_on_an_all_day_rule_are_ignored_and_do_not_use_up_count():
+    c = cal("SUMMARY:Day\nDTSTART;VALUE=DATE:20260302\nDTEND;VALUE=DATE:20260303\n"
+            "RRULE:FREQ=DAILY;COUNT=3;BYHOUR=9,17;BYMINUTE=30")
+    res = expand_calendar(c, OSLO, D(2026, 3, 1), D(2026, 3, 8))
+    assert [s[:10] for s, _ in local_spans(res, OSLO)] == ["2026-03-02", "2026-03-03",
+                                                           "2026-03-04"]
+    assert any("BYHOUR/BYMINUTE ignored on an all-day event" in w for w in res.warnings)
+
+
+def test_yearly_week_number_without_day_takes_dtstart_s_weekday():
+    # Thursday 2026-01-15; ISO week 20 of 2026 and 2027 (date.fromisocalendar, independent)
+    c = cal("DTSTART;TZID=Europe/Oslo:20260115T070000\nDTEND;TZID=Europe/Oslo:20260115T170000\n"
+            "RRULE:FREQ=YEARLY;BYWEEKNO=20")
+    res = expand_calendar(c, OSLO, D(2026, 5, 1), D(2027, 6, 1))
+    days = sorted({s[:10] for s, _ in local_spans(res, OSLO)})
+    assert days == [str(dt.date.fromisocalendar(2026, 20, 4)),
+                    str(dt.date.fromisocalendar(2027, 20, 4))]
+
+
+def test_weekly_setpos_off_the_week_start_is_refused_naming_file_and_event():
+    c = cal("SUMMARY:First of week\nDTSTART;TZID=Europe/Oslo:20260108T070000\n"
+            "DTEND;TZID=Europe/Oslo:20260108T080000\nRRULE:FREQ=WEEKLY;BYDAY=MO,WE,FR;BYSETPOS=1")
+    with pytest.raises(InputError) as exc:
+        expand_calendar(c, OSLO, D(2026, 1, 5), D(2026, 1, 31), path="occ.ics")
+    text = str(exc.value)
+    assert "occ.ics" in text and "'First of week'" in text and "BYSETPOS" in text
+    assert "\n" not in text
+    # on the week's first day the same rule is read as RFC 5545 says: Mondays
+    ok = cal("DTSTART;TZID=Europe/Oslo:20260105T070000\nDTEND;TZID=Europe/Oslo:20260105T080000\n"
+             "RRULE:FREQ=WEEKLY;BYDAY=MO,WE,FR;BYSETPOS=1;COUNT=3")
+    res = expand_calendar(ok, OSLO, D(2026, 1, 5), D(2026, 1, 31))
+    assert [s[:10] for s, _ in local_spans(res, OSLO)] == ["2026-01-05", "2026-01-12",
+                                                           "2026-01-19"]
+
+
+def test_fortnightly_rule_counts_weeks_from_dtstart_across_new_year():
+    c = cal("DTSTART;TZID=Europe/Oslo:20261221T070000\nDTEND;TZID=Europe/Oslo:20261221T170000\n"
+            "RRULE:FREQ=WEEKLY;INTERVAL=2;BYDAY=MO")
+    res = expand_calendar(c, OSLO, D(2026, 12, 1), D(2027, 1, 31))
+    assert [s[:10] for s, _ in local_spans(res, OSLO)] == ["2026-12-21", "2027-01-04",
+                                                           "2027-01-18"]
+
+
+def test_yearly_month_day_without_month_is_once_a_year_in_dtstart_s_month():
+    # as libical reads it (src/test/icalrecur_test.txt: YEARLY;BYMONTHDAY=29 from 29 February
+    # gives leap days only); the rule library alone gave the 1st of every month
+    c = cal("DTSTART;VALUE=DATE:20260101\nDTEND;VALUE=DATE:20260102\n"
+            "RRULE:FREQ=YEARLY;BYMONTHDAY=1")
+    res = expand_calendar(c, OSLO, D(2026, 1, 1), D(2027, 4, 30))
+    assert [s[:10] for s, _ in local_spans(res, OSLO)] == ["2026-01-01", "2027-01-01"]
