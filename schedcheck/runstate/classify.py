@@ -422,7 +422,8 @@ def classify_unit(
         t = levels.t
         floor, step = facts[c.key]
         gap, tw = gaps[c.key]
-        others = [(moving[o.key] if o.key not in out else _decided(out[o.key], prep[o.key]))
+        others = [(moving[o.key] if o.key not in out
+                   else _decided(out[o.key], prep[o.key], moving[o.key]))
                   if not c.is_fan else _own(moving[o.key], prep[o.key][1], groups[o.key])
                   for o in unit.components if o.key != c.key and o.sensor != c.sensor]
         mg = max([int(gaps[o.key][0].value) for o in unit.components])

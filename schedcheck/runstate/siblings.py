@@ -50,8 +50,17 @@ def own(moving: tuple[np.ndarray, np.ndarray], Lg: np.ndarray, g: th.LevelGroups
     return moving[0], Lg > g.boundaries[-1]
 
 
-def decided(cs, prep
-             ) -> tuple[np.ndarray, np.ndarray]:
-    """A sibling's decided state at its readings: True where it runs."""
+def decided(cs, prep, moving: tuple[np.ndarray, np.ndarray] | None = None
+            ) -> tuple[np.ndarray, np.ndarray]:
+    """A sibling's decided state at its readings: True where it runs.
+
+    Outside the span the sibling was classified over (readings learned from but given no
+    states: the whole files, where levels are learned from all of them), its level-based
+    ``moving`` flags stand in, so a later month's running fans still explain a wheel's
+    carried vibration."""
     t = prep[0].t
-    return t, cs.sets.run.contains(t)
+    run = cs.sets.run.contains(t)
+    if moving is None or cs.piece_starts.size == 0:
+        return t, run
+    inside = (t >= cs.piece_starts[0]) & (t < cs.piece_ends[-1])
+    return t, np.where(inside, run, moving[1])
