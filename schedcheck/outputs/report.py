@@ -91,8 +91,6 @@ ENERGY_KEYS = ("running_kwh", "running_kw", "running_cost", "running_co2_kg", "o
                "off_schedule_cost", "off_schedule_co2_kg")
 THRESHOLD_KEYS = ("level", "source", "separation", "effectiveness", "on_level", "off_level",
                   "histogram", "warnings", "confidence", "concerns")
-SENSOR_KEYS = ("sensor", "component", "first", "last", "count", "median_interval_s", "gaps",
-               "gap_hours", "duplicates", "conflicting", "out_of_order", "coverage")
 
 _ENV = jinja2.Environment(
     loader=jinja2.PackageLoader("schedcheck.outputs", "templates"),

@@ -5,70 +5,11 @@ from __future__ import annotations
 
 import datetime as dt
 
-import jinja2
 import numpy as np
 import pandas as pd
 
-FINDINGS_SHOWN = 300  # rows of the findings table on the page (common practice, no source)
-
-ROLE_LABELS = {"supply_fan": "supply fan", "exhaust_fan": "exhaust fan",
-               "return_fan": "return fan", "heat_wheel": "heat wheel", "other": "other"}
-
-KIND_LABELS = {
-    "night": "Off-schedule running on a working day or night",
-    "weekend": "Weekend running",
-    "holiday": "Running on a holiday or closure day",
-    "unscheduled_day": "Running on a working day taken out of the calendar",
-    "continuous": "Ran 24 h or more without stopping",
-    "clock_offset": "Start and stop shifted by about an hour",
-    "early_start": "Repeated early start",
-    "late_stop": "Repeated late stop",
-    "missed": "Off during occupied hours",
-    "short_cycling": "Many starts per day",
-    "setback": "Set back to low speed instead of stopped",
-    "over_speed": "Ran above the allowed speed",
-}
-
-# What to ask the controls contractor, per finding kind (plain wording of our own).
-KIND_ASKS = {
-    "night": "Check the time program and any overrides, optimum-start or night settings that "
-             "run {what} outside the occupied period and its allowances.",
-    "weekend": "Check the weekend entries of the time program of {what}.",
-    "unscheduled_day": "Check whether the days taken out of the calendar were really unoccupied, "
-                       "and that the time program of {what} follows them.",
-    "holiday": "Load the public holidays and closure dates into the controller's holiday "
-               "calendar for {what}.",
-    "continuous": "Look for a manual override, a switch left in hand, or a stuck occupancy "
-                  "signal that keeps {what} running day and night.",
-    "clock_offset": "Check the controller clock and its daylight-saving setting for {what}.",
-    "early_start": "Review the optimum-start or early-start setting of {what}.",
-    "late_stop": "Review the run-on or late-stop setting of {what}.",
-    "missed": "Find out why {what} was off in occupied hours (trip, fault, schedule error): "
-              "occupants may have had too little outdoor air.",
-    "short_cycling": "Check the control loop and minimum run and off times of {what}.",
-    "setback": "Check whether {what} may stop instead of running at low speed outside the "
-               "occupied period; keep any standby ventilation a code requires (then state it "
-               "as standby_speed).",
-    "over_speed": "Check the speed limit of the allowed or standby running of {what} in the "
-                  "drive or the time program.",
-}
-
-HOUR_KEYS = ("period", "scheduled", "running", "in_schedule", "in_allowance", "off_schedule",
-             "missed", "no_data")
-ENERGY_KEYS = ("running_kwh", "running_kw", "running_cost", "running_co2_kg", "off_schedule_kwh",
-               "off_schedule_cost", "off_schedule_co2_kg")
-THRESHOLD_KEYS = ("level", "source", "separation", "effectiveness", "on_level", "off_level",
-                  "histogram", "warnings", "confidence", "concerns")
 SENSOR_KEYS = ("sensor", "component", "first", "last", "count", "median_interval_s", "gaps",
                "gap_hours", "duplicates", "conflicting", "out_of_order", "coverage")
-
-_ENV = jinja2.Environment(
-    loader=jinja2.PackageLoader("schedcheck.outputs", "templates"),
-    autoescape=True,  # every file here is HTML; inputs are never trusted
-    undefined=jinja2.StrictUndefined,
-    trim_blocks=True,
-    lstrip_blocks=True,
-)
 
 
 def _local(ts: pd.Timestamp, tz: str, fmt: str = "%a %d %b %Y %H:%M") -> str:
