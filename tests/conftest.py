@@ -51,3 +51,18 @@ def demo_month(tmp_path_factory):
     from schedcheck.jobs.demo import make_demo
 
     return make_demo(tmp_path_factory.mktemp("demo_month") / "d", months=1)
+
+
+@pytest.fixture(scope="module")
+def chromium():
+    """Path of headless Chromium for the browser tests; a failure under CI, a skip elsewhere."""
+    import os
+
+    from tests.chromium_cdp import chromium_path
+
+    path = chromium_path()
+    if path is None:
+        if os.environ.get("CI"):
+            pytest.fail("CI is set but /usr/bin/chromium is missing (.ci/run installs it)")
+        pytest.skip("headless Chromium is not installed (apt-get install chromium)")
+    return path

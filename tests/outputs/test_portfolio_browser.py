@@ -4,12 +4,10 @@ as text. Skipped when Chromium is absent, unless ``CI`` is set (as for the repor
 
 from __future__ import annotations
 
-import os
-
 import pytest
 
 from schedcheck.outputs.portfolio_files import write_portfolio_files
-from tests.chromium_cdp import Browser, chromium_path
+from tests.chromium_cdp import Browser
 
 pytestmark = pytest.mark.browser
 
@@ -35,16 +33,6 @@ def _sites() -> list[dict]:
          "error": f"error: broken.toml:1: not valid TOML {HOSTILE}", "findings": [],
          "months": [], "headline": "", "report": ""},
     ]
-
-
-@pytest.fixture(scope="module")
-def chromium():
-    path = chromium_path()
-    if path is None:
-        if os.environ.get("CI"):
-            pytest.fail("CI is set but /usr/bin/chromium is missing (.ci/run installs it)")
-        pytest.skip("headless Chromium is not installed (apt-get install chromium)")
-    return path
 
 
 def _eval(browser: Browser, js: str):

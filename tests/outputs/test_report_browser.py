@@ -9,29 +9,18 @@ installs it, so there a missing browser is a failure).
 from __future__ import annotations
 
 import datetime as dt
-import os
 
 import numpy as np
 import pytest
 
 from schedcheck.outputs.report import write_report
-from tests.chromium_cdp import Browser, chromium_path, pdf_pages, run_cli
+from tests.chromium_cdp import Browser, pdf_pages, run_cli
 from tests.report_fixture import write_fixture
 
 pytestmark = pytest.mark.browser
 
 A4_IN = (210 / 25.4, 297 / 25.4)   # ISO 216 A4, 210 x 297 mm
 LETTER_IN = (8.5, 11.0)            # ANSI Letter, 8.5 x 11 in
-
-
-@pytest.fixture(scope="module")
-def chromium():
-    path = chromium_path()
-    if path is None:
-        if os.environ.get("CI"):
-            pytest.fail("CI is set but /usr/bin/chromium is missing (.ci/run installs it)")
-        pytest.skip("headless Chromium is not installed (apt-get install chromium)")
-    return path
 
 
 @pytest.fixture(scope="module")
