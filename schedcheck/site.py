@@ -13,6 +13,8 @@ from pathlib import Path
 
 import pandas as pd
 
+from schedcheck.readings.timestamps import YEAR_RANGE
+
 FAN_ROLES = ("supply_fan", "exhaust_fan", "return_fan")
 ROLES = FAN_ROLES + ("heat_wheel", "other")
 
@@ -105,6 +107,9 @@ class ReadingsSettings:
     # our name -> name in the files, or names tried in order (exports that differ per gateway)
     columns: dict[str, str | tuple[str, ...]] = field(default_factory=dict)
     skip_bad_rows: bool = False
+    # readings dated outside these years [first, last) are refused as bad rows (the site
+    # file's `years` gives the last year inclusive)
+    years: tuple[int, int] = YEAR_RANGE
 
 
 @dataclass(frozen=True)

@@ -11,6 +11,7 @@ from schedcheck.cli._app import app
 from schedcheck.cli._common import SiteArg, add_row, make_console, terminal_text
 
 UNMAPPED_SHOWN = 20   # unmapped sensors named on screen; the rest are counted
+PROBLEMS_SHOWN = 50   # problems listed on screen; the rest are counted (common practice, no source)
 
 
 def _local(ts, tz: str) -> str:
@@ -93,11 +94,15 @@ def check(
         out.print(f"note: {note}", markup=False)
     for w in report.warnings:
         print(f"warning: {terminal_text(' '.join(w.split()))}", file=sys.stderr)
-    for p in report.problems:
+    for p in report.problems[:PROBLEMS_SHOWN]:
         print(f"error: {terminal_text(' '.join(str(p).split()))}", file=sys.stderr)
     n = len(report.problems)
+    if n > PROBLEMS_SHOWN:
+        print(f"... and {n - PROBLEMS_SHOWN:,} more problems (the first {PROBLEMS_SHOWN} are "
+              "listed; fix those and check again)", file=sys.stderr)
     if n:
-        print(f"{n} problem{'s' if n > 1 else ''} found in the inputs of {site}", file=sys.stderr)
+        print(f"{n:,} problem{'s' if n > 1 else ''} found in the inputs of "
+              f"{terminal_text(site)}", file=sys.stderr)
         return 2
     w = len(report.warnings)
     plural = w > 1

@@ -10,6 +10,7 @@ streamed in batches instead. Rows are turned into clean per-sensor frames by
 
 from __future__ import annotations
 
+import io
 from collections.abc import Callable
 from pathlib import Path
 
@@ -19,6 +20,7 @@ import pandas as pd
 from schedcheck.errors import InputError, InputProblems, NoReadingsError
 from schedcheck.inputs.file_limits import special_files
 from schedcheck.inputs.file_patterns import resolve_patterns
+from schedcheck.inputs.readings_guard import header_line, header_problem, open_guarded
 from schedcheck.inputs.readings_rows import Collector
 from schedcheck.readings import cleaning as rd
 from schedcheck.site import EXTRA_COLUMNS, Site
@@ -42,31 +44,16 @@ def readings_files(site: Site) -> list[Path]:
     return files
 
 
-def _sniff_sep(path: Path) -> str:
-    import gzip
-
-    opener = gzip.open if _is_gzip(path) else open
-    with opener(path, "rt", encoding="utf-8-sig", errors="replace") as f:
-        head = f.readline()
+def _sniff_sep(head: str) -> str:
     counts = {sep: head.count(sep) for sep in (",", ";", "\t")}
     return max(counts, key=counts.get) if max(counts.values()) else ","
 
 
-def _is_gzip(path: Path) -> bool:
-    with open(path, "rb") as f:
-        return f.read(2) == b"\x1f\x8b"
-
-
 def _not_utf8(path: Path) -> InputError:
     """The error for a CSV file that is not UTF-8 text, naming its first bad line."""
-    import gzip
-
-    opener = gzip.open if _is_gzip(path) else open
-    with opener(path, "rb") as f:
-        head = f.read(2)
-        if head in (b"\xff\xfe", b"\xfe\xff"):
+    with open_guarded(path) as f:     # bounded lines, gzip or not
+        if f.peek(2)[:2] in (b"\xff\xfe", b"\xfe\xff"):
             return InputError("is UTF-16 text; save or export it as UTF-8 CSV", path=path)
-        f.seek(0)
         for n, raw in enumerate(f, 1):
             try:
                 raw.decode("utf-8")
@@ -123,40 +110,42 @@ def _mapping_hint(cols: dict, have: list[str]) -> str:
 
 
 def _read_csv(col: Collector, site: Site, path: Path, file_idx: int) -> tuple[str, ...]:
-    sep = _sniff_sep(path)
-    comp = "gzip" if _is_gzip(path) else None
-    try:
-        head = pd.read_csv(path, nrows=0, sep=sep, compression=comp, encoding="utf-8-sig")
-    except pd.errors.EmptyDataError:
-        raise InputError("the file is empty (no header line)", path=path) from None
-    mapping, levels = _mapping(site, [str(c) for c in head.columns], path, 1)
-    _refuse_duplicate_columns(path, sep, comp, set(mapping.values()))
+    first = header_line(path)        # bounded: a line without a break is refused, not read
+    sep = _sniff_sep(first)
+    names, raw_names = _header_names(path, first, sep)
+    mapping, levels = _mapping(site, names, path, 1)
+    why = header_problem(raw_names, set(mapping.values()))   # a column we read named twice
+    if why:
+        raise InputError(why, path=path, line=1)
     inverse = {v: k for k, v in mapping.items()}
     # Only the needed columns are read (usecols); a blank line stays a row (skip_blank_lines
     # off) so that file line = row index + 2 (header on line 1). Quoted fields holding line
-    # breaks would shift the numbering; readings exports do not use them.
-    reader = pd.read_csv(path, sep=sep, compression=comp, encoding="utf-8-sig",
-                         usecols=list(mapping.values()), dtype=str, keep_default_na=False,
-                         skip_blank_lines=False, chunksize=CSV_CHUNK_ROWS)
-    for chunk in reader:
-        lines = chunk.index.to_numpy(np.int64) + 2
-        col.take(chunk.rename(columns=inverse), path, file_idx, levels, lines, lines,
-                 comma_decimal=sep == ";")
+    # breaks would shift the numbering; readings exports do not use them. The text comes
+    # through a guarded stream (unpacked size, line length, damaged gzip data: readings_guard).
+    with open_guarded(path) as stream:
+        reader = pd.read_csv(stream, sep=sep, encoding="utf-8-sig",
+                             usecols=list(mapping.values()), dtype=str, keep_default_na=False,
+                             skip_blank_lines=False, chunksize=CSV_CHUNK_ROWS)
+        for chunk in reader:
+            lines = chunk.index.to_numpy(np.int64) + 2
+            col.take(chunk.rename(columns=inverse), path, file_idx, levels, lines, lines,
+                     comma_decimal=sep == ";")
     return levels
 
 
-def _refuse_duplicate_columns(path: Path, sep: str, comp: str | None, used: set[str]) -> None:
-    """A column we read whose name appears twice in the header: which one is meant is unknown
-    (the parser would silently take the first and rename the other)."""
-    raw = pd.read_csv(path, header=None, nrows=1, sep=sep, compression=comp,
-                      encoding="utf-8-sig", dtype=str, keep_default_na=False)
-    names = [str(x) for x in raw.iloc[0].tolist()] if len(raw) else []
-    for name in names:
-        at = [i + 1 for i, n in enumerate(names) if n == name]
-        if name in used and len(at) > 1:
-            raise InputError(f"column {name!r} appears {len(at)} times in the header (columns "
-                             f"{', '.join(map(str, at))}); rename the one not meant",
-                             path=path, line=1)
+def _header_names(path: Path, first: str, sep: str) -> tuple[list[str], list[str]]:
+    """The header's column names as the parser names them (a repeated name gets a suffix) and
+    as written; refuses an empty file and too many columns."""
+    if not first.strip():
+        raise InputError("the file is empty (no header line)", path=path)
+    raw = pd.read_csv(io.StringIO(first), header=None, nrows=1, sep=sep, dtype=str,
+                      keep_default_na=False)
+    written = [str(x) for x in raw.iloc[0].tolist()] if len(raw) else []
+    why = header_problem(written, set())      # the number of columns only
+    if why:
+        raise InputError(why, path=path, line=1)
+    head = pd.read_csv(io.StringIO(first), nrows=0, sep=sep)
+    return [str(c) for c in head.columns], written
 
 
 def _read_parquet(col: Collector, site: Site, path: Path, file_idx: int) -> tuple[str, ...]:
@@ -333,7 +322,7 @@ def _files_key(site: Site, files: list[Path]) -> tuple:
         st = f.stat()
         stats.append((str(f), st.st_mtime_ns, st.st_size))
     r = site.readings
-    return (tuple(stats), site.timezone, r.naive_time, tuple(sorted(r.columns.items())),
+    return (tuple(stats), site.timezone, r.naive_time, r.years, tuple(sorted(r.columns.items())),
             tuple(sorted((c.sensor, c.key) for c in site.components)))
 
 

@@ -114,6 +114,7 @@ class Collector:
         self.site = site
         self.tz = site.timezone
         self.naive_time = site.readings.naive_time
+        self.years = site.readings.years
         self.owner = {c.sensor: c.key for c in site.components}
         self.start, self.end = start, end
         self.parts: dict[str, list[pd.DataFrame]] = {s: [] for s in self.owner}
@@ -152,7 +153,8 @@ class Collector:
         if comma_decimal:
             for c in levels:
                 rows.raw[c] = rows.raw[c].astype("str").str.replace(",", ".", regex=False)
-        tp = rd.parse_timestamps(rows.raw["timestamp"], naive_time=self.naive_time, tz=self.tz)
+        tp = rd.parse_timestamps(rows.raw["timestamp"], naive_time=self.naive_time, tz=self.tz,
+                                 years=self.years)
         lv, lbad, absent = _levels(rows, levels, len(names))
         naive = tp.status == rd.NAIVE
         if naive.any():
@@ -230,7 +232,8 @@ class Collector:
         for i in idx[:max(0, BAD_ROW_EXAMPLES - len(rec[0]))]:   # the rest are only counted
             reason = None
             if tp.status[i] not in (rd.OK, rd.AMBIGUOUS):
-                reason = rd.describe_time(raw["timestamp"].iloc[i], int(tp.status[i]), self.tz)
+                reason = rd.describe_time(raw["timestamp"].iloc[i], int(tp.status[i]), self.tz,
+                                          self.years)
             if reason is None and sensor[i] == "":
                 reason = "sensor is missing"
             if reason is None:

@@ -13,7 +13,7 @@ import pandas as pd
 _TOP = ("site", "readings", "holidays", "schedule", "energy", "unit", "run_state", "findings",
         "weather", "heating", "cooling")
 _SITE = ("name", "timezone")
-_READINGS = ("files", "unit", "naive_time", "max_gap", "columns", "skip_bad_rows")
+_READINGS = ("files", "unit", "naive_time", "max_gap", "columns", "skip_bad_rows", "years")
 _HOLIDAYS = ("country", "subdivision", "categories", "closed", "language", "drop", "add")
 _SCHEDULE = ("occupied", "allowed", "early_start", "late_stop", "standby_speed")
 _ENERGY = ("price", "currency", "co2_per_kwh", "exponent")
@@ -36,6 +36,10 @@ MAX_ALLOWANCE = pd.Timedelta("1D")
 # readings.max_gap at most a day: a longer bridge would count a dead sensor's days as running
 # or off instead of no data (common practice, no source)
 MAX_GAP_LIMIT = pd.Timedelta("24h")
+
+# the widest `[readings] years` may be (first and last year, inclusive): the dates the
+# commands take (--from, --to) and well inside the nanosecond clock (1677-2262)
+YEARS_LIMIT = (1900, 2199)
 
 # Upper bounds that keep the arithmetic finite (common practice, no source: fan motors stay far
 # below 100 MW, and no vibration reading unit reaches a million).

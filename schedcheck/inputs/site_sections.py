@@ -16,6 +16,7 @@ from pathlib import Path
 import pandas as pd
 
 from schedcheck.audit.energy import EXPONENT_RANGE
+from schedcheck.errors import excerpt
 from schedcheck.inputs.file_limits import pattern_problem
 from schedcheck.inputs.file_patterns import resolve_patterns
 from schedcheck.inputs.site_holidays import HolidaySections
@@ -42,6 +43,7 @@ from schedcheck.inputs.site_rules import (
     MAX_RPM,
     MAX_THRESHOLD,
     SPEED_RANGE,
+    YEARS_LIMIT,
 )
 from schedcheck.inputs.site_values import ValueReader, hint  # noqa: F401
 from schedcheck.site import (
@@ -160,7 +162,25 @@ class SiteValidator(HolidaySections):
                     columns[ours] = theirs if isinstance(theirs, str) else tuple(names)
         skip = self.boolean(r, "skip_bad_rows", "readings.skip_bad_rows")
         return ReadingsSettings(files=tuple(files or ()), unit=unit, naive_time=naive,
-                                max_gap=max_gap, columns=columns, skip_bad_rows=skip)
+                                max_gap=max_gap, columns=columns, skip_bad_rows=skip,
+                                years=self.year_range(r))
+
+    def year_range(self, r: dict) -> tuple[int, int]:
+        """``[readings] years = [first, last]`` (inclusive) as ``(first, last + 1)``."""
+        default = ReadingsSettings.years
+        if "years" not in r:
+            return default
+        v, lo, hi = r["years"], *YEARS_LIMIT
+        if (not isinstance(v, list) or len(v) != 2
+                or not all(isinstance(x, int) and not isinstance(x, bool) for x in v)):
+            self.err("readings.years", f"must be two whole years [first, last], such as "
+                     f"[{default[0]}, {default[1] - 1}], not {excerpt(v)}")
+            return default
+        if not lo <= v[0] <= v[1] <= hi:
+            self.err("readings.years", f"{v} must be two years from {lo} to {hi}, the first "
+                     "not after the last")
+            return default
+        return (v[0], v[1] + 1)
 
     def calendars(self, t: dict, name: str, key: str) -> tuple[Path, ...] | None:
         files = self.strings(t, name, key)

@@ -28,8 +28,6 @@ OK, EMPTY, UNPARSEABLE, NAIVE, NONEXISTENT, AMBIGUOUS, EPOCH_RANGE_BAD, OUT_OF_R
 #: sensor logged before 1970, and instants past 2262 do not fit the nanosecond clock
 #: (common practice, no source)
 YEAR_RANGE = (1970, 2200)
-_RANGE_NS = (pd.Timestamp(f"{YEAR_RANGE[0]}-01-01", tz="UTC").value,
-             pd.Timestamp(f"{YEAR_RANGE[1]}-01-01", tz="UTC").value)
 _OUT_NS = NAT + 1      # marks a parsed instant outside YEAR_RANGE inside this module
 
 _OFFSET_RE = (r"^\s*\d{4}-\d{2}-\d{2}[T ]\d{1,2}:\d{2}(?::\d{2}(?:[.,]\d+)?)?\s*"
@@ -53,7 +51,8 @@ class TimeParse:
     wall: np.ndarray
 
 
-def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str) -> TimeParse:
+def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str,
+                     years: tuple[int, int] = YEAR_RANGE) -> TimeParse:
     """Parse a timestamp column to UTC.
 
     Parameters
@@ -64,6 +63,9 @@ def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str) -> T
         How to read timestamps without an offset; None refuses them.
     tz : str
         IANA zone used for ``naive_time = "local"``.
+    years : (int, int)
+        Instants outside ``[first, last)`` (years, UTC) are OUT_OF_RANGE: the site file's
+        ``[readings] years``; :data:`YEAR_RANGE` by default.
     """
     n = len(values)
     utc = np.full(n, NAT, dtype=np.int64)
@@ -73,21 +75,21 @@ def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str) -> T
     wall = np.full(n, NAT, dtype=np.int64)
     s = values.reset_index(drop=True)
     if isinstance(s.dtype, pd.DatetimeTZDtype) or pd.api.types.is_datetime64_dtype(s.dtype):
-        s = _clip_typed(s, status)
+        s = _clip_typed(s, status, years)
     if isinstance(s.dtype, pd.DatetimeTZDtype):
         t = s.dt.tz_convert("UTC").dt.as_unit("ns")
         utc[:] = t.array.asi8
         status[t.isna().to_numpy() & (status == OK)] = EMPTY
-        return _ranged(TimeParse(utc, status, early, late, wall))
+        return _ranged(TimeParse(utc, status, early, late, wall), years)
     if pd.api.types.is_datetime64_dtype(s.dtype):
         naive = s.dt.as_unit("ns")
         status[naive.isna().to_numpy() & (status == OK)] = EMPTY
         _naive(naive, np.ones(n, bool) & ~naive.isna().to_numpy(), naive_time, tz,
                utc, status, early, late, wall)
-        return _ranged(TimeParse(utc, status, early, late, wall))
+        return _ranged(TimeParse(utc, status, early, late, wall), years)
     if pd.api.types.is_numeric_dtype(s.dtype) and not pd.api.types.is_bool_dtype(s.dtype):
         _epoch(s.astype("float64").to_numpy(), np.ones(n, bool), utc, status)
-        return TimeParse(utc, status, early, late, wall)
+        return _ranged(TimeParse(utc, status, early, late, wall), years)
     text = arrow_text(s)
     empty = _np(pc.or_(pc.is_null(text), pc.equal(text, "")), True)
     status[empty] = EMPTY
@@ -100,14 +102,14 @@ def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str) -> T
     if offset.any():
         sub = pc.filter(text, pa.array(offset))
         sub = pc.replace_substring(pc.replace_substring(sub, "UTC", "Z"), ",", ".")
-        v = _to_ns(sub, utc=True)
+        v = _to_ns(sub, utc=True, years=years)
         idx = np.flatnonzero(offset)
         status[idx[v == NAT]] = UNPARSEABLE
         status[idx[v == _OUT_NS]] = OUT_OF_RANGE
         utc[offset] = np.where(v == _OUT_NS, NAT, v)
     rest = ~empty & ~number & ~offset
     if rest.any():
-        v = _to_ns(pc.filter(text, pa.array(rest)), utc=False)
+        v = _to_ns(pc.filter(text, pa.array(rest)), utc=False, years=years)
         idx = np.flatnonzero(rest)
         status[idx[v == _OUT_NS]] = OUT_OF_RANGE
         bad = (v == NAT) | (v == _OUT_NS)
@@ -118,13 +120,13 @@ def parse_timestamps(values: pd.Series, *, naive_time: str | None, tz: str) -> T
         full[idx] = v
         _naive(pd.Series(full.view("datetime64[ns]")), good, naive_time, tz, utc, status,
                early, late, wall)
-    return _ranged(TimeParse(utc, status, early, late, wall))
+    return _ranged(TimeParse(utc, status, early, late, wall), years)
 
 
-def _clip_typed(s: pd.Series, status: np.ndarray) -> pd.Series:
-    """Typed timestamps outside :data:`YEAR_RANGE` -> NaT (status OUT_OF_RANGE), before any
+def _clip_typed(s: pd.Series, status: np.ndarray, years: tuple[int, int]) -> pd.Series:
+    """Typed timestamps outside ``years`` -> NaT (status OUT_OF_RANGE), before any
     conversion to nanoseconds can overflow."""
-    lo, hi = (pd.Timestamp(f"{y}-01-01") for y in YEAR_RANGE)
+    lo, hi = (pd.Timestamp(f"{y}-01-01") for y in years)
     naive = s.dt.tz_convert("UTC").dt.tz_localize(None) if isinstance(
         s.dtype, pd.DatetimeTZDtype) else s
     out = ((naive < lo) | (naive >= hi)).to_numpy()
@@ -134,10 +136,11 @@ def _clip_typed(s: pd.Series, status: np.ndarray) -> pd.Series:
     return s
 
 
-def _ranged(tp: TimeParse) -> TimeParse:
-    """Instants read as OK but outside :data:`YEAR_RANGE` become OUT_OF_RANGE."""
+def _ranged(tp: TimeParse, years: tuple[int, int]) -> TimeParse:
+    """Instants read as OK but outside ``years`` [first, last) become OUT_OF_RANGE."""
+    lo, hi = (pd.Timestamp(f"{y}-01-01", tz="UTC").value for y in years)
     ok = tp.status == OK
-    far = ok & ((tp.utc < _RANGE_NS[0]) | (tp.utc >= _RANGE_NS[1]))
+    far = ok & ((tp.utc < lo) | (tp.utc >= hi))
     tp.status[far] = OUT_OF_RANGE
     tp.utc[far] = NAT
     return tp
@@ -158,7 +161,7 @@ def _np(mask, null_as: bool) -> np.ndarray:
     return np.asarray(pc.fill_null(mask, null_as).to_numpy(zero_copy_only=False), dtype=bool)
 
 
-def _to_ns(text: pa.Array, *, utc: bool) -> np.ndarray:
+def _to_ns(text: pa.Array, *, utc: bool, years: tuple[int, int]) -> np.ndarray:
     """ISO 8601 text -> int64 ns (UTC when ``utc``, else wall time); NAT where unreadable."""
     try:  # fast path: Arrow's ISO 8601 parser, all or nothing
         t = pc.cast(text, pa.timestamp("ns", tz="UTC" if utc else None))
@@ -167,7 +170,7 @@ def _to_ns(text: pa.Array, *, utc: bool) -> np.ndarray:
         pass
     t = pd.to_datetime(pd.Series(text.to_pylist(), dtype=object), format="ISO8601", utc=utc,
                        errors="coerce")
-    lo, hi = (pd.Timestamp(f"{y}-01-01", tz="UTC" if utc else None) for y in YEAR_RANGE)
+    lo, hi = (pd.Timestamp(f"{y}-01-01", tz="UTC" if utc else None) for y in years)
     far = ((t < lo) | (t >= hi)).to_numpy()
     v = t.where(~far).dt.as_unit("ns").array.asi8.copy()
     v[far] = _OUT_NS
@@ -211,8 +214,9 @@ def _naive(naive: pd.Series, where: np.ndarray, naive_time, tz, utc, status, ear
     wall[uidx] = u.array.asi8 if hasattr(u.array, "asi8") else u.to_numpy().astype(np.int64)
 
 
-def describe_time(raw_value, code: int, tz: str) -> str:
-    """Why one timestamp was refused (for the error message)."""
+def describe_time(raw_value, code: int, tz: str, years: tuple[int, int] = YEAR_RANGE) -> str:
+    """Why one timestamp was refused (for the error message); ``years`` as
+    :func:`parse_timestamps`."""
     text = "" if raw_value is None else str(raw_value).strip()
     if code == EMPTY:
         return "timestamp is missing"
@@ -222,8 +226,8 @@ def describe_time(raw_value, code: int, tz: str) -> str:
         return (f"local time {excerpt(text)} does not exist in {tz} (the clocks skip that hour in "
                 "spring), so this row cannot be right")
     if code == OUT_OF_RANGE:
-        return (f"timestamp {excerpt(text)} is outside the years {YEAR_RANGE[0]} to "
-                f"{YEAR_RANGE[1] - 1}")
+        return (f"timestamp {excerpt(text)} is outside the years {years[0]} to "
+                f"{years[1] - 1}")
     if code == EPOCH_RANGE_BAD:
         try:
             hint = " (milliseconds? divide by 1000)" if float(text) >= EPOCH_RANGE[1] else ""
