@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import datetime as dt
+import zoneinfo
 
 import pandas as pd
 
@@ -10,15 +11,39 @@ import pandas as pd
 def local_midnight(day: dt.date, tz: str) -> pd.Timestamp:
     """The first instant of local date ``day`` in zone ``tz`` (UTC).
 
-    Where midnight itself does not exist (a daylight-saving change at 00:00), the day starts at
-    the first valid local instant after it.
+    Where midnight itself does not exist (a daylight-saving change at 00:00, or a whole day
+    skipped, as Pacific/Apia skipped 30 December 2011), the day starts at the first valid local
+    instant after it: the end of the gap. (pandas' ``nonexistent="shift_forward"`` moves by an
+    hour, not by the gap, so a skipped day would come out 25 h long and the next -1 h.)
     """
     ts = pd.Timestamp(dt.datetime(day.year, day.month, day.day))
-    return (
-        ts.tz_localize(tz, nonexistent="shift_forward", ambiguous=True)
-        .tz_convert("UTC")
-        .as_unit("ns")
-    )
+    try:
+        return ts.tz_localize(tz, nonexistent="raise", ambiguous=True).tz_convert("UTC").as_unit(
+            "ns")
+    except Exception:  # noqa: BLE001 - pytz-style NonExistentTimeError from pandas
+        return _gap_end(day, tz)
+
+
+def _gap_end(day: dt.date, tz: str) -> pd.Timestamp:
+    """The UTC instant at which the daylight-saving gap holding local midnight of ``day`` ends."""
+    zone = zoneinfo.ZoneInfo(tz)
+    naive = dt.datetime(day.year, day.month, day.day)
+    lo = int(naive.replace(tzinfo=zone, fold=1).timestamp())   # read with the offset after
+    hi = int(naive.replace(tzinfo=zone, fold=0).timestamp())   # ... and with the one before
+    lo, hi = min(lo, hi), max(lo, hi)
+
+    def offset(t: int) -> dt.timedelta:
+        return dt.datetime.fromtimestamp(t, zone).utcoffset()
+
+    before = offset(lo - 1)
+    while hi - lo > 1:                 # the offset changes once in [lo, hi]: find where
+        mid = (lo + hi) // 2
+        if offset(mid) == before:
+            lo = mid
+        else:
+            hi = mid
+    end = hi if offset(hi) != before else lo
+    return pd.Timestamp(end, unit="s", tz="UTC").as_unit("ns")
 
 
 def last_local_date(end: pd.Timestamp, tz: str) -> dt.date:
@@ -39,6 +64,12 @@ def day_edges(first: dt.date, last: dt.date, tz: str) -> tuple[list[dt.date], pd
     edges = [local_midnight(d, tz) for d in dates] + [
         local_midnight(last + dt.timedelta(days=1), tz)
     ]
+    # a local date that does not exist (Pacific/Apia skipped 30 December 2011) starts and ends
+    # at one instant: it has no row
+    keep = [i for i in range(len(dates)) if edges[i + 1] > edges[i]]
+    if len(keep) < len(dates):
+        dates = [dates[i] for i in keep]
+        edges = [edges[i] for i in keep] + [edges[-1]]
     return dates, pd.DatetimeIndex(edges)
 
 

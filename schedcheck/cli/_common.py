@@ -57,6 +57,8 @@ def make_console(width: int) -> object:
 
 
 def add_row(table, *cells, **options) -> None:
-    """``table.add_row`` with control characters in text cells shown as visible escapes."""
-    table.add_row(*(terminal_text(c, line_breaks=True) if isinstance(c, str) else c
+    """``table.add_row`` with control characters in text cells shown as visible escapes, line
+    feeds included (an id or name holding one would split its row); a cell of our own that
+    needs several lines is passed as a ``rich.text.Text``, which is left as it is."""
+    table.add_row(*(terminal_text(c) if isinstance(c, str) else c
                     for c in cells), **options)

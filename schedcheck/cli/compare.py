@@ -6,6 +6,7 @@ import sys
 from typing import Annotated
 
 import typer
+from rich.text import Text
 
 from schedcheck.cli._app import app
 from schedcheck.cli._common import (
@@ -90,13 +91,16 @@ def compare_table(result) -> object:
         kwh = c.figures["kwh_per_day"]
         missed = c.figures.get("missed_h_per_day")
         lo, hi = off.ci95
+        # cells of our own figures keep their line breaks (rich Text); text from the inputs
+        # (the id) is escaped by add_row
         add_row(table,
-            cid, f"{off.before_mean:.1f} to\n{off.after_mean:.1f}",
-            f"{_signed(off.difference)}\n{_interval(lo, hi)}",
-            f"{kwh.before_mean:.1f} to\n{kwh.after_mean:.1f}",
-            "-" if missed is None else f"{missed.before_mean:.1f} to\n{missed.after_mean:.1f}",
+            cid, Text(f"{off.before_mean:.1f} to\n{off.after_mean:.1f}"),
+            Text(f"{_signed(off.difference)}\n{_interval(lo, hi)}"),
+            Text(f"{kwh.before_mean:.1f} to\n{kwh.after_mean:.1f}"),
+            "-" if missed is None else Text(f"{missed.before_mean:.1f} to\n"
+                                            f"{missed.after_mean:.1f}"),
             _verdict_for(c),
-            "\n".join(_short_span(p, year) for p in c.change_points) or "-",
+            Text("\n".join(_short_span(p, year) for p in c.change_points) or "-"),
         )
     table.caption = (f"Figures per day, before to after. Off: off-schedule running. Change: "
                      f"after minus before, with its 95% interval. Pattern changed: dates in "

@@ -16,10 +16,12 @@ import icalendar
 from schedcheck.errors import InputError, InputProblems
 from schedcheck.inputs.file_limits import (
     MAX_CALENDAR_BYTES,
+    MAX_EVENTS_PER_FILE,
     MAX_TZID_CHARS,
     dense_zone_rule_line,
     long_tzid_line,
     read_regular,
+    too_many_events_line,
 )
 from schedcheck.schedule.calendars import expand_calendar
 from schedcheck.schedule.guards import check_calendar
@@ -56,10 +58,12 @@ def _forget_custom_zones(text: str) -> None:
             cache.pop(clean(name), None)
 
 
-def read_calendar(path: str | Path) -> icalendar.Calendar:
+def read_calendar(path: str | Path, *, max_events: int = MAX_EVENTS_PER_FILE
+                  ) -> icalendar.Calendar:
     """Parse an iCalendar file (RFC 5545).
 
-    Several VCALENDAR objects in one file are merged into one calendar.
+    Several VCALENDAR objects in one file are merged into one calendar. A file of more than
+    ``max_events`` events is refused before it is parsed (memory grows with the events).
 
     Raises
     ------
@@ -86,6 +90,11 @@ def read_calendar(path: str | Path) -> icalendar.Calendar:
     if tzid_line is not None:
         raise InputError(f"a TZID is longer than {MAX_TZID_CHARS} characters; time zone ids are "
                          "short names such as Europe/Oslo", path=path, line=tzid_line)
+    many = too_many_events_line(text, max_events)
+    if many is not None:
+        raise InputError(f"holds more than {max_events:,} events (VEVENT), the most one calendar "
+                         "file may have; split it, or keep only the years the audits need",
+                         path=path, line=many)
     zone_line = dense_zone_rule_line(text)
     if zone_line is not None:
         raise InputError("a VTIMEZONE rule repeats more often than weekly; daylight-saving "

@@ -40,6 +40,9 @@ def weather_settings(v: ValueReader, data: dict, base: Path) -> WeatherSettings 
         path = (p if p.is_absolute() else base / p).resolve()
         if path.is_dir():
             v.err("weather.file", f"{name!r} is a folder; name the weather file (.csv or .epw)")
+        elif path.exists() and not path.is_file():
+            v.err("weather.file", f"weather file {name!r} is not a regular file (a device, "
+                  "pipe or socket); name the weather file (.csv or .epw) itself")
         elif not path.is_file():
             v.err("weather.file", f"weather file {name!r} does not exist (relative to "
                   f"{base.resolve()})")

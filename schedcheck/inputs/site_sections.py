@@ -193,6 +193,10 @@ class SiteValidator(HolidaySections):
             if p.is_dir():
                 k = key if len(files) == 1 else f"{key}[{i}]"
                 self.err(k, f"{f!r} is a folder; name the calendar file (.ics) in it")
+            elif p.exists() and not p.is_file():
+                k = key if len(files) == 1 else f"{key}[{i}]"
+                self.err(k, f"calendar file {excerpt(f)} is not a regular file (a device, pipe "
+                         "or socket); name the calendar file (.ics) itself")
             elif not p.is_file():
                 k = key if len(files) == 1 else f"{key}[{i}]"
                 self.err(k, f"calendar file {f!r} does not exist (relative to "

@@ -17,6 +17,7 @@ import icalendar
 from dateutil.rrule import rrulestr
 
 from schedcheck.errors import InputError
+from schedcheck.schedule.interval_probe import ever_occurs
 
 MAX_STARTS_PER_DAY = 48
 """Most starts a day one RRULE may define through BYHOUR x BYMINUTE x BYSECOND (or an HOURLY
@@ -125,7 +126,8 @@ def _check_rule(rule, start) -> str | None:
         parsed = rrulestr(text, dtstart=as_naive(start), ignoretz=True)
     except (ValueError, TypeError, OverflowError) as exc:
         return f"RRULE {text!r} does not parse: {exc}"
-    return _never_occurs(rule, freq, parsed, text)
+    return _never_occurs(rule, freq, parsed, text) or _never_at_interval(
+        rule, freq, int(interval), start, text)
 
 
 def _never_occurs(rule, freq: str, parsed, text: str) -> str | None:
@@ -149,6 +151,16 @@ def _never_occurs(rule, freq: str, parsed, text: str) -> str | None:
         return None   # leave the verdict to the full parse
     if first is None:
         return f"RRULE {text!r} can never occur (no date matches all its BY parts)"
+    return None
+
+
+def _never_at_interval(rule, freq: str, interval: int, start, text: str) -> str | None:
+    """Rules whose dates exist but are never reached at their INTERVAL from DTSTART
+    (``FREQ=DAILY;INTERVAL=7;BYDAY=MO`` from a Tuesday); decided in bounded time by
+    :func:`schedcheck.schedule.interval_probe.ever_occurs`."""
+    if ever_occurs(rule, freq, interval, as_naive(start)) is False:
+        return (f"RRULE {text!r} can never occur: stepping INTERVAL={interval} from DTSTART "
+                f"({as_naive(start):%Y-%m-%d, a %A}) never reaches a date its BY parts allow")
     return None
 
 
