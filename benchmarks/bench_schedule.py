@@ -135,6 +135,13 @@ def main() -> int:
         "SUMMARY:never\r\nDTSTART:20260101T070000\r\nDURATION:PT1H\r\n"
         "RRULE:FREQ=DAILY;BYMONTH=2;BYMONTHDAY=30\r\nEND:VEVENT\r\nEND:VCALENDAR\r\n")
     t_never = best_of(1, lambda: check_calendar(never))
+    # 100 events whose INTERVAL never reaches their BYDAY (every 7 days from a Tuesday)
+    weekly_never = icalendar.Calendar.from_ical(
+        "BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//bench//EN\r\n" + "".join(
+            f"BEGIN:VEVENT\r\nUID:w{i}\r\nSUMMARY:never {i}\r\nDTSTART:20260303T070000\r\n"
+            "DURATION:PT1H\r\nRRULE:FREQ=DAILY;INTERVAL=7;BYDAY=MO\r\nEND:VEVENT\r\n"
+            for i in range(100)) + "END:VCALENDAR\r\n")
+    t_interval = best_of(1, lambda: check_calendar(weekly_never))
 
     # the time to refuse a calendar at the occurrence cap: three half-hourly rules, 3 years
     hours = ",".join(str(h) for h in range(24))
@@ -159,6 +166,8 @@ def main() -> int:
           f"{t_unit * 1000:.0f} ms, peak {peak / 1e6:.1f} MB traced, intervals {kinds}")
     print(f"worst admitted rule (hourly, {years_back:.1f} years of steps): {t_worst:.2f} s")
     print(f"never-occurs probe (FREQ=DAILY;BYMONTH=2;BYMONTHDAY=30 refused): {t_never:.2f} s")
+    print(f"INTERVAL probe, 100 events FREQ=DAILY;INTERVAL=7;BYDAY=MO from a Tuesday refused: "
+          f"{t_interval:.2f} s")
     print(f"refusing a calendar at the {MAX_OCCURRENCES:,}-occurrence cap: {t_dense:.1f} s")
     return 0 if max(t_cal, t_unit) < TARGET_S else 1
 

@@ -30,10 +30,11 @@ MAX_LINE_BYTES = 1024 * 1024
 MAX_COLUMNS = 1000
 
 #: most a gzip file may unpack to, as a multiple of its compressed size [-]. Readings CSV
-#: packs a few times (the seeded test site's readings 7.3 times, the example's 6.1, measured
-#: with gzip level 9); a file of empty lines or one repeated row packs about 1,000 times,
-#: which only a crafted file does (the bound is common practice, no source). Applied once :data:`RATIO_FROM_BYTES` are unpacked, so a small,
-#: very regular file is never refused for its ratio.
+#: packs a few times (measured: the seeded test site's readings 7.3 times at gzip level 9,
+#: the example site's readings.csv.gz 6.1 times); a file of empty lines or one repeated row
+#: packs about 1,000 times, which only a crafted file does (the bound is common practice, no
+#: source). Applied once :data:`RATIO_FROM_BYTES` are unpacked, so a small, very regular
+#: file is never refused for its ratio.
 MAX_UNPACK_RATIO = 200
 
 #: unpacked size from which :data:`MAX_UNPACK_RATIO` applies [bytes] (common practice, no source)

@@ -212,6 +212,83 @@ CASES = {
     "report-wrong-types": report_folder(lambda out: (out / "summary.json").write_text(
         '{"schema": 1, "site": [], "period": 3, "components": {}}')),
 }
+def _gz_stream(head: bytes, block: bytes, blocks: int) -> bytes:
+    """gzip data of ``head`` then ``blocks`` copies of ``block``, made without holding the text."""
+    import zlib
+
+    c = zlib.compressobj(1, zlib.DEFLATED, 31)
+    return b"".join([c.compress(head), *(c.compress(block) for _ in range(blocks)), c.flush()])
+
+
+def gz_bomb(path: Path, f: pd.DataFrame):
+    # 256 MiB of line breaks after a real header and rows: about 1,000 times its packed size
+    head = f.head(50).to_csv(index=False).encode()
+    (path.parent / "r.csv.gz").write_bytes(_gz_stream(head, b"\n" * 2**20, 256))
+
+
+def gz_damaged(path: Path, f: pd.DataFrame):
+    """A byte in the middle of the deflate data flipped where zlib itself fails (not only the
+    check sum): the seeded data make the first such offset the same on every run."""
+    import zlib
+
+    raw = gzip.compress(path.read_bytes())
+    for off in range(len(raw) // 2, len(raw) - 8):
+        bad = raw[:off] + bytes([raw[off] ^ 0xFF]) + raw[off + 1:]
+        try:
+            gzip.decompress(bad)
+        except zlib.error:
+            (path.parent / "r.csv.gz").write_bytes(bad)
+            return
+        except Exception:  # noqa: BLE001 - a check-sum failure: try the next byte
+            continue
+    raise AssertionError("no offset makes zlib fail")
+
+
+def header_columns(n: int, dup: bool = False):
+    def edit(path: Path, f: pd.DataFrame):
+        extra = ",".join(("x_rms" if dup and i % 2 else f"c{i}") for i in range(n))
+        path.write_text(f"timestamp,sensor,x_rms,{extra}\n2026-03-02T00:00:00Z,S-1,1\n")
+    return edit
+
+
+def long_line(where: str, packed: bool = False):
+    def edit(path: Path, f: pd.DataFrame):
+        big = b"y" * (3 * 2**20)
+        text = f.to_csv(index=False).encode()
+        if where == "header":
+            data = b"timestamp,sensor,x_rms" + big
+        else:
+            lines = text.splitlines(keepends=True)
+            data = b"".join(lines[:100]) + b"2026-03-02T02:00:00Z,S-1," + big
+        if packed:
+            (path.parent / "r.csv.gz").write_bytes(gzip.compress(data, 1))
+        else:
+            path.write_bytes(data)
+    return edit
+
+
+def _events(n: int, rule: str = "") -> str:
+    body = "".join(f"BEGIN:VEVENT\r\nUID:e{i}@test.invalid\r\nDTSTART:20260303T070000Z\r\n"
+                   f"DTEND:20260303T170000Z\r\n{rule}END:VEVENT\r\n" for i in range(n))
+    return ("BEGIN:VCALENDAR\r\nVERSION:2.0\r\nPRODID:-//test//x//EN\r\n" + body
+            + "END:VCALENDAR\r\n")
+
+
+def _folded_zone(ics: str) -> str:
+    """A VTIMEZONE whose MINUTELY rule is folded over two lines (RFC 5545 section 3.1)."""
+    return _zone(ics, "YEARLY").replace("RRULE:FREQ=YEARLY\r\n",
+                                        "RRULE:BYMONTH=3;\r\n FREQ=MINUTELY\r\n")
+
+
+def _many_problems(d: Path):
+    p = write_site(d)
+    more = "".join(f'\n[[unit]]\nid = "U{i}"\n' + "".join(f"bad{k} = 1\n" for k in range(19))
+                   + f'[[unit.component]]\nid = "s"\nrole = "supply_fan"\nsensor = "X{i}"\n'
+                   "power_kw = 1\nspeed = 1\n" for i in range(1999))
+    p.write_text(p.read_text() + more)
+    return ["check", p], f"{p}:"
+
+
 def _many_units(d: Path):
     p = write_site(d)
     more = "".join(f'\n[[unit]]\nid = "U{i}"\n[[unit.component]]\nid = "s"\nrole = "supply_fan"\n'
@@ -221,6 +298,33 @@ def _many_units(d: Path):
 
 
 CASES["units-too-many"] = _many_units
+CASES.update({
+    # bounds on readings files (docs/readings.md, "Limits")
+    "gz-bomb-newlines": readings(gz_bomb, "r.csv.gz"),
+    "gz-damaged-deflate": readings(gz_damaged, "r.csv.gz"),
+    "header-10000-columns": readings(header_columns(10_000)),
+    "header-40000-columns-dup": readings(header_columns(40_000, dup=True)),
+    "header-dup-used-column": readings(header_columns(3, dup=True)),
+    "header-line-no-break": readings(long_line("header")),
+    "header-line-no-break-gz": readings(long_line("header", packed=True), "r.csv.gz"),
+    "data-line-no-break": readings(long_line("data")),
+    "years-narrowed": lambda d: (write_site(d, readings='files = ["readings.csv"]\n'
+                                            "years = [2027, 2035]"),
+                                 ["audit", d / "site.toml", "--out", d / "out"],
+                                 "readings.csv:2")[1:],
+    "years-reversed": site_key(readings='files = ["readings.csv"]\nyears = [2035, 2020]'),
+    "years-too-wide": site_key(readings='files = ["readings.csv"]\nyears = [1800, 2300]'),
+    "years-text": site_key(readings='files = ["readings.csv"]\nyears = "2020-2030"'),
+    # calendars
+    "cal-330000-events": calendar(lambda p: p.write_text(_events(330_000))),
+    "cal-interval-never-100": calendar(lambda p: p.write_text(
+        _events(100, "RRULE:FREQ=DAILY;INTERVAL=7;BYDAY=MO\r\n"))),
+    "cal-interval-never-monthly": calendar(lambda p: p.write_text(
+        _events(100, "RRULE:FREQ=MONTHLY;INTERVAL=2;BYMONTH=2\r\n"))),
+    "cal-zone-minutely-folded": calendar(lambda p: p.write_text(_folded_zone(p.read_text()))),
+    # site files
+    "site-38000-problems": _many_problems,
+})
 
 for _i, _c in enumerate(CONTROL):
     CASES[f"unit-control-{_i}"] = site_key(unit=f"AHU{_c}1")

@@ -79,7 +79,8 @@ def test_gzip_file_cut_short_is_one_plain_error(tmp_path):
     with pytest.raises(InputProblems) as exc:
         load_readings(load_site(site_file(tmp_path)))
     (msg,) = errors_of(exc.value)
-    head = f"{tmp_path / 'readings' / 'cut.csv.gz'}: the compressed data ends early: the file is cut short"
+    head = (f"{tmp_path / 'readings' / 'cut.csv.gz'}: the compressed data ends early: the "
+            "file is cut short")
     m = re.fullmatch(re.escape(head) + r" \(after [0-9.]+ MiB of text, near line (\d+)\); "
                      "copy or download the file again", msg)
     assert m, msg
