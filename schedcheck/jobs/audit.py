@@ -4,8 +4,9 @@ Opens the site and its readings (:mod:`schedcheck.jobs.common`), reads the calen
 run states (:func:`schedcheck.runstate.classify.classify_unit`), expands the intended schedule
 (:func:`schedcheck.schedule.intended.expand_unit_schedule`), runs the core audit
 (:func:`schedcheck.audit.run.run_audit`), finds the behaviour episodes
-(:func:`schedcheck.changes.episodes.with_episodes`) and writes the files (:mod:`schedcheck.outputs.files`) and
-the report. Prints nothing: progress goes to the optional ``progress`` callback.
+(:func:`schedcheck.changes.episodes.with_episodes`) and writes the files
+(:mod:`schedcheck.outputs.files`) and the report. Prints nothing: progress goes to the
+optional ``progress`` callback.
 """
 
 from __future__ import annotations
