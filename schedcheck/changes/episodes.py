@@ -91,6 +91,13 @@ def dating_hours(comp: ComponentResult, edges_ns: np.ndarray,
     return out
 
 
+def window_edges(dates: list[dt.date], result: AuditResult) -> np.ndarray:
+    """The local day edges of ``dates`` (consecutive) as UTC ns, clipped to the audit window as
+    the accounting's days are."""
+    _, edges = day_edges(dates[0], dates[-1], result.site.timezone)
+    return np.clip(to_ns(edges), to_ns(result.start), to_ns(result.end))
+
+
 def component_episodes(comp: ComponentResult, result: AuditResult, **settings
                        ) -> list[Episode]:
     """The behaviour episodes of one component over the audit window, local dates."""
@@ -98,8 +105,7 @@ def component_episodes(comp: ComponentResult, result: AuditResult, **settings
     dates = [pd.Timestamp(d).date() for d in daily["date"]]
     if not dates:
         return []
-    _, edges = day_edges(dates[0], dates[-1], result.site.timezone)
-    edges_ns = np.clip(to_ns(edges), to_ns(result.start), to_ns(result.end))
+    edges_ns = window_edges(dates, result)
     hours = (daily["off_schedule_ns"] / NS_PER_H).to_numpy(dtype=float)
     usable = (daily["no_data_ns"] / NS_PER_H).to_numpy(dtype=float) <= MAX_NO_DATA_H
     dating = np.where(usable, dating_hours(comp, edges_ns), np.nan)
