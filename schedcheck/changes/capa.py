@@ -49,7 +49,7 @@ MAD_TO_SD = 1.4826
 #: departures are findings of their own or point anomalies (common practice, no source; the
 #: method's own floor, skchange's default, is 2). On seeded Gaussian series of 120 days it also
 #: holds false collective episodes to 5 % with the default penalty (7 % with 2).
-MIN_LENGTH = 7
+MIN_LENGTH = 7   # a setting: [findings] episode_min_days
 
 
 @dataclass(frozen=True)

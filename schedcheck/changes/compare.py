@@ -49,7 +49,12 @@ from schedcheck.changes.change_points import (
     robust_sigma,
     segment_means,
 )
-from schedcheck.changes.episodes import component_episodes, dating_hours, window_edges
+from schedcheck.changes.episodes import (
+    component_episodes,
+    dating_hours,
+    episode_settings,
+    window_edges,
+)
 from schedcheck.errors import InputError
 from schedcheck.intervals import NS_PER_H
 from schedcheck.schedule.calendars import MAX_WINDOW_DAYS
@@ -331,7 +336,7 @@ def compare_audit(result: AuditResult, site: Site, change: dt.date, before: int,
         if not comp.account.counts_missed:
             figures.pop("missed_h_per_day", None)
         eps = (result.episodes[comp.key] if comp.key in result.episodes
-               else component_episodes(comp, result))
+               else component_episodes(comp, result, **episode_settings(result)))
         dated = dating_episode(eps, change)
         off = figures.get("off_schedule_h_per_day")
         moved = bool(points) or (off is not None and (off.ci95[0] > 0 or off.ci95[1] < 0))

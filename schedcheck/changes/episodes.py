@@ -112,13 +112,27 @@ def component_episodes(comp: ComponentResult, result: AuditResult, **settings
     return daily_episodes(dates, dating, shown=np.where(usable, hours, np.nan), **settings)
 
 
+def episode_settings(result: AuditResult) -> dict:
+    """CAPA's settings from the site's ``[findings]`` table: ``episode_floor`` [h/day] (default
+    :data:`schedcheck.changes.capa.SCALE_FLOOR_H`) and ``episode_min_days`` [days] (default
+    :data:`schedcheck.changes.capa.MIN_LENGTH`)."""
+    f = result.site.findings
+    out = {}
+    if getattr(f, "episode_floor", None) is not None:
+        out["floor"] = float(f.episode_floor)
+    if getattr(f, "episode_min_days", None) is not None:
+        out["min_length"] = int(f.episode_min_days)
+    return out
+
+
 def with_episodes(result: AuditResult, **settings) -> AuditResult:
-    """Find every component's episodes and mark the unit findings that lie in one (in place;
-    returns ``result``)."""
+    """Find every component's episodes (``settings`` over the site's: :func:`episode_settings`)
+    and mark the unit findings that lie in one (in place; returns ``result``)."""
+    settings = episode_settings(result) | settings
     result.episodes = {c.key: component_episodes(c, result, **settings)
                        for c in result.components}
-    result.findings = mark_findings(result.findings, result.episodes, result.last_date,
-                                    result.site.timezone)
+    result.findings = mark_findings(result.findings, result.episodes, result.first_date,
+                                    result.last_date, result.site.timezone)
     return result
 
 
@@ -144,18 +158,20 @@ def episode_of(components, first: dt.date, last: dt.date,
     return None
 
 
-def since_words(kind: str, ep: Episode, last_date: dt.date) -> str:
+def since_words(kind: str, ep: Episode, first_date: dt.date, last_date: dt.date) -> str:
     """"Off-schedule running like this every night since 2026-04-20 (14.1 h a day against a
     usual 0.0 h)", with "last seen on ..." where the episode ended before the window did (the
-    days after it may be days off, on which a fault of working days does not show)."""
+    days after it may be days off, on which a fault of working days does not show), and "since
+    at least ..." where it began on the window's first day (it may have begun before)."""
     words = PATTERN_WORDS.get(kind, "day after day")
     until = f", last seen on {ep.end.isoformat()}" if ep.end < last_date else ""
-    return (f"Off-schedule running like this {words} since {ep.start.isoformat()}{until} "
+    since = "since at least" if ep.start <= first_date else "since"
+    return (f"Off-schedule running like this {words} {since} {ep.start.isoformat()}{until} "
             f"({ep.mean_h_per_day:.1f} h a day against a usual {ep.usual_h_per_day:.1f} h).")
 
 
 def mark_findings(findings: pd.DataFrame, episodes: dict[str, list[Episode]],
-                  last_date: dt.date, tz: str) -> pd.DataFrame:
+                  first_date: dt.date, last_date: dt.date, tz: str) -> pd.DataFrame:
     """``episode_start`` / ``episode_end`` (ISO local dates, "" where none) on each unit
     finding (:mod:`schedcheck.findings.grouping`), and the sentence told since when."""
     f = findings.copy()
@@ -167,7 +183,7 @@ def mark_findings(findings: pd.DataFrame, episodes: dict[str, list[Episode]],
         ep = episode_of(list(row.components), first, last, episodes)
         starts.append(ep.start.isoformat() if ep else "")
         ends.append(ep.end.isoformat() if ep else "")
-        details.append(f"{row.detail} {since_words(row.kind, ep, last_date)}" if ep
+        details.append(f"{row.detail} {since_words(row.kind, ep, first_date, last_date)}" if ep
                        else row.detail)
     f["episode_start"] = pd.Series(starts, index=f.index, dtype=object)
     f["episode_end"] = pd.Series(ends, index=f.index, dtype=object)

@@ -116,3 +116,20 @@ def test_no_collective_episode_on_stationary_daily_hours_in_95_percent_of_trials
     steady = sum(not any(e.kind == "collective" for e in daily_episodes(
         dates, np.clip(rng.normal(0.6, 0.5, 91), 0, None))) for _ in range(200))
     assert healthy >= 190 and steady >= 190
+
+
+def test_the_site_settings_reach_capa(demo_audit):
+    import dataclasses
+
+    from schedcheck.changes.episodes import component_episodes, episode_settings
+
+    result = demo_audit.result
+    site = dataclasses.replace(result.site, findings=dataclasses.replace(
+        result.site.findings, episode_floor=2.0, episode_min_days=50))
+    copy = dataclasses.replace(result, site=site)      # the session's result stays as it is
+    assert episode_settings(copy) == {"floor": 2.0, "min_length": 50}
+    comp = result.component("AHU-3/supply")
+    # the clock fault's 45 days of about half an hour are no episode of 50 days or more
+    assert _collective(result, "AHU-3/supply")
+    assert not [e for e in component_episodes(comp, copy, **episode_settings(copy))
+                if e.kind == "collective"]
