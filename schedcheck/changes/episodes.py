@@ -38,6 +38,7 @@ import datetime as dt
 import numpy as np
 import pandas as pd
 
+from schedcheck.audit.accounting import ScheduleSets
 from schedcheck.audit.run import AuditResult, ComponentResult
 from schedcheck.changes.capa import Episode, daily_episodes
 from schedcheck.intervals import NS_PER_H, Intervals, to_ns
@@ -69,8 +70,12 @@ def dating_hours(comp: ComponentResult, edges_ns: np.ndarray,
     """The series behaviour is dated on (module docstring) [h/day]: one figure per bin of
     ``edges_ns`` (local day edges, UTC ns); NaN on a day with no time outside its occupied
     hours and allowances."""
-    acc, sc = comp.account, comp.account.schedule
-    off = acc.off_schedule
+    return dating_series(comp.account.off_schedule, comp.account.schedule, edges_ns, reach)
+
+
+def dating_series(off: Intervals, sc: ScheduleSets, edges_ns: np.ndarray,
+                  reach: pd.Timedelta = DATING_REACH) -> np.ndarray:
+    """:func:`dating_hours` from the off-schedule running ``off`` and the schedule ``sc``."""
     filled = off.ns_per_bin(edges_ns).astype(float)
     allowed = sc.allowed - sc.occupied - sc.allowance
     base = (sc.unscheduled | allowed).ns_per_bin(edges_ns).astype(float)
@@ -100,16 +105,40 @@ def window_edges(dates: list[dt.date], result: AuditResult) -> np.ndarray:
 
 def component_episodes(comp: ComponentResult, result: AuditResult, **settings
                        ) -> list[Episode]:
-    """The behaviour episodes of one component over the audit window, local dates."""
+    """The behaviour episodes of one component that reach into the audit window, local dates.
+
+    Where the audit has a look-back (``result.reference``), the days before the window count
+    too, so an episode that began before a month audited alone keeps its real start ("since
+    when") and the month's usual level is that of the longer span; the off-schedule running of
+    the look-back days is the running outside the occupied periods, allowances and allowed
+    windows. Episodes that end before the window, and odd days before it, are left out.
+    """
     daily = comp.daily
     dates = [pd.Timestamp(d).date() for d in daily["date"]]
     if not dates:
         return []
     edges_ns = window_edges(dates, result)
     hours = (daily["off_schedule_ns"] / NS_PER_H).to_numpy(dtype=float)
-    usable = (daily["no_data_ns"] / NS_PER_H).to_numpy(dtype=float) <= MAX_NO_DATA_H
-    dating = np.where(usable, dating_hours(comp, edges_ns), np.nan)
-    return daily_episodes(dates, dating, shown=np.where(usable, hours, np.nan), **settings)
+    no_data = (daily["no_data_ns"] / NS_PER_H).to_numpy(dtype=float)
+    dating = dating_hours(comp, edges_ns)
+    ref = result.reference.get(comp.key)
+    if ref is not None and result.lookback_start is not None:
+        tz = result.site.timezone
+        first = pd.Timestamp(result.lookback_start).tz_convert(tz).date()
+        if first < dates[0]:
+            before, edges = day_edges(first, dates[0] - dt.timedelta(days=1), tz)
+            e_ns = np.clip(to_ns(edges), to_ns(ref.start), to_ns(result.start))
+            sc = ref.schedule
+            off = ref.states.run - (sc.occupied | sc.allowance_any)
+            dates = before + dates
+            hours = np.concatenate([off.ns_per_bin(e_ns) / NS_PER_H, hours])
+            no_data = np.concatenate([ref.states.no_data.ns_per_bin(e_ns) / NS_PER_H, no_data])
+            dating = np.concatenate([dating_series(off, sc, e_ns), dating])
+    usable = no_data <= MAX_NO_DATA_H
+    found = daily_episodes(dates, np.where(usable, dating, np.nan),
+                           shown=np.where(usable, hours, np.nan), **settings)
+    return [ep for ep in found if ep.end >= result.first_date
+            and (ep.kind == "collective" or ep.start >= result.first_date)]
 
 
 def episode_settings(result: AuditResult) -> dict:
@@ -131,7 +160,11 @@ def with_episodes(result: AuditResult, **settings) -> AuditResult:
     settings = episode_settings(result) | settings
     result.episodes = {c.key: component_episodes(c, result, **settings)
                        for c in result.components}
-    result.findings = mark_findings(result.findings, result.episodes, result.first_date,
+    seen_from = result.first_date     # the first day the episodes could see
+    if result.lookback_start is not None and result.reference:
+        seen_from = min(seen_from, pd.Timestamp(result.lookback_start)
+                        .tz_convert(result.site.timezone).date())
+    result.findings = mark_findings(result.findings, result.episodes, seen_from,
                                     result.last_date, result.site.timezone)
     return result
 
@@ -162,7 +195,8 @@ def since_words(kind: str, ep: Episode, first_date: dt.date, last_date: dt.date)
     """"Off-schedule running like this every night since 2026-04-20 (14.1 h a day against a
     usual 0.0 h)", with "last seen on ..." where the episode ended before the window did (the
     days after it may be days off, on which a fault of working days does not show), and "since
-    at least ..." where it began on the window's first day (it may have begun before)."""
+    at least ..." where it began on ``first_date``, the first day the episodes could see (it
+    may have begun before)."""
     words = PATTERN_WORDS.get(kind, "day after day")
     until = f", last seen on {ep.end.isoformat()}" if ep.end < last_date else ""
     since = "since at least" if ep.start <= first_date else "since"

@@ -133,3 +133,21 @@ def test_the_site_settings_reach_capa(demo_audit):
     assert _collective(result, "AHU-3/supply")
     assert not [e for e in component_episodes(comp, copy, **episode_settings(copy))
                 if e.kind == "collective"]
+
+
+@pytest.mark.slow   # one more demo audit (April alone)
+def test_a_month_audited_alone_keeps_the_episode_start_from_its_look_back(demo_audit):
+    from schedcheck.jobs.audit import audit_result
+    from schedcheck.jobs.common import open_site
+
+    april = audit_result(open_site(demo_audit.site_file), dt.date(2026, 4, 1),
+                         dt.date(2026, 4, 30))
+    full = _collective(demo_audit.result, "AHU-3/supply")[0]
+    alone = _collective(april, "AHU-3/supply")
+    # the clock fault began before April: the month says since when, as the full audit does
+    assert [e.start for e in alone] == [full.start] == [dt.date(2026, 3, 30)]
+    assert [e.start for e in _collective(april, "AHU-4/supply")] == [dt.date(2026, 4, 20)]
+    assert april.episodes["AHU-5/supply"] == []
+    f = april.findings
+    row = f[(f["unit"] == "AHU-3") & (f["kind"] == "clock_offset")].iloc[0]
+    assert "every working day since 2026-03-30" in row["detail"]
