@@ -200,6 +200,8 @@ class FindingSettings:
     together: pd.Timedelta | None = None           # one unit's findings this close are one
     recurring_dates: int | None = field(default=None, metadata={"min": 1})  # dates of a pattern
     recurring_weeks: int | None = field(default=None, metadata={"min": 1})  # weeks of a pattern
+    episode_floor: float | None = field(default=None, metadata={"min": 0.05, "max": 24})  # h/day
+    episode_min_days: int | None = field(default=None, metadata={"min": 2})  # shortest episode
 
 
 @dataclass(frozen=True)

@@ -21,6 +21,9 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from schedcheck.changes.capa import daily_episodes
+from schedcheck.outputs.episode_records import episode_records
+
 DEFAULT_UNITS = [
     ("AHU-1", "North wing offices", [("supply", "supply_fan", "S-101", 7.5),
                                      ("exhaust", "exhaust_fan", "S-102", 5.5)]),
@@ -171,6 +174,10 @@ def write_fixture(outdir: Path, *, first: dt.date = dt.date(2026, 3, 23), days: 
                            "off_schedule_kwh": tot.os * kw, "off_schedule_cost": tot.os * kw * 1.2,
                            "off_schedule_co2_kg": tot.os * kw * 0.017},
                 "findings": sum(1 for f in findings if f["component"] == key),
+                # the real CAPA on the fixture's own daily off-schedule hours
+                "episodes": episode_records(daily_episodes(
+                    [first + dt.timedelta(days=int(i)) for i in per.index],
+                    per["os"].to_numpy(dtype=float))),
             })
             sensors.append({"sensor": sensor, "component": key, "first": start.isoformat(),
                             "last": end.isoformat(), "count": int((state != 2).sum()),
@@ -179,7 +186,7 @@ def write_fixture(outdir: Path, *, first: dt.date = dt.date(2026, 3, 23), days: 
                             "conflicting": 0, "out_of_order": 0,
                             "coverage": float((state != 2).mean())})
     summary = {
-        "schema": 1,
+        "schema": 2,
         "site": {"name": site_name, "timezone": tz, "currency": "NOK", "price": 1.2,
                  "co2_per_kwh": 0.017, "reading_unit": "mm/s"},
         "period": {"start": start.tz_convert(tz).isoformat(), "end": end.tz_convert(tz).isoformat(),

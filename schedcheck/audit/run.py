@@ -78,8 +78,7 @@ class ComponentResult:
     zones: LimitZones = field(default_factory=LimitZones.none)   # speed limits in force
 
     @property
-    def speeds(self) -> SpeedPieces:
-        """The run time by speed (:mod:`schedcheck.runstate.speeds`)."""
+    def speeds(self) -> SpeedPieces:   # the run time by speed (runstate.speeds)
         return self.states.speed_pieces
     thermal: ThermalMinutes | None = None   # outdoor-air energy by minute (its unit's supply fan)
 
@@ -112,6 +111,7 @@ class AuditResult:
     component_findings: pd.DataFrame | None = None   # FINDING_COLUMNS, one per component
     unit_hours: dict[str, float] = field(default_factory=dict)   # unit -> off-schedule unit-h
     projection: dict = field(default_factory=dict)   # findings.projection.project_year
+    episodes: dict[str, list] = field(default_factory=dict)   # key -> changes.capa.Episode
 
     @property
     def component_hours(self) -> float:

@@ -49,7 +49,7 @@ MAD_TO_SD = 1.4826
 #: departures are findings of their own or point anomalies (common practice, no source; the
 #: method's own floor, skchange's default, is 2). On seeded Gaussian series of 120 days it also
 #: holds false collective episodes to 5 % with the default penalty (7 % with 2).
-MIN_LENGTH = 7
+MIN_LENGTH = 7   # a setting: [findings] episode_min_days
 
 
 @dataclass(frozen=True)
@@ -152,23 +152,58 @@ def standardise(hours: np.ndarray, *, floor: float = SCALE_FLOOR_H,
     return x, baseline, scale
 
 
-def daily_episodes(dates: list[dt.date], hours: np.ndarray, **settings) -> list[Episode]:
+def daily_episodes(dates: list[dt.date], hours: np.ndarray, *, shown: np.ndarray | None = None,
+                   **settings) -> list[Episode]:
     """Episodes of one component's daily off-schedule hours [h/day], with local dates.
+
+    ``hours`` is the series CAPA reads; ``shown`` (default ``hours``), the same days' hours
+    whose means the episodes report (the audit dates on the hours with allowed windows filled
+    in and reports the plain off-schedule hours: :mod:`schedcheck.changes.episodes`).
+
+    Days without a figure (NaN: no data) are left out of the series CAPA reads, so a silent
+    sensor neither ends an episode nor looks like a return to the usual level; an episode runs
+    from its first to its last day with a figure.
 
     Only departures upwards (more off-schedule running than usual) are episodes of waste; a
     collective anomaly below the usual level (the waste stopping) is kept too, so that "it
     stopped on 3 March" can be read off the episode that ends there.
+
+    Anomalies that touch and depart the same way are one episode (:func:`joined`): a change
+    made part-way through a day leaves that day between the old and the new level, which CAPA
+    marks as a point anomaly beside the collective one.
     """
     h = np.asarray(hours, dtype=float)
     floor = settings.pop("floor", SCALE_FLOOR_H)
-    x, baseline, _ = standardise(h, floor=floor)
+    known = np.flatnonzero(np.isfinite(h))
+    x, baseline, _ = standardise(h[known], floor=floor)
     found = capa(x, **settings)
+    h = h if shown is None else np.asarray(shown, dtype=float)
+    usual = baseline if shown is None else standardise(h, floor=floor)[1]
+    spans = [(s, e, "collective") for s, e in found.collective]
+    spans += [(t, t + 1, "point") for t in found.points]
     out = []
-    for s, e in found.collective:
-        seg = h[s:e]
-        out.append(Episode(dates[s], dates[e - 1], "collective",
-                           round(float(np.nanmean(seg)), 2), round(baseline, 2)))
-    for t in found.points:
-        out.append(Episode(dates[t], dates[t], "point", round(float(h[t]), 2),
-                           round(baseline, 2)))
+    for s, e, kind in joined(sorted(spans), x):
+        first, last = int(known[s]), int(known[e - 1])
+        out.append(Episode(dates[first], dates[last], kind, _mean(h[known[s:e]]),
+                           round(usual, 2)))
     return sorted(out, key=lambda ep: (ep.start, ep.kind))
+
+
+def joined(spans: list[tuple[int, int, str]], x: np.ndarray) -> list[tuple[int, int, str]]:
+    """Anomalies ``(start, end, kind)`` in order, those that touch and lie on the same side of
+    the baseline joined; a join that holds a collective anomaly is one. Two points alone stay
+    two points (a pair of odd days is not a period)."""
+    out: list[list] = []
+    for s, e, kind in spans:
+        side = np.sign(x[s:e].sum())
+        if out and out[-1][1] == s and out[-1][3] == side and "collective" in (kind, out[-1][2]):
+            out[-1][1], out[-1][2] = e, "collective"
+        else:
+            out.append([s, e, kind, side])
+    return [(s, e, kind) for s, e, kind, _ in out]
+
+
+def _mean(h: np.ndarray) -> float:
+    """The mean of the days with a figure [h/day], rounded; 0 where none has one."""
+    known = h[np.isfinite(h)]
+    return round(float(known.mean()), 2) if known.size else 0.0

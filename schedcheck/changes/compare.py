@@ -14,8 +14,15 @@ Per component:
   (:func:`schedcheck.changes.before_after`, occupied days compared with occupied days and
   unoccupied days with unoccupied days);
 * the dates where the daily pattern of off-schedule hours changed, found by PELT over the
-  whole window (PELT with the capped cost), whatever
-  date the user gave.
+  whole window (PELT with the capped cost), whatever date the user gave. PELT reads the
+  series the behaviour episodes are dated on (:func:`schedcheck.changes.episodes.dating_hours`:
+  the share of the possible off-schedule time run, with allowed windows filled in as the unit
+  behaved next to them), so allowed windows starting or stopping (night cooling allowed from
+  May, say) do not date a change the unit never made; the means before and after each date are
+  the plain off-schedule hours;
+* the behaviour episode that dates the change (:func:`dating_episode`): the start or end of a
+  collective episode (:mod:`schedcheck.changes.episodes`) within :data:`NEAR_DAYS` of the given
+  date, nearest first, or a note that none begins or ends near it.
 
 Days with more than ``max_no_data_h`` hours of no data are left out of both and counted, never
 dropped silently. Both periods are judged against the schedule in the site file as it is now:
@@ -32,6 +39,7 @@ import numpy as np
 import pandas as pd
 
 from schedcheck.audit.run import AuditResult
+from schedcheck.changes.capa import Episode
 from schedcheck.changes.change_points import (
     BeforeAfter,
     before_after,
@@ -40,6 +48,12 @@ from schedcheck.changes.change_points import (
     pelt_mean_shift,
     robust_sigma,
     segment_means,
+)
+from schedcheck.changes.episodes import (
+    component_episodes,
+    dating_hours,
+    episode_settings,
+    window_edges,
 )
 from schedcheck.errors import InputError
 from schedcheck.intervals import NS_PER_H
@@ -72,6 +86,11 @@ CAP_SIGMAS = 3.0
 #: week to count as one, so that a few odd days together (Easter, an override left on over
 #: a long weekend) do not. Common practice, no source.
 MIN_SEGMENT_DAYS = 7
+
+#: An episode that begins or ends this close to the given change date dates it [days]: a week
+#: either way, since a controls change is often logged a few days from when it was made.
+#: Common practice, no source.
+NEAR_DAYS = 7
 
 FIGURES = {  # name in the output -> how to read it from the audit's daily rows
     "off_schedule_h_per_day": lambda d: d["off_schedule_ns"] / NS_PER_H,
@@ -113,6 +132,15 @@ class ChangePoint:
 
 
 @dataclass
+class EpisodeDate:
+    """The behaviour episode nearest the given change date: it ``began`` or ``ended`` there."""
+
+    date: dt.date                 # the first local date of the new behaviour
+    how: str                      # "began" (an episode started) | "ended" (the day after it)
+    episode: Episode
+
+
+@dataclass
 class ComponentChange:
     """The before/after comparison of one component."""
 
@@ -123,6 +151,8 @@ class ComponentChange:
     figures: dict[str, BeforeAfter]                  # FIGURES name -> comparison
     change_points: list[ChangePoint]
     notes: list[CompareNote] = field(default_factory=list)
+    episodes: list[Episode] = field(default_factory=list)   # over the compare window
+    dated: EpisodeDate | None = None   # the episode boundary nearest the change, if near
 
 
 @dataclass
@@ -150,6 +180,7 @@ def compare_daily(
     after: int,
     *,
     max_no_data_h: float = MAX_NO_DATA_H,
+    dating: np.ndarray | None = None,
 ) -> tuple[dict[str, BeforeAfter], list[ChangePoint], dict[str, dict[str, int]], list[str]]:
     """Before/after figures and change points from one component's daily rows (pure).
 
@@ -165,6 +196,10 @@ def compare_daily(
         Period lengths [days].
     max_no_data_h : float
         Days with more no data than this are left out [h].
+    dating : ndarray, optional
+        The series the change points are found on, one figure per row of ``daily`` (NaN: no
+        figure) [h/day]; by default the plain off-schedule hours. The means around each change
+        point are always the plain off-schedule hours.
 
     Returns
     -------
@@ -199,9 +234,12 @@ def compare_daily(
                                                   e.message)]
     notes += [CompareNote(f"off-schedule hours: {n}", FIGURE_NOTE)
               for n in figures["off_schedule_h_per_day"].notes]
-    y = (daily["off_schedule_ns"] / NS_PER_H).to_numpy(dtype=float)[usable]
-    g = types.to_numpy()[usable]
-    used_dates = [d for d, u in zip(dates, usable, strict=True) if u]
+    plain = (daily["off_schedule_ns"] / NS_PER_H).to_numpy(dtype=float)
+    series = plain if dating is None else np.asarray(dating, dtype=float)
+    dated = usable & np.isfinite(series)
+    y = series[dated]
+    g = types.to_numpy()[dated]
+    used_dates = [d for d, u in zip(dates, dated, strict=True) if u]
     points: list[ChangePoint] = []
     if len(y) >= 2 * MIN_SEGMENT_DAYS:
         sigma = max(robust_sigma(y, g), SIGMA_FLOOR_H)
@@ -209,10 +247,25 @@ def compare_daily(
         cap = CAP_SIGMAS * sigma
         idx = pelt_mean_shift(y, pen, groups=g, min_size=MIN_SEGMENT_DAYS, cap=cap)
         spans = change_point_ranges(y, idx, groups=g, min_size=MIN_SEGMENT_DAYS, cap=cap)
-        means = segment_means(y, idx, g)
+        means = segment_means(plain[dated], idx, g)
         points = [ChangePoint(used_dates[a], used_dates[b], means[k], means[k + 1])
                   for k, (a, b) in enumerate(spans)]
     return figures, points, days, notes
+
+
+def dating_episode(episodes: list[Episode], change: dt.date, near: int = NEAR_DAYS
+                   ) -> EpisodeDate | None:
+    """The collective episode boundary nearest ``change`` within ``near`` days: where one began
+    (its start) or ended (the day after its end); None if none is that near. On a tie the
+    earlier date wins."""
+    found = []
+    for ep in episodes:
+        if ep.kind != "collective":
+            continue
+        found.append(EpisodeDate(ep.start, "began", ep))
+        found.append(EpisodeDate(ep.end + dt.timedelta(days=1), "ended", ep))
+    found = [f for f in found if abs((f.date - change).days) <= near]
+    return min(found, key=lambda f: (abs((f.date - change).days), f.date), default=None)
 
 
 def check_periods(before: int, after: int) -> tuple[int, int]:
@@ -276,11 +329,23 @@ def compare_audit(result: AuditResult, site: Site, change: dt.date, before: int,
     first, last = compare_window(change, before, after)
     comps = []
     for comp in result.components:
-        figures, points, days, notes = compare_daily(comp.daily, change, before, after)
+        dates = [pd.Timestamp(d).date() for d in comp.daily["date"]]
+        dating = dating_hours(comp, window_edges(dates, result))
+        figures, points, days, notes = compare_daily(comp.daily, change, before, after,
+                                                     dating=dating)
         if not comp.account.counts_missed:
             figures.pop("missed_h_per_day", None)
+        eps = (result.episodes[comp.key] if comp.key in result.episodes
+               else component_episodes(comp, result, **episode_settings(result)))
+        dated = dating_episode(eps, change)
+        off = figures.get("off_schedule_h_per_day")
+        moved = bool(points) or (off is not None and (off.ci95[0] > 0 or off.ci95[1] < 0))
+        if dated is None and moved:   # something changed, but no episode dates it
+            notes.append(CompareNote(f"no behaviour episode begins or ends within {NEAR_DAYS} "
+                                     f"days of {change}: the data do not date a change of "
+                                     "behaviour near it", FIGURE_NOTE))
         comps.append(ComponentChange(comp.key, comp.unit.id, comp.component.role, days,
-                                     figures, points, notes))
+                                     figures, points, notes, eps, dated))
     if comps and not any(c.figures for c in comps):
         reason = next(n.reason for n in comps[0].notes if n.kind == NOT_COMPARED)
         raise InputError(f"no component can be compared: {comps[0].id}: {reason}",

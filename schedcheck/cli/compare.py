@@ -168,6 +168,13 @@ def _advice(result) -> list[str]:
                 f"{c.id}: the unit was off for {missed.difference:.1f} h/day more of its "
                 "occupied hours after the change; check that it still gives the occupants "
                 "their minimum ventilation.")
+        if c.dated is not None:
+            ep = c.dated.episode
+            what = (f"an episode of {ep.mean_h_per_day:.1f} h/day off schedule began (usual "
+                    f"{ep.usual_h_per_day:.1f})" if c.dated.how == "began" else
+                    f"an episode of {ep.mean_h_per_day:.1f} h/day off schedule ended the day "
+                    "before")
+            lines.append(f"{c.id}: behaviour changed on {c.dated.date}: {what}.")
         for p in c.change_points:
             when = f"from {p.date}" if p.latest == p.date else \
                 f"from a day between {p.date} and {p.latest}"

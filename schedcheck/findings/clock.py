@@ -7,7 +7,8 @@ and last stop, measured from that day's occupied start and end, before and after
 
 A window that starts after a change, or ends just after one, still needs the days around it:
 the audit passes the run states and schedule of a look-back (reaching at least
-:data:`CLOCK_REACH` before the latest change, :func:`reference_first`) and of the days after
+:data:`schedcheck.daylight.CLOCK_REACH` before the latest change,
+:func:`schedcheck.daylight.reference_first`) and of the days after
 the window where readings exist as ``ctx.reference``; the rule finds the change and its
 shifted days there, and the finding, its hours and the time it explains stay inside the
 window.
@@ -17,11 +18,11 @@ from __future__ import annotations
 
 import datetime as dt
 from dataclasses import dataclass
-from zoneinfo import ZoneInfo
 
 import numpy as np
 import pandas as pd
 
+from schedcheck.daylight import changes
 from schedcheck.findings.rules import NS_PER_MIN, Context, Found, day_text, local_dates, midnight_ns
 from schedcheck.intervals import Intervals, union_all
 
@@ -39,9 +40,6 @@ CLOCK_SHARE = 0.7
 # running reaches further (running all night, say) says nothing about the clock. Common
 # practice, no source.
 CLOCK_LOOK = pd.Timedelta("3h")
-# The reference days reach this far before the latest change before a window: CLOCK_DAYS
-# working days and a week for holidays and gaps. Common practice, no source.
-CLOCK_REACH = dt.timedelta(days=21)
 
 
 @dataclass
@@ -59,33 +57,6 @@ class _Day:
     @property
     def dev_stop(self) -> float:    # [min]
         return (self.last - self.occ_end) / NS_PER_MIN
-
-
-def changes(first: dt.date, last: dt.date, tz: str) -> list[tuple[dt.date, float]]:
-    """Daylight-saving changes: (local date of the change, change of UTC offset [min])."""
-    zone = ZoneInfo(tz)
-
-    def offset(day: dt.date) -> float:
-        return dt.datetime(day.year, day.month, day.day, 12, tzinfo=zone).utcoffset() \
-            .total_seconds() / 60
-
-    out = []
-    prev = offset(first - dt.timedelta(days=1))
-    for i in range((last - first).days + 1):
-        day = first + dt.timedelta(days=i)
-        now = offset(day)
-        if now != prev:
-            out.append((day, now - prev))
-        prev = now
-    return out
-
-
-def reference_first(first: dt.date, tz: str) -> dt.date | None:
-    """The first local date the rule needs before a window that begins on ``first``:
-    :data:`CLOCK_REACH` before the latest daylight-saving change in the year before it (None
-    where the zone had no change)."""
-    found = changes(first - dt.timedelta(days=366), first - dt.timedelta(days=1), tz)
-    return found[-1][0] - CLOCK_REACH if found else None
 
 
 def _working_days(ctx: Context) -> list[_Day]:

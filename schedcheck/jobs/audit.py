@@ -3,8 +3,10 @@
 Opens the site and its readings (:mod:`schedcheck.jobs.common`), reads the calendars, classifies
 run states (:func:`schedcheck.runstate.classify.classify_unit`), expands the intended schedule
 (:func:`schedcheck.schedule.intended.expand_unit_schedule`), runs the core audit
-(:func:`schedcheck.audit.run.run_audit`) and writes the files (:mod:`schedcheck.outputs.files`) and
-the report. Prints nothing: progress goes to the optional ``progress`` callback.
+(:func:`schedcheck.audit.run.run_audit`), finds the behaviour episodes
+(:func:`schedcheck.changes.episodes.with_episodes`) and writes the files
+(:mod:`schedcheck.outputs.files`) and the report. Prints nothing: progress goes to the
+optional ``progress`` callback.
 """
 
 from __future__ import annotations
@@ -19,6 +21,7 @@ import pandas as pd
 
 from schedcheck.audit.evidence import evidence_levels
 from schedcheck.audit.run import AuditResult, Lookback, run_audit
+from schedcheck.changes.episodes import with_episodes
 from schedcheck.errors import InputError
 from schedcheck.inputs.provenance import provenance
 from schedcheck.inputs.readings_files import ReadingsSource
@@ -85,6 +88,7 @@ def audit_result(
         lookback=lookback,
         weather=weather,
     )
+    with_episodes(result)   # behaviour episodes, and the findings told since when
     result.levels = evidence_levels(result.findings, {c.key: c.sensor for c in site.components},
                                     readings.by_sensor, start, end,
                                     run_starts={c.key: c.account.states.of("run").starts

@@ -8,6 +8,7 @@ from __future__ import annotations
 import json
 
 from schedcheck.changes.compare import CompareResult
+from schedcheck.outputs.episode_records import episode_records
 
 
 def _round(x: float, digits: int) -> float:
@@ -40,6 +41,10 @@ def _component(c, price: float) -> dict:
             {"date": p.date.isoformat(), "latest": p.latest.isoformat(),
              "before_mean": _round(p.before_mean, 3),
              "after_mean": _round(p.after_mean, 3)} for p in c.change_points],
+        "episodes": episode_records(c.episodes),
+        "changed_on": (None if c.dated is None else
+                       {"date": c.dated.date.isoformat(), "how": c.dated.how,
+                        **episode_records([c.dated.episode])[0]}),
         "notes": [str(n) for n in c.notes],
     }
 

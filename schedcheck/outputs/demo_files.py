@@ -36,7 +36,7 @@ from schedcheck.demo.plan import SITE_NAME, TZ
 from schedcheck.demo.weather import WEATHER_FILE
 from schedcheck.errors import InputError
 from schedcheck.intervals import NS_PER_S, from_ns, to_ns
-from schedcheck.outputs.schema import SUMMARY_SCHEMA
+from schedcheck.outputs.schema import TRUTH_SCHEMA
 
 README_FIRST_LINE = "INVENTED DEMO DATA written by `schedcheck demo`."
 _TIME_FMT = "%Y-%m-%dT%H:%M:%SZ"
@@ -92,7 +92,7 @@ def _readings_parquet(frame: pd.DataFrame, path: Path) -> None:
 def faults_document(demo: DemoSite) -> dict:
     """The content of ``truth/faults.json`` (plain JSON types; instants as UTC ISO 8601)."""
     return {
-        "schema": SUMMARY_SCHEMA,
+        "schema": TRUTH_SCHEMA,
         "note": "Invented demo data: the faults planted by the generator (its saved truth).",
         "site": SITE_NAME,
         "timezone": TZ,

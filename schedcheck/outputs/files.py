@@ -22,6 +22,7 @@ from schedcheck.audit.run import AuditResult
 from schedcheck.audit.speed_limits import hours_by_speed
 from schedcheck.intervals import NS_PER_H, NS_PER_S, from_ns, to_ns
 from schedcheck.outputs.cells import csv_frame
+from schedcheck.outputs.episode_records import episode_records
 from schedcheck.outputs.findings_files import (  # noqa: F401 - re-exported
     FINDINGS_COLUMNS,
     KIND_WORDS,
@@ -118,6 +119,7 @@ def _component_summary(comp, result: AuditResult) -> dict:
             **energy_fields(en, ENERGY_DECIMALS, COST_DECIMALS, HOURS_DECIMALS),
         },
         "findings": n_find,
+        "episodes": episode_records(result.episodes.get(comp.key, [])),
         "warnings": list(comp.state_warnings) + list(acc.warnings),
     }
 

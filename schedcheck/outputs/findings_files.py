@@ -25,7 +25,8 @@ from schedcheck.outputs.values import (
 )
 
 FINDINGS_COLUMNS = ("id", "unit", "component", "components", "kind", "start", "end", "hours",
-                    "component_hours", "kwh", "cost", "co2_kg", "kwh_by_component", "detail")
+                    "component_hours", "kwh", "cost", "co2_kg", "kwh_by_component",
+                    "episode_start", "episode_end", "detail")
 
 #: plain words for each finding kind, used in calendar event titles
 KIND_WORDS = {
@@ -60,6 +61,9 @@ def finding_records(result: AuditResult) -> list[dict]:
             "kwh": _r(row.kwh, ENERGY_DECIMALS),
             "cost": _r(row.cost, COST_DECIMALS), "co2_kg": _r(row.co2_kg, ENERGY_DECIMALS),
             **finding_fields(row, ENERGY_DECIMALS, COST_DECIMALS),
+            # the behaviour episode the finding lies in (changes.episodes), local dates
+            "episode_start": getattr(row, "episode_start", "") or None,
+            "episode_end": getattr(row, "episode_end", "") or None,
             "detail": str(row.detail),
             "parts": [_part_record(p, tz) for p in row.parts],
         })

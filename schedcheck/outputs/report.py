@@ -28,6 +28,7 @@ from schedcheck.outputs.evidence_report import (
     strip_settings,
 )
 from schedcheck.outputs.histogram import histogram_svg
+from schedcheck.outputs.report_episodes import add_episode_chart
 from schedcheck.outputs.report_tables import (  # noqa: F401 - the report's smaller tables
     _days_off_rows,
     _dst_days,
@@ -183,6 +184,7 @@ def _charts(data: SavedAudit, comp: dict, days_off: pd.DataFrame) -> None:
     daily = data.daily[data.daily["component"] == comp["id"]]
     comp["bars"] = Markup(svg.daily_bars_svg(
         daily, first=first, last=last, title=f"{comp['id']}: hours per day", pid=comp["pid"] + "b"))
+    add_episode_chart(comp, data.summary, daily, first, last)
     th = comp["threshold"]
     hist = th.get("histogram") or {}
     comp["histogram"] = None

@@ -22,6 +22,7 @@ import pandas as pd
 
 from schedcheck.errors import InputError
 from schedcheck.outputs.cells import uncell_frame
+from schedcheck.outputs.episode_records import check_episodes
 from schedcheck.outputs.levels_file import LEVELS_FILE, read_levels
 from schedcheck.outputs.schema import SUMMARY_SCHEMA as SCHEMA
 from schedcheck.runstate.states import STATES
@@ -276,6 +277,7 @@ def _check_nested(comp: dict, path: Path, where: str) -> None:
         if value is not None and not _is_number(value):
             raise InputError(f"{value!r} is not a number", path=path,
                              key=f"{where}.energy.{ekey}")
+    check_episodes(comp, path, where)
     th = comp.get("threshold") or {}
     _check_levels(th, path, f"{where}.threshold")
     if th.get("histogram") is not None:

@@ -9,7 +9,7 @@ A month audited on its own must give that month's figures inside a longer audit.
   (:func:`window_states`);
 * the clock check (:mod:`schedcheck.findings.clock`) takes the look-back's working days as its
   reference days, so the look-back reaches at least
-  :data:`schedcheck.findings.clock.CLOCK_REACH` before the latest daylight-saving change;
+  :data:`schedcheck.daylight.CLOCK_REACH` before the latest daylight-saving change;
   when the levels are learned from all readings, the states also run on for ``CLOCK_REACH``
   after the window where readings exist (:func:`lookahead_last`), so a window that ends just
   after a change sees the days that show the shift.
@@ -34,7 +34,7 @@ import math
 import numpy as np
 import pandas as pd
 
-from schedcheck.findings.clock import CLOCK_REACH, reference_first
+from schedcheck.daylight import CLOCK_REACH, reference_first
 from schedcheck.intervals import Intervals, to_ns
 from schedcheck.runstate.classify import (
     ComponentStates,
@@ -72,7 +72,7 @@ def lookback_first(first: dt.date, lookback: pd.Timedelta) -> dt.date:
 
 def lookback_dates(first: dt.date, tz: str, settings: RunStateSettings | None) -> dt.date:
     """The first local date to read for a window that begins on ``first``: ``lookback``
-    before it, or further back to :data:`schedcheck.findings.clock.CLOCK_REACH` before the
+    before it, or further back to :data:`schedcheck.daylight.CLOCK_REACH` before the
     latest daylight-saving change where that is earlier (the clock check's reference days).
     A look-back of 0 turns both off."""
     lb = lookback_of(settings)

@@ -104,3 +104,19 @@ def test_a_unit_wrong_most_of_the_window_is_measured_against_the_schedule():
     assert baseline == 0.0 and scale == 0.5
     eps = [e for e in daily_episodes(dates, hours) if e.kind == "collective"]
     assert [(e.start, e.end, e.mean_h_per_day) for e in eps] == [(dates[20], dates[89], 14.0)]
+
+
+def test_the_one_sd_limit_is_the_noise_not_only_the_penalty():
+    # Why the target (start within a day for 1 sd shifts) is unmet, measured: a lower
+    # penalty (2 log n, the BIC's) finds the shift far more often but still dates its start
+    # within a day in under half the series, and raises false collective episodes on
+    # stationary series well above 5 %. The penalty buys the false-alarm target; the dating
+    # is limited by the noise (a 1 sd step's start is uncertain by several days).
+    n = 120
+    low = 2 * np.log(n)
+    found = sum(any(s < 64 and e > 50 for s, e in capa(
+        seeded(k, n, episodes=((50, 64, 1.0),)), beta=low).collective) for k in range(100))
+    dated = sum(any(abs(s - 50) <= 1 for s, _ in capa(
+        seeded(k, n, episodes=((50, 64, 1.0),)), beta=low).collective) for k in range(100))
+    false = sum(bool(capa(seeded(k, n, episodes=()), beta=low).collective) for k in range(200))
+    assert found >= 85 and dated <= 50 and false >= 20

@@ -210,7 +210,7 @@ CASES = {
     "report-incomplete": report_folder(lambda out: (out / "INCOMPLETE").write_text("x")),
     "report-bad-json": report_folder(lambda out: (out / "summary.json").write_text("{")),
     "report-wrong-types": report_folder(lambda out: (out / "summary.json").write_text(
-        '{"schema": 1, "site": [], "period": 3, "components": {}}')),
+        '{"schema": 2, "site": [], "period": 3, "components": {}}')),
 }
 def _gz_stream(head: bytes, block: bytes, blocks: int) -> bytes:
     """gzip data of ``head`` then ``blocks`` copies of ``block``, made without holding the text."""

@@ -7,7 +7,7 @@ import datetime as dt
 import pytest
 
 from schedcheck.audit.accounting import ScheduleSets
-from schedcheck.findings.clock import CLOCK_REACH, reference_first
+from schedcheck.daylight import CLOCK_REACH, reference_first
 from schedcheck.findings.find import find_in_sets
 from schedcheck.findings.rules import Reference
 from schedcheck.runstate.states import StateSets

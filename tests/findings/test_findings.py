@@ -16,8 +16,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as hs
 
+from schedcheck.daylight import changes
 from schedcheck.errors import InputError
-from schedcheck.findings.clock import changes
 from schedcheck.findings.find import (
     DEFAULT_MAX_STARTS_PER_DAY,
     DEFAULT_MIN_OFF_SCHEDULE,

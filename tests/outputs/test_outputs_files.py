@@ -92,7 +92,7 @@ def test_summary_identities_and_fields(result, tmp_path):
     out = tmp_path / "out"
     files = write_audit_files(result, out)
     s = json.loads(files["summary.json"].read_text())
-    assert s["schema"] == 1 and s["site"]["currency"] == "NOK"
+    assert s["schema"] == 2 and s["site"]["currency"] == "NOK"
     assert s["period"]["first_date"] == "2026-10-24" and s["period"]["last_date"] == "2026-10-26"
     assert s["period"]["hours"] == 73
     sup = next(c for c in s["components"] if c["id"] == "AHU-9/supply")
@@ -178,8 +178,10 @@ def test_schedule_csv_and_findings_csv(result, tmp_path):
     assert list(f.columns) == ["id", "unit", "component", "components", "kind", "start",
                                "start_date", "start_time", "end", "end_date", "end_time",
                                "hours", "component_hours", "kwh", "cost", "co2_kg",
-                               "kwh_by_component", "detail"]
+                               "kwh_by_component", "episode_start", "episode_end", "detail"]
     assert f["cost"].iloc[0] == pytest.approx(148.48)
+    # run_audit alone finds no episodes (jobs.audit adds them): the cells are blank
+    assert f["episode_start"].isna().all() and f["episode_end"].isna().all()
 
 
 def test_report_escapes_names(result, tmp_path):

@@ -45,8 +45,17 @@ def test_opens_without_errors_or_network(chromium, report, tmp_path):
         n_svg = browser.call("Runtime.evaluate", {
             "expression": "document.querySelectorAll('svg.chart').length",
             "returnByValue": True})
+        # the episodes chart of each component is drawn: it has a size and its daily bars
+        episodes = browser.call("Runtime.evaluate", {
+            "expression": "[...document.querySelectorAll('svg.chart.episodes')].map(s => "
+                          "[s.getBoundingClientRect().width, "
+                          "s.querySelectorAll('path.bar-off_schedule').length])",
+            "returnByValue": True})
     assert "Harbour Street Offices" in title["result"]["value"]
-    assert n_svg["result"]["value"] == 8    # carpet + bars for each of 4 components
+    assert n_svg["result"]["value"] == 12   # carpet, bars and episodes for 4 components
+    shown = episodes["result"]["value"]
+    assert len(shown) == 4 and all(w > 200 for w, _ in shown)
+    assert sum(n for _, n in shown) >= 1   # the fixture's weekend running is drawn
     assert load_ms > 0
 
 
