@@ -19,6 +19,7 @@ import pandas as pd
 
 from schedcheck.audit.evidence import evidence_levels
 from schedcheck.audit.run import AuditResult, Lookback, run_audit
+from schedcheck.audit.trends_step import with_trends
 from schedcheck.errors import InputError
 from schedcheck.inputs.provenance import provenance
 from schedcheck.inputs.readings_files import ReadingsSource
@@ -74,6 +75,13 @@ def audit_result(
     lookback = (Lookback(span.start, span.end, whole,
                          unit_schedules(site, span.first, span.last))
                 if span.start < start or span.end > end else None)
+    trends = None
+    if site.trends is not None:
+        from schedcheck.inputs.trend_files import load_site_trends
+
+        say("reading the building-system trends")
+        trends = load_site_trends(site, skip_bad_rows=skip_bad_rows)
+        load_warnings += trends.warnings
     say("comparing and pricing")
     bad = {"count": int(readings.bad_rows_count),
            "examples": list(readings.bad_rows_examples)[:20]}
@@ -84,6 +92,7 @@ def audit_result(
         + [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings],
         lookback=lookback,
         weather=weather,
+        find=with_trends(trends.samples, site.trends.max_gap) if trends is not None else None,
     )
     result.levels = evidence_levels(result.findings, {c.key: c.sensor for c in site.components},
                                     readings.by_sensor, start, end,
