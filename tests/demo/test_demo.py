@@ -188,7 +188,8 @@ def test_demo_writes_every_file(written):
     names = {p.relative_to(written.folder).as_posix() for p in written.files}
     assert names == {"site.toml", "README.txt", "truth/runs.csv", "truth/machine_runs.csv",
                      "truth/faults.json", "readings/gw-north.csv.gz", "readings/gw-south.csv.gz",
-                     "readings/gw-library.parquet", "weather/vellesund-outdoor.csv"} | {
+                     "readings/gw-library.parquet", "weather/vellesund-outdoor.csv",
+                     "bms/trends.csv", "truth/trends.json"} | {
                         f"calendars/{n}" for n in CALENDARS}
     assert (written.folder / "README.txt").read_text().startswith("INVENTED DEMO DATA")
     assert written.size_bytes < 5_000_000   # one month; three months are about 10 MB
