@@ -37,6 +37,7 @@ from schedcheck.outputs.report_tables import (  # noqa: F401 - the report's smal
     _when,
 )
 from schedcheck.outputs.report_thermal import thermal_context
+from schedcheck.outputs.report_trends import trend_sections
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
 from schedcheck.outputs.wording import monitored_words, separation_text
 from schedcheck.runstate.onofflevel import SEPARATION_CAP
@@ -278,6 +279,7 @@ def report_context(data: SavedAudit) -> dict:
         days_off["unit"] = days_off["unit"].fillna("")
     for c in comps:
         _charts(data, c, days_off)
+    trend_sections(data, comps, KIND_LABELS, _span)
     findings = _findings(data, by_id)
     strips = evidence_strips(data, by_id, KIND_LABELS, _span)
     shown = {st["key"]: st["anchor"] for st in strips}
