@@ -42,6 +42,8 @@ POINTS = {
     "AHU-4/exhaust": ("LH-AHU4-EF-CMD", None, "repeat"),
     "AHU-5/supply": ("LH-AHU5-SF-SPD", None, "change"),     # speed command in %
 }
+# in the export but named by no component (exports carry more points than an audit uses)
+UNUSED = {"AHU-2/wheel": "LH-AHU2-HRW-CMD"}
 SENSOR_OF = {"AHU-1/supply": "VB-1011", "AHU-2/supply": "VB-1021", "AHU-3/supply": "VB-1031",
              "AHU-4/supply": "VB-1041", "AHU-4/exhaust": "VB-1042", "AHU-5/supply": "VB-1051"}
 HAND_NIGHT = NIGHT_OVERRIDE[1][1]                                  # 2026-03-10
@@ -150,6 +152,10 @@ def trend_export(demo) -> pd.DataFrame:
             shifted = Intervals.from_arrays(run.starts + 5 * NS_PER_S, run.ends + 3 * NS_PER_S)
             t, v = _samples(shifted.clip(s0, e0), s0, e0, rng, lead=(0, 1), repeat=True)
         parts.append(pd.DataFrame({"t": t, "Point": sts, "Value": np.where(v > 0, "ON", "OFF")}))
+    for key, name in UNUSED.items():
+        t, v = _samples(_runs(demo, key), s0, e0, rng, lead=(3, 26), repeat=True)
+        parts.append(pd.DataFrame({"t": t, "Point": name,
+                                   "Value": np.where(v > 0, "Active", "Inactive")}))
     rows = pd.concat(parts, ignore_index=True)
     dup = rows.sample(frac=DUPLICATE_SHARE, random_state=int(rng.integers(2**31)))
     rows = pd.concat([rows, dup]).sort_values(["Point", "t"], kind="stable")

@@ -35,14 +35,26 @@ class Trends:
     bad_rows: int = 0
     warnings: list[str] = field(default_factory=list)
 
-    def coverage(self) -> list[dict]:
-        """Per point: first and last sample [UTC], count and the longest silence [h]."""
+    def coverage(self, max_gap: pd.Timedelta | None = None) -> list[dict]:
+        """Per point: first and last sample [UTC], count, duplicates (same instant and value),
+        the longest silence [h] and, given ``max_gap``, the silences longer than it and the
+        hours they leave unknown (each silence less ``max_gap``) [h]."""
         out = []
-        for name, (t, _) in sorted(self.samples.items()):
-            gaps = np.diff(np.sort(t)) if t.size > 1 else np.zeros(0, np.int64)
-            out.append({"point": name, "first": pd.Timestamp(int(t.min()), tz="UTC"),
-                        "last": pd.Timestamp(int(t.max()), tz="UTC"), "samples": int(t.size),
-                        "longest_silence_h": float(gaps.max() / 3.6e12) if gaps.size else 0.0})
+        gap = None if max_gap is None else int(pd.Timedelta(max_gap).value)
+        for name, (t, v) in sorted(self.samples.items()):
+            order = np.lexsort((v, t))
+            ts, vs = t[order], v[order]
+            same = (np.diff(ts) == 0) & (np.diff(vs) == 0) if t.size > 1 else np.zeros(0, bool)
+            gaps = np.diff(np.unique(ts)) if t.size > 1 else np.zeros(0, np.int64)
+            row = {"point": name, "first": pd.Timestamp(int(t.min()), tz="UTC"),
+                   "last": pd.Timestamp(int(t.max()), tz="UTC"), "samples": int(t.size),
+                   "duplicates": int(same.sum()),
+                   "longest_silence_h": float(gaps.max() / 3.6e12) if gaps.size else 0.0}
+            if gap is not None:
+                long = gaps[gaps > gap]
+                row["silences"] = int(long.size)
+                row["unknown_h"] = float((long - gap).sum() / 3.6e12)
+            out.append(row)
         return out
 
 

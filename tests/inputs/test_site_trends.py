@@ -67,3 +67,20 @@ def test_a_point_absent_from_the_exports_names_the_nearest_and_its_line(tmp_path
     msg = str(exc.value)
     assert msg.startswith(f"{path}:{line}: unit[AHU-1].component[supply].command:")
     assert "'AHU1.SF.CMND' is not in the trend files; nearest found: AHU1.SF.CMD" in msg
+
+
+def test_check_lists_coverage_per_point_and_the_unused_points(tmp_path, capsys):
+    from tests.helpers import run_cli
+
+    path = _site(tmp_path)
+    with (tmp_path / "bms.csv").open("a", encoding="utf-8") as f:
+        # the command silent for three days, then a repeat (duplicate) sample; a wheel point
+        f.write("2026-03-05 06:30:00,AHU1.SF.CMD,off\n2026-03-05 06:30:00,AHU1.SF.CMD,off\n"
+                "2026-03-02 07:00:00,AHU1.HW.CMD,on\n")
+    code, out, err = run_cli(["check", path], capsys)
+    assert code == 0, err
+    row = next(line for line in out.splitlines() if "AHU1.SF.CMD" in line)
+    # 2 Mar 06:30 -> 5 Mar 06:30: 72 h silent, 48 h of it past max_gap (24 h); 1 duplicate
+    assert row.split()[-4:] == ["72.0", "1", "48.0", "1"]
+    assert "AHU-1/supply command" in row
+    assert "Trend points that no component names: AHU1.HW.CMD, AHU1.SF.STS" in out
