@@ -95,3 +95,15 @@ def test_a_controller_clock_an_hour_late_moves_command_and_fan_together(tmp_path
     assert "false_status" in kinds
     tr = res.trends["AHU-1/supply"].hours()
     assert tr["ran_while_commanded_off"] == pytest.approx(4.5, abs=2 * MINUTE_H)
+
+
+def test_point_names_from_the_inputs_are_escaped_in_the_report(tmp_path):
+    path = write_site(tmp_path / "site", extra=TRENDS)
+    name = "AHU1<b>CMD</b>&x"
+    path.write_text(path.read_text() + f'command = "{name}"\n')
+    export = _export().replace("AHU1.SF.CMD", name).replace("AHU1.SF.STS", "unused")
+    (tmp_path / "site" / "bms.csv").write_text(export, encoding="utf-8")
+    res = audit_site(path, out=tmp_path / "out")
+    html = res.files["report.html"].read_text(encoding="utf-8")
+    assert "trend-strip" in html and "AHU1&lt;b&gt;CMD&lt;/b&gt;&amp;x" in html
+    assert "<b>CMD</b>" not in html
