@@ -25,6 +25,7 @@ import pandas as pd
 from schedcheck.errors import TableError
 from schedcheck.findings.find import resolved
 from schedcheck.intervals import NS_PER_H, to_ns
+from schedcheck.runstate.states import NO_DATA_WARN
 from schedcheck.trends.against import TrendComparison, compare_trends, trend_findings
 from schedcheck.trends.points import PointStates, point_states
 
@@ -83,6 +84,26 @@ def _check_minutes(key: str, sets, command: PointStates, cmp: TrendComparison) -
                          key="trends")
 
 
+def unknown_warnings(result) -> list[str]:
+    """A warning per point unknown for more than NO_DATA_WARN.understate of the known time
+    (silent longer than ``max_gap``): its figures cover only the rest."""
+    out = []
+    for key, tr in result.trends.items():
+        sets = result.component(key).account.states
+        known_h = sets.run.union(sets.off).duration_ns() / NS_PER_H
+        h = tr.hours()
+        for role, point in (("command", tr.command_point), ("status", tr.status_point)):
+            unknown = h.get(f"{role}_unknown")
+            if point is None or not known_h or unknown is None:
+                continue
+            if unknown / known_h > NO_DATA_WARN.understate:
+                out.append(f"{key}: its {role} point {point} is unknown for {unknown:,.1f} h of "
+                           f"the {known_h:,.1f} h with a known run state (silent longer than "
+                           "[trends] max_gap, or not yet logging); its trend figures cover "
+                           "only the rest")
+    return out
+
+
 def with_trends(samples: Samples | None, max_gap: pd.Timedelta,
                 find: Callable | None = None) -> Callable:
     """The audit's ``find`` step with the trends' findings added (see the module docstring)."""
@@ -93,6 +114,7 @@ def with_trends(samples: Samples | None, max_gap: pd.Timedelta,
         if not samples:
             return base
         result.trends = track(result, samples, max_gap)
+        result.warnings += unknown_warnings(result)
         p = resolved(result.site.findings)
         frames = [trend_findings(k, tr.comparison, result.start, result.end,
                                  result.site.timezone,

@@ -4,3 +4,7 @@ KINDS = ("night", "weekend", "holiday", "unscheduled_day", "continuous", "clock_
          "early_start", "late_stop", "missed", "short_cycling", "setback", "over_speed",
          # from the building system's trends (trends/against.py)
          "hand_mode", "failed_start", "false_status")
+
+#: Kinds that describe running another finding already prices (the trends' diagnoses): no
+#: energy of their own, never scaled to a year.
+DIAGNOSIS_KINDS = ("hand_mode", "failed_start", "false_status")

@@ -22,7 +22,7 @@ from __future__ import annotations
 import gzip
 import io
 import json
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
@@ -225,6 +225,8 @@ class DemoTruth:
     clean: list[str]
     window: tuple[pd.Timestamp, pd.Timestamp]
     document: dict
+    #: the planted trend cases of ``truth/trends.json`` (demo/trends.py), [] without the file
+    trend_cases: list[dict] = field(default_factory=list)
 
     def component_runs(self, component: str, *, observed: bool = True) -> pd.DataFrame:
         """One component's ``start, end, state`` table (covers the window)."""
@@ -268,7 +270,11 @@ def read_demo_truth(folder: Path) -> DemoTruth:
     gaps = pd.DataFrame(doc["data_gaps"], columns=["sensor", "component", "start", "end", "cause"])
     for c in ("start", "end"):
         gaps[c] = pd.to_datetime(gaps[c], utc=True).dt.as_unit("ns")
+    trend_doc = folder / "truth" / "trends.json"
+    cases = (json.loads(trend_doc.read_text(encoding="utf-8"))["cases"] if trend_doc.is_file()
+             else [])
     return DemoTruth(
+        trend_cases=cases,
         runs=_read_runs(folder / "truth" / "runs.csv"),
         machine_runs=_read_runs(folder / "truth" / "machine_runs.csv"),
         faults=faults, gaps=gaps, clean=list(doc["clean_components"]),

@@ -18,6 +18,7 @@ import pandas as pd
 from markupsafe import Markup, escape
 
 from schedcheck.errors import InputError
+from schedcheck.findings.kinds import DIAGNOSIS_KINDS
 from schedcheck.outputs.saved import SavedAudit, _load_csv, _parse_instants
 from schedcheck.outputs.svg import (
     HATCH_NODATA,
@@ -30,7 +31,7 @@ from schedcheck.outputs.svg import (
 )
 from schedcheck.outputs.trends_files import TREND_ROWS, TRENDS_FILE
 
-TREND_KINDS = ("hand_mode", "failed_start", "false_status")
+TREND_KINDS = DIAGNOSIS_KINDS
 MARKS = {"hand_mode": "H", "failed_start": "F", "false_status": "S"}
 LANE_PX = 1.5            # pixels per hour of a lane: 36 px a day
 LANE_GAP = 16.0         # room for the lane's name above it

@@ -67,6 +67,8 @@ def test_minutes_are_exact_and_no_data_is_kept_apart(demo_audit):
     assert ex.off_while_commanded_on.hours() < 4.6
     # the change-of-value-only speed command is unknown after a day of silence (weekends)
     assert res.trends["AHU-5/supply"].hours()["command_unknown"] > 100
+    said = [w for w in res.warnings if "command point" in w]
+    assert len(said) == 1 and said[0].startswith("AHU-5/supply: its command point LH-AHU5-SF-SPD")
 
 
 def test_the_export_has_duplicates_silences_and_interval_samples(demo_audit):
