@@ -194,7 +194,8 @@ def check_trends(site: Site, report: CheckReport, skip_bad_rows: bool) -> list[I
     and the points no component names."""
     if site.trends is None:
         return []
-    from schedcheck.inputs.trend_files import load_site_trends, read_trends
+    from schedcheck.inputs.site_trends import wanted_points
+    from schedcheck.inputs.trend_files import check_points, read_trends
 
     t = site.trends
     try:
@@ -212,8 +213,4 @@ def check_trends(site: Site, report: CheckReport, skip_bad_rows: bool) -> list[I
     report.trends = [row | {"used_by": used.get(row["point"], "")}
                      for row in trends.coverage(t.max_gap)]
     report.unused_points = sorted(set(trends.samples) - set(used))
-    try:
-        load_site_trends(site, skip_bad_rows=True)
-    except InputError as e:
-        return _problems(e)
-    return []
+    return check_points(trends, wanted_points(site.components), path=site.path)
