@@ -50,6 +50,8 @@ class Component:
     threshold: float | None = None   # fixed on/off level [reading unit], None = learn it
     speeds: tuple[float, ...] = ()   # a multi-speed fan's speeds, lowest first [-]
     design_rpm: float | None = None  # rotation speed at design speed [rpm]
+    command: str | None = None       # building-system point that commands it ([trends])
+    status: str | None = None        # building-system point that reports it running
 
     @property
     def key(self) -> str:
@@ -145,6 +147,18 @@ class WeatherSettings:
 
 
 @dataclass(frozen=True)
+class TrendSettings:
+    """Optional ``[trends]`` table: the building system's command and status exports."""
+
+    files: tuple[str, ...]                    # patterns as written, resolved against the site dir
+    columns: dict[str, str] = field(default_factory=dict)   # ours -> the export's column name
+    naive_time: str | None = None             # None, "local" or "utc"
+    # a point silent longer than this is unknown afterwards: a day, so a change-of-value log
+    # that repeats its value daily stays known (common practice, no source)
+    max_gap: pd.Timedelta = pd.Timedelta("24h")
+
+
+@dataclass(frozen=True)
 class HeatingSettings:
     """Optional ``[heating]`` table: what delivered heat costs."""
 
@@ -202,6 +216,7 @@ class FindingSettings:
     recurring_weeks: int | None = field(default=None, metadata={"min": 1})  # weeks of a pattern
     episode_floor: float | None = field(default=None, metadata={"min": 0.05, "max": 24})  # h/day
     episode_min_days: int | None = field(default=None, metadata={"min": 2})  # shortest episode
+    min_disagreement: pd.Timedelta | None = None   # command/status disagreement = finding
 
 
 @dataclass(frozen=True)
@@ -219,6 +234,7 @@ class Site:
     weather: WeatherSettings | None = None       # None: no weather file, no thermal cost
     heating: HeatingSettings = HeatingSettings()
     cooling: CoolingSettings = CoolingSettings()
+    trends: TrendSettings | None = None          # None: no building-system trends
 
     @property
     def base_dir(self) -> Path:
@@ -242,3 +258,5 @@ EXTRA_COLUMNS = ("rotation_hz",)
 READING_COLUMNS = ("timestamp", "sensor") + LEVEL_COLUMNS
 # Column names of a weather CSV, ours ([weather] columns maps them to the file's)
 WEATHER_COLUMNS = ("timestamp", "temperature")
+# Column names of a trend export, ours ([trends] columns maps them to the file's)
+TREND_COLUMNS = ("timestamp", "point", "value")

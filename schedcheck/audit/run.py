@@ -112,6 +112,7 @@ class AuditResult:
     unit_hours: dict[str, float] = field(default_factory=dict)   # unit -> off-schedule unit-h
     projection: dict = field(default_factory=dict)   # findings.projection.project_year
     episodes: dict[str, list] = field(default_factory=dict)   # key -> changes.capa.Episode
+    trends: dict = field(default_factory=dict)   # key -> audit.trends_step.TrendTrack
 
     @property
     def component_hours(self) -> float:

@@ -135,7 +135,7 @@ def audit(
         console.print(line, markup=False, soft_wrap=True)
     console.print(f"Files written to {result.outdir}:", markup=False, soft_wrap=True)
     for name in ("report.html", "summary.json", "daily.csv", "runs.csv", "findings.csv",
-                 "findings.ics", "schedule.csv"):
+                 "findings.ics", "schedule.csv", "trends.csv"):
         if name in result.files:
             console.print(f"  {result.files[name]}", markup=False, soft_wrap=True)
     console.print("Energy figures are affinity-law estimates, not meter readings.",

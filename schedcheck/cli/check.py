@@ -51,6 +51,34 @@ def health_table(report) -> object:
     return table
 
 
+def trends_table(report) -> object:
+    """Coverage per trend point (a rich Table), like the readings' health table."""
+    from rich import box
+    from rich.table import Table
+
+    from schedcheck.durations import format_duration
+
+    site = report.site
+    tz = site.timezone
+    gap = format_duration(site.trends.max_gap)
+    table = Table(title=terminal_text(f"{site.name}: building-system trend points (times in "
+                                      f"{tz}; a point silent longer than {gap} is unknown "
+                                      "after that)"),
+                  title_justify="left", box=box.SIMPLE_HEAD,
+                  caption=f"Silences: gaps between samples longer than {gap}; Unknown h: the "
+                  "hours they leave unknown. Dupl.: samples repeated at one instant.",
+                  caption_justify="left")
+    for name, just in (("Point", "left"), ("Used by", "left"), ("First", "left"),
+                       ("Last", "left"), ("Samples", "right"), ("Longest silence h", "right"),
+                       ("Silences", "right"), ("Unknown h", "right"), ("Dupl.", "right")):
+        table.add_column(name, justify=just, no_wrap=True)
+    for r in report.trends:
+        add_row(table, r["point"], r["used_by"] or "(unused)", _local(r["first"], tz),
+                _local(r["last"], tz), f"{r['samples']:,}", f"{r['longest_silence_h']:.1f}",
+                str(r["silences"]), f"{r['unknown_h']:.1f}", str(r["duplicates"]))
+    return table
+
+
 @app.command()
 def check(
     site: SiteArg,
@@ -80,6 +108,14 @@ def check(
                   f"{len(report.files)} readings file(s)", markup=False)
         if report.health:
             out.print(health_table(report))
+        if report.trends:
+            out.print(trends_table(report))
+        if report.unused_points:
+            items = report.unused_points
+            listed = ", ".join(items[:UNMAPPED_SHOWN])
+            if len(items) > UNMAPPED_SHOWN:
+                listed += f" and {len(items) - UNMAPPED_SHOWN} more"
+            out.print(f"Trend points that no component names: {listed}", markup=False)
         if report.unconfigured:
             items = list(report.unconfigured.items())
             listed = ", ".join(f"{k} ({v:,} rows)" for k, v in items[:UNMAPPED_SHOWN])

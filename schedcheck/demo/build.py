@@ -63,6 +63,7 @@ from schedcheck.demo.plan import (
     outdoor_temperature,
     site_toml,
 )
+from schedcheck.demo.trends import trend_site_toml
 from schedcheck.demo.weather import weather_table
 from schedcheck.durations import parse_duration
 from schedcheck.errors import InputError
@@ -335,7 +336,8 @@ def build_demo(seed: int = DEFAULT_SEED, months: int = DEFAULT_MONTHS) -> DemoSi
                 val = val + rng.normal(0, 0.03, hour.size)
                 speed[m.key] = pd.Series(np.clip(val, 0.6, 0.95).round(3), index=from_ns(grid[::3]))
     return DemoSite(seed=int(seed), first=first, last=last, start=start, end=end,
-                    site_toml=site_toml(), calendars={n: calendar_text(n) for n in CALENDARS},
+                    site_toml=trend_site_toml(site_toml()),
+                    calendars={n: calendar_text(n) for n in CALENDARS},
                     machines=MACHINES, truth=truth, gaps=_gaps(s0, e0), faults=faults,
                     days_off=off, speed=speed, outdoor=(grid, temps),
                     weather=weather_table(grid, temps, TZ))

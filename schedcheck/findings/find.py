@@ -77,6 +77,7 @@ from schedcheck.intervals import check_labels, from_ns, to_ns
 from schedcheck.runstate.states import StateSets
 from schedcheck.schedule.kinds import DAY_OFF_KINDS
 from schedcheck.site import Component, FindingSettings
+from schedcheck.trends.against import MIN_DISAGREEMENT
 
 # Off-schedule running must persist this long to be a finding on its own. Common practice for
 # alarms (a one-hour persistence before a schedule alarm is raised), no source.
@@ -119,6 +120,9 @@ CLOCK_MIN_DAYS = findings_clock.CLOCK_MIN_DAYS
 # practice, no source.
 CLOCK_SHARE = findings_clock.CLOCK_SHARE
 
+# Command or status disagreeing with the vibration this long is a finding: the trends'
+# MIN_DISAGREEMENT (trends/against.py; common practice, no source).
+
 #: Columns of :func:`find_issues`' table.
 COLUMNS = ["component", "kind", "start", "end", "date", "hours", "kwh", "cost", "co2_kg",
            "detail"]
@@ -140,6 +144,7 @@ def default_settings() -> dict[str, object]:
         "together": DEFAULT_TOGETHER,
         "recurring_dates": DEFAULT_RECURRING_DATES,
         "recurring_weeks": DEFAULT_RECURRING_WEEKS,
+        "min_disagreement": pd.Timedelta(hours=MIN_DISAGREEMENT),
     }
 
 

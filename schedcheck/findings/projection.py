@@ -25,6 +25,8 @@ import datetime as dt
 
 import pandas as pd
 
+from schedcheck.findings.kinds import DIAGNOSIS_KINDS
+
 # A pattern recurs when its findings fall on this many local dates ... Common practice, no
 # source: three is the least that is a habit rather than a coincidence (the same count as the
 # early-start / late-stop repeat rule).
@@ -73,6 +75,8 @@ def project_year(
     """
     ndays = (last - first).days + 1
     recurring, one_off = [], []
+    if len(findings):   # the trends' diagnoses carry no energy: nothing of theirs to scale
+        findings = findings[~findings["kind"].isin(DIAGNOSIS_KINDS)]
     if len(findings):
         f = findings.assign(day=[dt.date.fromisoformat(str(d)) for d in findings["date"]])
         for (unit, kind), part in f.groupby(["unit", "kind"], sort=True):

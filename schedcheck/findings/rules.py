@@ -55,6 +55,7 @@ class Params:
     together: pd.Timedelta
     recurring_dates: int
     recurring_weeks: int
+    min_disagreement: pd.Timedelta = pd.Timedelta("30min")   # trends/against.py's default
 
 
 @dataclass

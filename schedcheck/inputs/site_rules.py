@@ -11,7 +11,7 @@ import pandas as pd
 
 # keys of each table, in the order the reference (docs/site-file.md) lists them
 _TOP = ("site", "readings", "holidays", "schedule", "energy", "unit", "run_state", "findings",
-        "weather", "heating", "cooling")
+        "weather", "heating", "cooling", "trends")
 _SITE = ("name", "timezone")
 _READINGS = ("files", "unit", "naive_time", "max_gap", "columns", "skip_bad_rows", "years")
 _HOLIDAYS = ("country", "subdivision", "categories", "closed", "language", "drop", "add")
@@ -19,10 +19,12 @@ _SCHEDULE = ("occupied", "allowed", "early_start", "late_stop", "standby_speed")
 _ENERGY = ("price", "currency", "co2_per_kwh", "exponent")
 _UNIT = ("id", "name", "schedule", "component", "outdoor_air")
 _WEATHER = ("file", "naive_time", "columns", "typical_year")
+_TRENDS = ("files", "columns", "naive_time", "max_gap")
 _HEATING = ("price", "efficiency", "co2_per_kwh")
 _COOLING = ("price", "cop", "co2_per_kwh")
 _OUTDOOR_AIR = ("flow", "heat_recovery", "supply_temperature", "extract_temperature")
-_COMPONENT = ("id", "role", "sensor", "power_kw", "speed", "threshold", "speeds", "design_rpm")
+_COMPONENT = ("id", "role", "sensor", "power_kw", "speed", "threshold", "speeds", "design_rpm",
+              "command", "status")
 _ALLOWED_ITEM = ("file", "max_speed")   # an allowed window given as a table
 
 # Speeds above 1.0 cover fans driven past design speed by a drive (up to 20 %; common
@@ -36,6 +38,10 @@ MAX_ALLOWANCE = pd.Timedelta("1D")
 # readings.max_gap at most a day: a longer bridge would count a dead sensor's days as running
 # or off instead of no data (common practice, no source)
 MAX_GAP_LIMIT = pd.Timedelta("24h")
+# trends.max_gap at most a week: a change-of-value log may stay silent over a long weekend,
+# but a value held longer than a week says little about the hours after it (common practice,
+# no source)
+MAX_TREND_GAP = pd.Timedelta("7D")
 
 # the widest `[readings] years` may be (first and last year, inclusive): the dates the
 # commands take (--from, --to) and well inside the nanosecond clock (1677-2262)

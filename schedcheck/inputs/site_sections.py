@@ -45,6 +45,7 @@ from schedcheck.inputs.site_rules import (
     SPEED_RANGE,
     YEARS_LIMIT,
 )
+from schedcheck.inputs.site_trends import check_trend_keys, component_points, trend_settings
 from schedcheck.inputs.site_values import ValueReader, hint  # noqa: F401
 from schedcheck.site import (
     EXTRA_COLUMNS,
@@ -69,6 +70,7 @@ class SiteValidator(HolidaySections):
         super().__init__(path, text)
         self.require_readings = require_readings
         self.base = path.parent
+        self.keys: dict[str, str] = {}    # component key -> its site-file key
 
     # -- tables --------------------------------------------------------------------------------
     def site(self, data: dict) -> Site | None:
@@ -86,6 +88,8 @@ class SiteValidator(HolidaySections):
         findings = self.derived(data, "findings", FindingSettings)
         weather = weather_settings(self, data, self.base)
         heating, cooling = heating_settings(self, data), cooling_settings(self, data)
+        trends = trend_settings(self, data, self.base, require_files=self.require_readings)
+        check_trend_keys(self, data, tuple(c for u in units for c in u.components), self.keys)
         if "weather" not in data:
             for i, u in enumerate(units, 1):
                 if u.outdoor_air is not None:
@@ -96,7 +100,7 @@ class SiteValidator(HolidaySections):
         return Site(name=name, timezone=tz, path=self.path, readings=readings, holidays=hol,
                     schedule=default_sched, energy=energy, units=units,
                     run_state=run_state, findings=findings, weather=weather,
-                    heating=heating, cooling=cooling)
+                    heating=heating, cooling=cooling, trends=trends)
 
     def timezone(self, s: dict) -> str:
         tz = self.string(s, "timezone", "site.timezone", required=True)
@@ -338,10 +342,12 @@ class SiteValidator(HolidaySections):
             speeds = self.speed_list(c, f"{k}.speeds")
             rpm = self.number(c, "design_rpm", f"{k}.design_rpm", lo=0.0, lo_open=True,
                               hi=MAX_RPM)
+            command, status = component_points(self, c, k)
+            self.keys[f"{uid}/{cid}"] = k
             out.append(Component(id=cid or "", unit=uid, role=role or "other",
                                  sensor=sensor or "", power_kw=power or 0.0,
                                  speed=speed or 0.0, threshold=thr, speeds=speeds,
-                                 design_rpm=rpm))
+                                 design_rpm=rpm, command=command, status=status))
         return tuple(out)
 
     def speed_list(self, c: dict, key: str) -> tuple[float, ...]:

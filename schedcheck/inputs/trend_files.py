@@ -18,10 +18,11 @@ import pandas as pd
 
 from schedcheck.errors import InputError, InputProblems
 from schedcheck.inputs.file_patterns import resolve_patterns
+from schedcheck.inputs.site_trends import wanted_points
 from schedcheck.readings.timestamps import OK, parse_timestamps
+from schedcheck.site import TREND_COLUMNS, Site
 from schedcheck.trends.points import parse_values
 
-TREND_COLUMNS = ("timestamp", "point", "value")
 #: Bad rows named in a warning when they are skipped.
 NAMED_BAD_ROWS = 5
 
@@ -34,14 +35,26 @@ class Trends:
     bad_rows: int = 0
     warnings: list[str] = field(default_factory=list)
 
-    def coverage(self) -> list[dict]:
-        """Per point: first and last sample [UTC], count and the longest silence [h]."""
+    def coverage(self, max_gap: pd.Timedelta | None = None) -> list[dict]:
+        """Per point: first and last sample [UTC], count, duplicates (same instant and value),
+        the longest silence [h] and, given ``max_gap``, the silences longer than it and the
+        hours they leave unknown (each silence less ``max_gap``) [h]."""
         out = []
-        for name, (t, _) in sorted(self.samples.items()):
-            gaps = np.diff(np.sort(t)) if t.size > 1 else np.zeros(0, np.int64)
-            out.append({"point": name, "first": pd.Timestamp(int(t.min()), tz="UTC"),
-                        "last": pd.Timestamp(int(t.max()), tz="UTC"), "samples": int(t.size),
-                        "longest_silence_h": float(gaps.max() / 3.6e12) if gaps.size else 0.0})
+        gap = None if max_gap is None else int(pd.Timedelta(max_gap).value)
+        for name, (t, v) in sorted(self.samples.items()):
+            order = np.lexsort((v, t))
+            ts, vs = t[order], v[order]
+            same = (np.diff(ts) == 0) & (np.diff(vs) == 0) if t.size > 1 else np.zeros(0, bool)
+            gaps = np.diff(np.unique(ts)) if t.size > 1 else np.zeros(0, np.int64)
+            row = {"point": name, "first": pd.Timestamp(int(t.min()), tz="UTC"),
+                   "last": pd.Timestamp(int(t.max()), tz="UTC"), "samples": int(t.size),
+                   "duplicates": int(same.sum()),
+                   "longest_silence_h": float(gaps.max() / 3.6e12) if gaps.size else 0.0}
+            if gap is not None:
+                long = gaps[gaps > gap]
+                row["silences"] = int(long.size)
+                row["unknown_h"] = float((long - gap).sum() / 3.6e12)
+            out.append(row)
         return out
 
 
@@ -112,14 +125,45 @@ def read_trends(base_dir: Path, patterns: tuple[str, ...], *, columns: dict,
     return trends
 
 
-def check_points(trends: Trends, wanted: dict[str, str]) -> list[InputError]:
+def load_site_trends(site: Site, *, skip_bad_rows: bool = False) -> Trends | None:
+    """The site's ``[trends]`` exports read and checked: every point a component names must be
+    in them (an error naming the site file's line and the nearest names found). None without
+    a ``[trends]`` table."""
+    if site.trends is None:
+        return None
+    t = site.trends
+    trends = read_trends(site.base_dir, t.files, columns=t.columns, naive_time=t.naive_time,
+                         tz=site.timezone, skip_bad_rows=skip_bad_rows)
+    problems = check_points(trends, wanted_points(site.components), path=site.path)
+    if problems:
+        raise problems[0] if len(problems) == 1 else InputProblems(problems)
+    return trends
+
+
+def _line_of(path: Path | None, name: str) -> int | None:
+    """The first line of the site file that gives ``name`` as a quoted value."""
+    if path is None:
+        return None
+    try:
+        lines = path.read_text(encoding="utf-8-sig").splitlines()
+    except (OSError, UnicodeDecodeError):
+        return None
+    for i, line in enumerate(lines, 1):
+        if f'"{name}"' in line or f"'{name}'" in line:
+            return i
+    return None
+
+
+def check_points(trends: Trends, wanted: dict[str, str], *,
+                 path: Path | None = None) -> list[InputError]:
     """An error per configured point (``key -> point name``) missing from the trends, naming
-    the nearest names found."""
+    the nearest names found (and the site file's line, given its ``path``)."""
     out = []
     names = sorted(trends.samples)
     for key, name in wanted.items():
         if name not in trends.samples:
             near = difflib.get_close_matches(name, names, n=3)
             hint = f"; nearest found: {', '.join(near)}" if near else ""
-            out.append(InputError(f"point {name!r} is not in the trend files{hint}", key=key))
+            out.append(InputError(f"point {name!r} is not in the trend files{hint}", key=key,
+                                  path=path, line=_line_of(path, name)))
     return out

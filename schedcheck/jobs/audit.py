@@ -21,6 +21,7 @@ import pandas as pd
 
 from schedcheck.audit.evidence import evidence_levels
 from schedcheck.audit.run import AuditResult, Lookback, run_audit
+from schedcheck.audit.trends_step import with_trends
 from schedcheck.changes.episodes import with_episodes
 from schedcheck.errors import InputError
 from schedcheck.inputs.provenance import provenance
@@ -77,6 +78,13 @@ def audit_result(
     lookback = (Lookback(span.start, span.end, whole,
                          unit_schedules(site, span.first, span.last))
                 if span.start < start or span.end > end else None)
+    trends = None
+    if site.trends is not None:
+        from schedcheck.inputs.trend_files import load_site_trends
+
+        say("reading the building-system trends")
+        trends = load_site_trends(site, skip_bad_rows=skip_bad_rows)
+        load_warnings += trends.warnings
     say("comparing and pricing")
     bad = {"count": int(readings.bad_rows_count),
            "examples": list(readings.bad_rows_examples)[:20]}
@@ -87,6 +95,7 @@ def audit_result(
         + [f"{u}: {w}" for u, s in schedules.items() for w in s.warnings],
         lookback=lookback,
         weather=weather,
+        find=with_trends(trends.samples, site.trends.max_gap) if trends is not None else None,
     )
     with_episodes(result)   # behaviour episodes, and the findings told since when
     result.levels = evidence_levels(result.findings, {c.key: c.sensor for c in site.components},

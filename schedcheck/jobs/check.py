@@ -37,6 +37,9 @@ class CheckReport:
     files: tuple[str, ...] = ()                  # readings files read
     bad_rows_count: int = 0
     bad_rows_examples: list[str] = field(default_factory=list)
+    # per trend point: coverage (inputs.trend_files.Trends.coverage) and ``used_by``
+    trends: list[dict] = field(default_factory=list)
+    unused_points: list[str] = field(default_factory=list)   # in the exports, named by none
 
     @property
     def ok(self) -> bool:
@@ -101,6 +104,8 @@ def check_site(path: str | Path, skip_bad_rows: bool = False,
     calendar_problems = check_calendars(site, report.calendars)
     report.problems.extend(calendar_problems)
     report.problems.extend(check_weather(site))
+    report.problems.extend(check_trends(site, report, skip_bad_rows or
+                                        site.readings.skip_bad_rows))
     skip = skip_bad_rows or site.readings.skip_bad_rows
     try:
         # read with skipping so that the health table is complete; bad rows become problems
@@ -182,3 +187,30 @@ def check_weather(site: Site) -> list[InputError]:
     except InputError as e:
         return _problems(e)
     return []
+
+
+def check_trends(site: Site, report: CheckReport, skip_bad_rows: bool) -> list[InputError]:
+    """Read the ``[trends]`` exports: their problems, coverage per point (into ``report``)
+    and the points no component names."""
+    if site.trends is None:
+        return []
+    from schedcheck.inputs.site_trends import wanted_points
+    from schedcheck.inputs.trend_files import check_points, read_trends
+
+    t = site.trends
+    try:
+        trends = read_trends(site.base_dir, t.files, columns=t.columns,
+                             naive_time=t.naive_time, tz=site.timezone,
+                             skip_bad_rows=skip_bad_rows)
+    except InputError as e:
+        return _problems(e)
+    report.warnings.extend(trends.warnings)
+    used = {}
+    for c in site.components:
+        for role in ("command", "status"):
+            if getattr(c, role) is not None:
+                used[getattr(c, role)] = f"{c.key} {role}"
+    report.trends = [row | {"used_by": used.get(row["point"], "")}
+                     for row in trends.coverage(t.max_gap)]
+    report.unused_points = sorted(set(trends.samples) - set(used))
+    return check_points(trends, wanted_points(site.components), path=site.path)

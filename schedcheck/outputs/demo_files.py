@@ -22,7 +22,7 @@ from __future__ import annotations
 import gzip
 import io
 import json
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
@@ -33,6 +33,7 @@ import pyarrow.parquet as pq
 
 from schedcheck.demo.build import DemoSite, machine_truth, observed_truth
 from schedcheck.demo.plan import SITE_NAME, TZ
+from schedcheck.demo.trends import TRENDS_EXPORT, trend_export, trend_truth
 from schedcheck.demo.weather import WEATHER_FILE
 from schedcheck.errors import InputError
 from schedcheck.intervals import NS_PER_S, from_ns, to_ns
@@ -130,9 +131,12 @@ def _readme(demo: DemoSite) -> str:
         "  calendars/*.ics        occupied hours and night-cooling windows (iCalendar)",
         "  readings/              one-a-minute vibration readings (CSV.gz and Parquet)",
         "  weather/               hourly outdoor temperature of the invented town (CSV)",
+        "  bms/trends.csv         the building system's fan command and status trends",
         "  truth/runs.csv         the true run / off / no_data intervals (UTC)",
         "  truth/machine_runs.csv what the machines really did, ignoring data gaps (UTC)",
         "  truth/faults.json      the planted faults: " + ", ".join(kinds),
+        "  truth/trends.json      the planted trend cases: hand_mode, failed_start, "
+        "false_status",
         "",
         "Caution: a real audit informs people who decide; it does not replace them. Keep",
         "ventilation minimums, freeze protection and smoke control in place, never switch off",
@@ -182,6 +186,8 @@ def write_demo(demo: DemoSite, readings: dict[str, pd.DataFrame], folder: Path) 
     files["truth/runs.csv"] = _runs_csv(observed_truth(demo))
     files["truth/machine_runs.csv"] = _runs_csv(machine_truth(demo))
     files["truth/faults.json"] = (json.dumps(faults_document(demo), indent=2) + "\n").encode()
+    files[TRENDS_EXPORT] = trend_export(demo).to_csv(index=False, lineterminator="\n").encode()
+    files["truth/trends.json"] = (json.dumps(trend_truth(demo), indent=2) + "\n").encode()
     files["README.txt"] = _readme(demo).encode()
     written = []
     path = folder
@@ -219,6 +225,8 @@ class DemoTruth:
     clean: list[str]
     window: tuple[pd.Timestamp, pd.Timestamp]
     document: dict
+    #: the planted trend cases of ``truth/trends.json`` (demo/trends.py), [] without the file
+    trend_cases: list[dict] = field(default_factory=list)
 
     def component_runs(self, component: str, *, observed: bool = True) -> pd.DataFrame:
         """One component's ``start, end, state`` table (covers the window)."""
@@ -262,7 +270,11 @@ def read_demo_truth(folder: Path) -> DemoTruth:
     gaps = pd.DataFrame(doc["data_gaps"], columns=["sensor", "component", "start", "end", "cause"])
     for c in ("start", "end"):
         gaps[c] = pd.to_datetime(gaps[c], utc=True).dt.as_unit("ns")
+    trend_doc = folder / "truth" / "trends.json"
+    cases = (json.loads(trend_doc.read_text(encoding="utf-8"))["cases"] if trend_doc.is_file()
+             else [])
     return DemoTruth(
+        trend_cases=cases,
         runs=_read_runs(folder / "truth" / "runs.csv"),
         machine_runs=_read_runs(folder / "truth" / "machine_runs.csv"),
         faults=faults, gaps=gaps, clean=list(doc["clean_components"]),

@@ -41,6 +41,7 @@ from schedcheck.outputs.thermal_fields import (
     prices_outdoor_air,
     total_fields,
 )
+from schedcheck.outputs.trends_files import trend_hours, trend_points, write_trends_file
 from schedcheck.outputs.values import (  # noqa: F401 - re-exported
     COST_DECIMALS,
     ENERGY_DECIMALS,
@@ -99,7 +100,7 @@ def _component_summary(comp, result: AuditResult) -> dict:
         "exponent": result.site.energy.exponent, "is_state_component":
             comp.unit.state_component is not None and comp.unit.state_component.key == c.key,
         "missed_counted": acc.counts_missed,
-        "hours": _hours(comp),
+        "hours": _hours(comp) | trend_hours(result, comp.key), **trend_points(result, comp.key),
         "seconds": {k: _r(acc.ns[k] / NS_PER_S, 3) for k in FIGURES},
         "speed_source": comp.speeds.main_source,
         "speed_levels": [{"level": _r(lv.level, 4), "speed": _r(lv.speed, 3),
@@ -381,6 +382,7 @@ def write_audit_files(result: AuditResult, outdir: Path, *, provenance: dict | N
         "schedule.csv": _write_csv(schedule_frame(result), outdir / "schedule.csv",
                                    excel=excel),
     }
+    files |= write_trends_file(result, outdir, lambda f, p: _write_csv(f, p, excel=excel))
     ics = outdir / "findings.ics"
     ics.write_bytes(findings_calendar(result))
     files["findings.ics"] = ics

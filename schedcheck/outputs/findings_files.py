@@ -35,7 +35,8 @@ KIND_WORDS = {
     "continuous": "continuous running", "clock_offset": "clock offset",
     "early_start": "early starts", "late_stop": "late stops", "missed": "missed operation",
     "short_cycling": "short cycling", "setback": "set back instead of stopped",
-    "over_speed": "above the allowed speed",
+    "over_speed": "above the allowed speed", "hand_mode": "ran while commanded off",
+    "failed_start": "off while commanded on", "false_status": "status point disagrees",
 }
 
 

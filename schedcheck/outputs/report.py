@@ -38,6 +38,7 @@ from schedcheck.outputs.report_tables import (  # noqa: F401 - the report's smal
     _when,
 )
 from schedcheck.outputs.report_thermal import thermal_context
+from schedcheck.outputs.report_trends import trend_sections
 from schedcheck.outputs.saved import SavedAudit, read_saved_audit
 from schedcheck.outputs.wording import monitored_words, separation_text
 from schedcheck.runstate.onofflevel import SEPARATION_CAP
@@ -60,6 +61,9 @@ KIND_LABELS = {
     "short_cycling": "Many starts per day",
     "setback": "Set back to low speed instead of stopped",
     "over_speed": "Ran above the allowed speed",
+    "hand_mode": "Ran while its command was off (hand mode)",
+    "failed_start": "Commanded on but not running",
+    "false_status": "Status point disagrees with the vibration",
 }
 
 # What to ask the controls contractor, per finding kind (plain wording of our own).
@@ -84,6 +88,15 @@ KIND_ASKS = {
                "as standby_speed).",
     "over_speed": "Check the speed limit of the allowed or standby running of {what} in the "
                   "drive or the time program.",
+    "hand_mode": "Check the hand-off-auto switch and the starter of {what}: no controls change "
+                 "stops a fan in hand. Ask first whether it was put in hand on purpose "
+                 "(commissioning, smoke control, a fire-service override); never defeat a "
+                 "life-safety sequence.",
+    "failed_start": "Check {what} for a tripped overload, a broken belt or a lost drive: the "
+                    "controls asked for air that did not come (mind freeze protection and "
+                    "minimum ventilation).",
+    "false_status": "Check the current switch or drive feedback behind the status point of "
+                    "{what}: while it lies the controls raise no fan-failure alarm.",
 }
 
 HOUR_KEYS = ("period", "scheduled", "running", "in_schedule", "in_allowance", "off_schedule",
@@ -268,6 +281,7 @@ def report_context(data: SavedAudit) -> dict:
         days_off["unit"] = days_off["unit"].fillna("")
     for c in comps:
         _charts(data, c, days_off)
+    trend_sections(data, comps, KIND_LABELS, _span)
     findings = _findings(data, by_id)
     strips = evidence_strips(data, by_id, KIND_LABELS, _span)
     shown = {st["key"]: st["anchor"] for st in strips}

@@ -152,6 +152,7 @@ def test_no_finding_without_a_planted_cause(demo):
     # one cause, one finding: every finding on the classified data is a planted fault of that
     # component (kind and date), never a side effect such as the missed hour of a shifted clock
     planted = {(f["component"], f["kind"]) for f in demo["truth"].faults}
+    planted |= {(c["component"], c["kind"]) for c in demo["truth"].trend_cases}
     found = demo["findings"]
     extra = found[[(c, k) not in planted for c, k in zip(found["component"], found["kind"],
                                                           strict=True)]]

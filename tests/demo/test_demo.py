@@ -188,7 +188,8 @@ def test_demo_writes_every_file(written):
     names = {p.relative_to(written.folder).as_posix() for p in written.files}
     assert names == {"site.toml", "README.txt", "truth/runs.csv", "truth/machine_runs.csv",
                      "truth/faults.json", "readings/gw-north.csv.gz", "readings/gw-south.csv.gz",
-                     "readings/gw-library.parquet", "weather/vellesund-outdoor.csv"} | {
+                     "readings/gw-library.parquet", "weather/vellesund-outdoor.csv",
+                     "bms/trends.csv", "truth/trends.json"} | {
                         f"calendars/{n}" for n in CALENDARS}
     assert (written.folder / "README.txt").read_text().startswith("INVENTED DEMO DATA")
     assert written.size_bytes < 5_000_000   # one month; three months are about 10 MB
@@ -310,9 +311,12 @@ def test_cli_demo_audits_what_it_wrote(tmp_path, capsys):
     summary = json.loads((tmp_path / "d/audit/summary.json").read_text())
     # one finding per unit and problem: each night names all three components of AHU-2
     kinds = {(c, f["kind"]) for f in summary["findings"] for c in f["components"]}
-    assert kinds == {(c, "night") for c in ("AHU-2/supply", "AHU-2/exhaust", "AHU-2/wheel")}
-    assert {f["unit"] for f in summary["findings"]} == {"AHU-2"}
     truth = read_demo_truth(tmp_path / "d")
+    # ... and the trend case of that window: one of those nights was a fan in hand
+    assert [c["kind"] for c in truth.trend_cases if c["date"] <= "2026-03-15"] == ["hand_mode"]
+    assert kinds == {(c, "night") for c in ("AHU-2/supply", "AHU-2/exhaust", "AHU-2/wheel")} | {
+        ("AHU-2/supply", "hand_mode")}
+    assert {f["unit"] for f in summary["findings"]} == {"AHU-2"}
     for comp in summary["components"]:
         planted = sum(f["hours"] for f in truth.faults_of(comp["id"]))
         # off-schedule hours within 1 % plus a minute per episode of the generator's truth

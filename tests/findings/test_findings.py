@@ -541,6 +541,8 @@ def demo_findings(demo_site, tmp_path_factory):
     (folder / "readings").mkdir()
     (folder / "readings" / "unused.csv.gz").write_bytes(b"")
     (folder / "readings" / "unused.parquet").write_bytes(b"")
+    (folder / "bms").mkdir()                      # and its trends pattern (not read here)
+    (folder / "bms" / "trends.csv").write_bytes(b"")
     weather = folder / "weather" / "vellesund-outdoor.csv"   # the site file names it
     weather.parent.mkdir()
     weather.write_text(demo.weather.to_csv(index=False), encoding="utf-8")

@@ -69,3 +69,12 @@ def test_a_short_window_says_plainly_it_cannot_project():
 def test_no_findings_no_projection():
     p = project_year(frame(), D0, D1)
     assert p["yearly_cost"] is None and p["one_off_cost"] == 0 and p["recurring"] == []
+
+
+def test_the_trends_diagnoses_are_never_a_yearly_pattern():
+    # a fan that fails to start every Monday: a habit, but its running (none) is priced by
+    # no one, so there is nothing to scale; the projection says no yearly figure
+    mondays = [(D0 + dt.timedelta(days=7 * i)).isoformat() for i in range(8)]
+    p = project_year(frame(*[("AHU-1", "failed_start", d, 0.0) for d in mondays]), D0, D1)
+    assert p["yearly_cost"] is None and p["recurring"] == []
+    assert p["basis"].startswith("No yearly figure")

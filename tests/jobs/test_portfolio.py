@@ -24,7 +24,7 @@ def sites(demo_month, tmp_path_factory):
     for name in ("Alder Court", "Birch Yard", "Cedar Row"):
         folder = root / name.split()[0].lower()
         folder.mkdir()
-        for part in ("readings", "calendars", "weather"):
+        for part in ("readings", "calendars", "weather", "bms"):
             shutil.copytree(demo_month.folder / part, folder / part)
         text = demo_month.site_file.read_text(encoding="utf-8").splitlines()
         first = next(i for i, line in enumerate(text) if line.startswith("name = "))

@@ -127,6 +127,13 @@ def test_demo_audit_report_in_the_browser(chromium, demo_month, tmp_path):
         strips = browser.call("Runtime.evaluate", {
             "expression": "document.querySelectorAll('figure.strip svg').length",
             "returnByValue": True})["result"]["value"]
+        # the trends: a strip under the carpet plot of each commanded component, with its
+        # lanes (command, status where given, running) and the hand-mode night's letter
+        trends = browser.call("Runtime.evaluate", {
+            "expression": "[...document.querySelectorAll('section.comp svg.trend-strip')]"
+                          ".map(e => e.closest('section').querySelector('h3').textContent"
+                          ".split(':')[0] + '|' + e.textContent.includes('running (vibration)'))"
+                          ".join(';')", "returnByValue": True})["result"]["value"]
         # printed on A4 (about 718 CSS px between the margins), no close-up sticks out
         browser.call("Emulation.setEmulatedMedia", {"media": "print"})
         browser.call("Emulation.setDeviceMetricsOverride", {
@@ -135,10 +142,16 @@ def test_demo_audit_report_in_the_browser(chromium, demo_month, tmp_path):
             "expression": "[...document.querySelectorAll('figure.strip svg')].filter(e => "
                           "e.getBoundingClientRect().right > 718.5).length",
             "returnByValue": True})["result"]["value"]
+        trend_wide = browser.call("Runtime.evaluate", {
+            "expression": "[...document.querySelectorAll('svg.trend-strip')].filter(e => "
+                          "e.getBoundingClientRect().right > 718.5).length",
+            "returnByValue": True})["result"]["value"]
         browser.call("Emulation.clearDeviceMetricsOverride")
         browser.call("Emulation.setEmulatedMedia", {"media": ""})
         pages = pdf_pages(browser.print_pdf(A4_IN))
     assert strips == min(len(result.findings), 40) > 0 and wide == 0
+    assert sorted(trends.split(";")) == sorted(f"{k}|true" for k in result.trends)
+    assert len(result.trends) == 6 and trend_wide == 0
     assert n == len(result.components) > 0
     assert 4 <= pages <= 5 * n
     assert result.first_date <= result.last_date < result.first_date + dt.timedelta(days=40)
