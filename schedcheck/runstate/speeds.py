@@ -27,6 +27,7 @@ sourced range (the choice itself: common practice, no source); the report gives 
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 
 import numpy as np
@@ -69,7 +70,8 @@ class SpeedPieces:
     ``starts``, ``ends`` [int64 ns UTC] tile the component's ``run`` set exactly, in time order;
     ``speed`` [-], ``low`` / ``high`` (the range of an estimate; equal to ``speed`` otherwise)
     and ``source`` (:data:`SPEED_SOURCES`) per piece. ``levels``: the running level groups with
-    their speeds (empty for measured speeds); ``warnings``: one line each.
+    their speeds (empty for measured speeds); ``warnings``: one line each; ``level``: the
+    median level of the readings inside each piece (a piece with none: the nearest reading's).
     """
 
     starts: np.ndarray
@@ -81,6 +83,8 @@ class SpeedPieces:
     levels: tuple[SpeedLevel, ...] = ()
     warnings: tuple[str, ...] = ()
     exponent: float = SPEED_EXPONENT
+    level: np.ndarray | None = None   # median reading level per piece [reading unit]; None:
+    #                                   pieces made without readings
 
     @classmethod
     def constant(cls, run: Intervals, speed: float, source: str = CONFIGURED) -> SpeedPieces:
@@ -194,6 +198,29 @@ def _cut(run_s: np.ndarray, run_e: np.ndarray, t: np.ndarray, key: np.ndarray
     return s[order], e[order], src[order], rmap
 
 
+def piece_levels(starts: np.ndarray, ends: np.ndarray, t: np.ndarray, level: np.ndarray
+                 ) -> np.ndarray:
+    """The median level of the readings inside each piece ``[starts, ends)`` (time order, not
+    overlapping); a piece with no reading inside takes the nearest reading's level; NaN with no
+    readings at all [reading unit]."""
+    out = np.full(starts.size, np.nan)
+    if t.size == 0 or starts.size == 0:
+        return out
+    k = np.searchsorted(starts, t, side="right") - 1
+    inside = (k >= 0) & (t < ends[np.clip(k, 0, None)])
+    if inside.any():
+        med = pd.Series(level[inside]).groupby(k[inside]).median()
+        out[med.index.to_numpy()] = med.to_numpy()
+    empty = np.isnan(out)
+    if empty.any():
+        mid = (starts[empty] + ends[empty]) // 2
+        j = np.clip(np.searchsorted(t, mid), 1, max(t.size - 1, 1))
+        j = np.where(np.abs(t[j - 1] - mid) <= np.abs(t[np.minimum(j, t.size - 1)] - mid),
+                     j - 1, np.minimum(j, t.size - 1))
+        out[empty] = level[j]
+    return out
+
+
 def _measured(comp, run_s, run_e, t, hz) -> SpeedPieces:
     s = hz * 60.0 / float(comp.design_rpm)
     ok = np.isfinite(s)
@@ -279,7 +306,9 @@ def assign_speeds(
             raise InputError("the readings carry rotation_hz but the component has no "
                              "design_rpm: set design_rpm (rotation speed at design speed, rpm)",
                              key=component.key)
-        return _measured(component, run_s, run_e, t[in_run], rotation_hz[in_run])
+        sp = _measured(component, run_s, run_e, t[in_run], rotation_hz[in_run])
+        return dataclasses.replace(sp, level=piece_levels(sp.starts, sp.ends, t[in_run],
+                                                          level[in_run]))
     lv = level[in_run]
     tr = t[in_run]
     if lv.size == 0:
@@ -297,7 +326,7 @@ def assign_speeds(
     return SpeedPieces(bs, be, sp, np.array([levels[i].low for i in gi], dtype=float),
                        np.array([levels[i].high for i in gi], dtype=float),
                        np.array([levels[i].source for i in gi], dtype=object),
-                       tuple(levels), tuple(warn), k)
+                       tuple(levels), tuple(warn), k, piece_levels(bs, be, tr, lv))
 
 
 __all__ = ["CONFIGURED", "ESTIMATED", "MEASURED", "SPEED_EXPONENT", "SPEED_EXPONENT_RANGE",
