@@ -88,6 +88,8 @@ def _extra_bad(raw: pd.DataFrame, values: np.ndarray, column: str) -> np.ndarray
     with np.errstate(invalid="ignore"):
         bad = (values < 0) | np.isinf(values)
     col = raw[column]
+    if pd.api.types.is_bool_dtype(col) or pd.api.types.is_datetime64_any_dtype(col):
+        return bad | col.notna().to_numpy()      # true/false or times: no frequency at all
     if not pd.api.types.is_numeric_dtype(col) and np.isnan(values).any():
         text = rd.arrow_text(col)
         blank = pc.fill_null(pc.is_in(pc.ascii_lower(text),

@@ -41,3 +41,14 @@ def test_a_rotation_cell_that_is_no_number_is_a_bad_row_named_by_line_and_column
     assert len(r.by_sensor["S1"]) == 59 and r.bad_rows_count == 1     # counted, not silent
     assert "rotation_hz is 'fast'" in r.bad_rows_warning
     assert r.by_sensor["S1"]["rotation_hz"].iloc[30:].isna().all()    # blank cells stay blank
+
+
+def test_a_true_false_rotation_column_in_parquet_is_no_frequency(tmp_path):
+    data = minutes("S1")
+    data["rotation_hz"] = True
+    path = site_file(tmp_path, sensors=("S1",))
+    data.to_parquet(tmp_path / "readings" / "r.parquet", index=False)
+    with pytest.raises(InputProblems) as exc:
+        load_readings(load_site(path))
+    (msg,) = [str(e) for e in exc.value.problems]
+    assert "r.parquet" in msg and "rotation_hz is a true/false value" in msg, msg
