@@ -37,7 +37,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from schedcheck.demo import synth
+from schedcheck.demo import speed_units, synth
 from schedcheck.demo.plan import (
     BATTERY_FLAT,
     CALENDARS,
@@ -88,6 +88,7 @@ class PlantedFault:
     dates: tuple[str, ...]
     episodes: tuple[tuple[pd.Timestamp, pd.Timestamp], ...]
     note: str
+    kwh: float | None = None   # true off-schedule energy, where the speed sets it (setback...)
 
     @property
     def unit(self) -> str:
@@ -316,6 +317,9 @@ def build_demo(seed: int = DEFAULT_SEED, months: int = DEFAULT_MONTHS) -> DemoSi
     speed: dict[str, pd.Series] = {}
     cold = Intervals.from_arrays(grid[temps < WHEEL_BELOW], grid[temps < WHEEL_BELOW] + _GRID)
     for plan in UNITS:
+        if plan.reduced_speed:   # own random streams: nothing above moves (demo/speed_units.py)
+            _speed_unit(plan, dates, off, temp, seed, s0, e0, truth, speed, faults)
+            continue
         sup, sup_faults = _supply_runs(plan, dates, off, temp, rng, s0, e0)
         for m in (m for m in MACHINES if m.unit == plan.id):
             if m.role == "supply_fan":
@@ -341,6 +345,24 @@ def build_demo(seed: int = DEFAULT_SEED, months: int = DEFAULT_MONTHS) -> DemoSi
                     machines=MACHINES, truth=truth, gaps=_gaps(s0, e0), faults=faults,
                     days_off=off, speed=speed, outdoor=(grid, temps),
                     weather=weather_table(grid, temps, TZ))
+
+
+def _speed_unit(plan: UnitPlan, dates, off, temp, seed: int, s0: int, e0: int, truth: dict,
+                speed: dict, faults: list) -> None:
+    """True runs, speed steps and faults of a reduced-speed unit (AHU-6, AHU-7)."""
+    rng = np.random.default_rng([int(seed), speed_units.SPEED_STREAM + 10 + UNITS.index(plan)])
+    day, _ = _supply_runs(plan, dates, off, temp, rng, s0, e0)
+    purge = Intervals.from_arrays(
+        [_at(r.first, r.start) for r in CALENDARS["night-purge.ics"][1]],
+        [_at(r.first, r.end) for r in CALENDARS["night-purge.ics"][1]])
+    runs, found = speed_units.speed_unit_truth(
+        plan, day, dates, _at, purge, seed, s0, e0,
+        lambda run, r: _follow(run, r, 20, 60, 5, 40), TZ)
+    for m in (m for m in MACHINES if m.unit == plan.id):
+        truth[m.key] = _labelled(runs[m.role][0], s0, e0)
+        speed[m.key] = runs[m.role][1]
+        faults += [PlantedFault(m.key, k, d, _pairs(e), n, round(kwh, 4))
+                   for role, k, d, e, kwh, n in found if role == m.role]
 
 
 def _gaps(s0: int, e0: int) -> pd.DataFrame:
@@ -402,12 +424,15 @@ def demo_readings(demo: DemoSite) -> dict[str, pd.DataFrame]:
             noise_floor=m.noise_floor, running_level=m.running_level, level_drift=m.drift,
             speed=demo.speed.get(m.key), carried=carried, carried_level=m.carried_level,
             transient_factor=float(rng.uniform(2.0, 4.0)), packet_loss=0.012,
-            outages=_outages(demo, m.sensor), axes=m.axes)
+            outages=_outages(demo, m.sensor), axes=m.axes, design_rpm=m.design_rpm)
         frame["timestamp"] = frame["timestamp"].dt.floor("s")
         levels = [f"{a}_rms" for a in m.axes] + [f"{m.axes[-1]}_peak"]
-        frame = frame[["timestamp", "sensor", *levels]]
-        for c in frame.columns[2:]:
+        frame = frame[["timestamp", "sensor", *levels]
+                      + (["rotation_hz"] if m.design_rpm else [])]
+        for c in levels:
             frame[c] = _two_digits(frame[c].to_numpy())
+        if m.design_rpm:   # a spectral estimate to 0.01 Hz, blank while stopped
+            frame["rotation_hz"] = frame["rotation_hz"].round(2)
         # file position: the i-th row sits where the i-th earliest reading would
         frame["_pos"] = np.sort(to_ns(frame["timestamp"]))
         files.setdefault(READINGS_FILES[m.gateway], []).append(frame)

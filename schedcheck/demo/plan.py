@@ -67,7 +67,12 @@ CALENDARS: dict[str, tuple[str, tuple[Rule, ...]]] = {
     "night-purge.ics": ("Night cooling allowed (not required)", tuple(
         Rule("Night cooling allowed", d, "01:00", "05:00")
         for d in (dt.date(2026, 5, m) for m in (5, 6, 7, 11, 12)))),
+    "weekend-ventilation.ics": ("Weekend ventilation, allowed at low speed", (
+        Rule("Weekend ventilation (low speed)", dt.date(2026, 1, 10), "09:00", "15:00",
+             (5, 6)),)),
 }
+# allowed windows with a speed limit: calendar -> max_speed [-] (interface section 6)
+LIMITED = {"weekend-ventilation.ics": 0.5}
 
 
 @dataclass(frozen=True)
@@ -88,6 +93,8 @@ class Machine:
     carried_level: float = 0.0    # [mm/s]
     variable_speed: bool = False
     axes: str = "xyz"             # axes the sensor reports (RMS each; peak on the last only)
+    speeds: tuple[float, ...] = ()    # a multi-speed fan's speeds, in the site file [-]
+    design_rpm: float | None = None   # with it the sensor writes rotation_hz [rpm]
 
     @property
     def key(self) -> str:
@@ -103,6 +110,8 @@ class UnitPlan:
     purge: bool = False               # uses the night-cooling windows
     clock_tz: str = TZ                # the zone the controller's clock keeps
     ignores_days_off: bool = False    # controller never got holidays and closures
+    reduced_speed: bool = False       # runs at reduced speed (demo/speed_units.py)
+    allowed: tuple[str, ...] = ()     # the unit's own allowed calendars (else the site's)
 
 
 UNITS = (
@@ -112,6 +121,9 @@ UNITS = (
              clock_tz="Etc/GMT-1"),   # POSIX sign: UTC+1 all year, no daylight saving
     UnitPlan("AHU-4", "South office wing", "offices.ics"),
     UnitPlan("AHU-5", "Library", "library.ics", early_start="1h", purge=True),
+    UnitPlan("AHU-6", "West office wing", "offices.ics", reduced_speed=True),
+    UnitPlan("AHU-7", "Craft workshops", "offices.ics", early_start="1h", reduced_speed=True,
+             allowed=("night-purge.ics", "weekend-ventilation.ics")),
 )
 MACHINES = (
     Machine("AHU-1", "supply", "supply_fan", "VB-1011", "GW-N", 7.5, 0.85, 2.2, 0.040, 0.03),
@@ -128,9 +140,18 @@ MACHINES = (
     Machine("AHU-4", "exhaust", "exhaust_fan", "VB-1042", "GW-S", 5.5, 0.85, 1.4, 0.060),
     Machine("AHU-5", "supply", "supply_fan", "VB-1051", "GW-L", 3.0, 0.75, 1.2, 0.030, axes="z"),
     Machine("AHU-5", "exhaust", "exhaust_fan", "VB-1052", "GW-L", 2.2, 0.75, 0.9, 0.035, axes="z"),
+    # variable-speed drives; the supply sensor estimates the shaft frequency (rotation_hz)
+    Machine("AHU-6", "supply", "supply_fan", "VB-1061", "GW-W", 5.5, 0.85, 2.6, 0.040,
+            design_rpm=1450.0),
+    Machine("AHU-6", "exhaust", "exhaust_fan", "VB-1062", "GW-W", 4.0, 0.85, 1.8, 0.050, 0.02),
+    # two-speed fans (low and high)
+    Machine("AHU-7", "supply", "supply_fan", "VB-1071", "GW-W", 4.0, 1.0, 2.4, 0.040,
+            speeds=(0.5, 1.0)),
+    Machine("AHU-7", "exhaust", "exhaust_fan", "VB-1072", "GW-W", 3.0, 1.0, 1.7, 0.045,
+            speeds=(0.5, 1.0)),
 )
 READINGS_FILES = {"GW-N": "gw-north.csv.gz", "GW-S": "gw-south.csv.gz",
-                  "GW-L": "gw-library.parquet"}
+                  "GW-L": "gw-library.parquet", "GW-W": "gw-west.csv.gz"}
 
 # The planted faults and data gaps (local times; invented for the demo).
 NIGHT_OVERRIDE = ("AHU-2", tuple(dt.date(2026, 3, d) for d in (9, 10, 11, 12)),
@@ -267,6 +288,10 @@ def site_toml() -> str:
         over = [f'occupied = "calendars/{u.calendar}"'] if u.calendar != "offices.ics" else []
         if u.early_start:
             over.append(f'early_start = "{u.early_start}"')
+        if u.allowed:
+            over.append("allowed = [" + ", ".join(
+                f'{{ file = "calendars/{c}", max_speed = {LIMITED[c]} }}' if c in LIMITED
+                else f'"calendars/{c}"' for c in u.allowed) + "]")
         if over:
             out.append("schedule = { " + ", ".join(over) + " }")
         if outdoor_air_line(u.id):
@@ -274,4 +299,8 @@ def site_toml() -> str:
         for m in (m for m in MACHINES if m.unit == u.id):
             out += ["", "[[unit.component]]", f'id = "{m.id}"', f'role = "{m.role}"',
                     f'sensor = "{m.sensor}"', f"power_kw = {m.power_kw}", f"speed = {m.speed}"]
+            if m.speeds:
+                out.append("speeds = [" + ", ".join(str(v) for v in m.speeds) + "]")
+            if m.design_rpm:
+                out.append(f"design_rpm = {m.design_rpm:g}")
     return "\n".join(out) + "\n"

@@ -245,8 +245,10 @@ def score_states(
 def fault_hours_as_audited(kind: str, episodes, schedule: pd.DataFrame) -> float:
     """A planted fault's hours by the audit's definitions [h], so the demo's table of planted
     faults can be read against the audit's table: for ``missed`` the occupied time inside the
-    fault (the fan was off), for every other kind the fault's running outside occupied
-    periods, allowances and allowed windows (off-schedule running).
+    fault (the fan was off), for ``over_speed`` the fault's running outside occupied periods
+    and allowances (it runs in an allowed window above its ``max_speed``), for every other kind
+    the fault's running outside occupied periods, allowances and allowed windows (off-schedule
+    running).
 
     Parameters
     ----------
@@ -263,4 +265,7 @@ def fault_hours_as_audited(kind: str, episodes, schedule: pd.DataFrame) -> float
     if kind == "missed":
         occupied = Intervals.from_frame(schedule[schedule["kind"] == "occupied"])
         return ep.intersection(occupied).hours()
+    if kind == "over_speed":
+        return ep.difference(Intervals.from_frame(schedule[schedule["kind"] != "allowed"])
+                             ).hours()
     return ep.difference(Intervals.from_frame(schedule)).hours()

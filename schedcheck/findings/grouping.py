@@ -157,7 +157,9 @@ def _joined(part: pd.DataFrame, lead_of: dict[str, str], describe) -> dict:
     first = part.sort_values("start", kind="stable").iloc[0]
     return {"unit": unit, "component": comps[0], "components": comps, "kind": lead["kind"],
             "start": part["start"].min(), "end": part["end"].max(), "date": first["date"],
-            "hours": float(part["hours"].max()), "component_hours": float(part["hours"].sum()),
+            # unit-hours: the longest component's hours (its pieces summed: a night split
+            # at a holiday's midnight is one finding of both pieces)
+            "hours": max(p["hours"] for p in parts), "component_hours": float(part["hours"].sum()),
             "kwh": kwh, "cost": cost, "co2_kg": co2, "detail": detail, "parts": parts,
             **{c: float(part[c].sum(min_count=1)) for c in THERMAL_COLUMNS if c in part}}
 

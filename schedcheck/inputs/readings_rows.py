@@ -11,6 +11,7 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+import pyarrow as pa
 import pyarrow.compute as pc
 
 from schedcheck.errors import InputError
@@ -80,6 +81,23 @@ def _blank_rows(rows: _Rows) -> np.ndarray:
     return blank
 
 
+def _extra_bad(raw: pd.DataFrame, values: np.ndarray, column: str) -> np.ndarray:
+    """Rows whose optional column (``rotation_hz``) holds a value that is not a number from 0
+    up: negative, infinite, or text that is no number. An empty cell (or NaN) is no value, as a
+    stopped shaft has no rotation; such a row is kept."""
+    with np.errstate(invalid="ignore"):
+        bad = (values < 0) | np.isinf(values)
+    col = raw[column]
+    if pd.api.types.is_bool_dtype(col) or pd.api.types.is_datetime64_any_dtype(col):
+        return bad | col.notna().to_numpy()      # true/false or times: no frequency at all
+    if not pd.api.types.is_numeric_dtype(col) and np.isnan(values).any():
+        text = rd.arrow_text(col)
+        blank = pc.fill_null(pc.is_in(pc.ascii_lower(text),
+                                      value_set=pa.array(["", "nan"])), True)
+        bad |= np.isnan(values) & ~np.asarray(blank.to_numpy(zero_copy_only=False), dtype=bool)
+    return bad
+
+
 def _levels(rows: _Rows, levels: tuple[str, ...], n_names: int
             ) -> tuple[pd.DataFrame, np.ndarray, dict[str, list[int]]]:
     """Level values, rows with a bad level, and the columns absent per sensor code.
@@ -93,14 +111,13 @@ def _levels(rows: _Rows, levels: tuple[str, ...], n_names: int
         lbad = np.zeros(len(rows.raw), bool)
         for c in levels:
             v = lv[c].to_numpy()
-            lbad |= ((v < 0) | np.isinf(v)) if c in extra else (~np.isfinite(v) | (v < 0))
+            lbad |= _extra_bad(rows.raw, v, c) if c in extra else (~np.isfinite(v) | (v < 0))
     levels = tuple(c for c in levels if c not in extra)
     absent = _absent_levels(rows.raw, levels, rows.codes, n_names)
     if absent:
         lbad = np.zeros(len(rows.raw), bool)
         for c in extra:
-            v = lv[c].to_numpy()
-            lbad |= (v < 0) | np.isinf(v)
+            lbad |= _extra_bad(rows.raw, lv[c].to_numpy(), c)
         for c in levels:
             cbad = rd.bad_levels(lv[c].to_numpy())
             lbad |= cbad & ~np.isin(rows.codes, absent.get(c, []))
@@ -240,7 +257,14 @@ class Collector:
                 for c in levels:
                     if absent and codes[i] in absent.get(c, ()):
                         continue
-                    reason = rd.describe_level(raw[c].iloc[i], c)
+                    if c in EXTRA_COLUMNS:   # optional: an empty cell is no value
+                        cell = raw[c].iloc[i]
+                        if cell is None or str(cell).strip().lower() in ("", "nan"):
+                            continue
+                        reason = rd.describe_level(cell, c)
+                        reason = reason and reason.removeprefix("level ")
+                    else:
+                        reason = rd.describe_level(raw[c].iloc[i], c)
                     if reason:
                         break
             w = self._where(path, lines, int(i), sensor, raw)

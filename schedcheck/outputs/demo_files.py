@@ -9,6 +9,8 @@ Layout written by :func:`write_demo` (all of it invented data, see ``README.txt`
     DIR/truth/runs.csv             what an audit should recover: component, state, start, end
                                    (UTC ISO 8601; state run / off / no_data over the data gaps)
     DIR/truth/machine_runs.csv     what the machines really did (run / off only, no gaps)
+    DIR/truth/speeds.csv           the true speeds of the drives and two-speed fans: component,
+                                   start (UTC), speed (held to the component's next row)
     DIR/truth/faults.json          the planted faults, the data gaps and the clean components
     DIR/README.txt                 what this folder is
 
@@ -54,6 +56,17 @@ def _runs_csv(frame: pd.DataFrame) -> bytes:
     return out.to_csv(index=False, lineterminator="\n").encode()
 
 
+def speeds_csv(demo: DemoSite) -> bytes:
+    """``truth/speeds.csv``: ``component, start, speed``: each speed [-] holds from its UTC
+    start to the component's next row, while the component runs."""
+    rows = [pd.DataFrame({"component": key, "start": s.index.strftime(_TIME_FMT),
+                          "speed": s.to_numpy(dtype=float).round(4)})
+            for key, s in demo.speed.items() if len(s)]
+    out = (pd.concat(rows, ignore_index=True) if rows
+           else pd.DataFrame(columns=["component", "start", "speed"]))
+    return out.to_csv(index=False, lineterminator="\n").encode()
+
+
 def _iso_seconds(ts: pd.Series) -> pa.Array:
     """Whole-second UTC instants as ``YYYY-MM-DDTHH:MM:SSZ`` strings (vectorised: strftime
     runs once per distinct minute, the seconds are filled in as bytes)."""
@@ -74,8 +87,8 @@ def _readings_csv_gz(frame: pd.DataFrame) -> bytes:
     pandas' here."""
     cols = {"timestamp": _iso_seconds(frame["timestamp"]),
             "sensor": pa.array(frame["sensor"].to_numpy(dtype=object), type=pa.string())}
-    for c in frame.columns[2:]:
-        cols[c] = pa.array(frame[c].to_numpy(dtype=float))
+    for c in frame.columns[2:]:   # NaN (a blank rotation_hz) is written as an empty cell
+        cols[c] = pa.array(frame[c].to_numpy(dtype=float), from_pandas=True)
     buf = io.BytesIO()
     buf.write((",".join(cols) + "\n").encode())
     pacsv.write_csv(pa.table(cols), buf,
@@ -104,7 +117,8 @@ def faults_document(demo: DemoSite) -> dict:
             {"component": f.component, "unit": f.unit, "kind": f.kind, "dates": list(f.dates),
              "start": _iso(f.start), "end": _iso(f.end), "hours": round(f.hours, 4),
              "episodes": [[_iso(a), _iso(b)] for a, b in f.episodes],
-             "may_also_show": list(f.may_also_show), "note": f.note}
+             "may_also_show": list(f.may_also_show), "note": f.note,
+             **({} if f.kwh is None else {"kwh": f.kwh})}
             for f in demo.faults
         ],
         "data_gaps": [
@@ -134,6 +148,7 @@ def _readme(demo: DemoSite) -> str:
         "  bms/trends.csv         the building system's fan command and status trends",
         "  truth/runs.csv         the true run / off / no_data intervals (UTC)",
         "  truth/machine_runs.csv what the machines really did, ignoring data gaps (UTC)",
+        "  truth/speeds.csv       the true fan speeds of the variable and two-speed fans (UTC)",
         "  truth/faults.json      the planted faults: " + ", ".join(kinds),
         "  truth/trends.json      the planted trend cases: hand_mode, failed_start, "
         "false_status",
@@ -185,6 +200,7 @@ def write_demo(demo: DemoSite, readings: dict[str, pd.DataFrame], folder: Path) 
         files[WEATHER_FILE] = demo.weather.to_csv(index=False, lineterminator="\n").encode()
     files["truth/runs.csv"] = _runs_csv(observed_truth(demo))
     files["truth/machine_runs.csv"] = _runs_csv(machine_truth(demo))
+    files["truth/speeds.csv"] = speeds_csv(demo)
     files["truth/faults.json"] = (json.dumps(faults_document(demo), indent=2) + "\n").encode()
     files[TRENDS_EXPORT] = trend_export(demo).to_csv(index=False, lineterminator="\n").encode()
     files["truth/trends.json"] = (json.dumps(trend_truth(demo), indent=2) + "\n").encode()
@@ -215,7 +231,9 @@ class DemoTruth:
     ``runs``: component, state (run / off / no_data), start, end (UTC); what an audit should
     recover. ``machine_runs``: the same without data gaps. ``faults``: the records of
     faults.json with ``start``, ``end`` and ``episodes`` as UTC Timestamps. ``gaps``: sensor,
-    component, start, end, cause. ``clean``: components with no planted fault.
+    component, start, end, cause. ``clean``: components with no planted fault. ``speeds``:
+    component, start (UTC), speed [-] of the fans whose speed changes (None in a folder
+    written before the file existed).
     """
 
     runs: pd.DataFrame
@@ -227,6 +245,7 @@ class DemoTruth:
     document: dict
     #: the planted trend cases of ``truth/trends.json`` (demo/trends.py), [] without the file
     trend_cases: list[dict] = field(default_factory=list)
+    speeds: pd.DataFrame | None = None   # component, start (UTC), speed: truth/speeds.csv
 
     def component_runs(self, component: str, *, observed: bool = True) -> pd.DataFrame:
         """One component's ``start, end, state`` table (covers the window)."""
@@ -273,8 +292,14 @@ def read_demo_truth(folder: Path) -> DemoTruth:
     trend_doc = folder / "truth" / "trends.json"
     cases = (json.loads(trend_doc.read_text(encoding="utf-8"))["cases"] if trend_doc.is_file()
              else [])
+    sp_path = folder / "truth" / "speeds.csv"
+    speeds = None
+    if sp_path.is_file():
+        speeds = pd.read_csv(sp_path, dtype={"component": str})
+        speeds["start"] = pd.to_datetime(speeds["start"], utc=True).dt.as_unit("ns")
     return DemoTruth(
         trend_cases=cases,
+        speeds=speeds,
         runs=_read_runs(folder / "truth" / "runs.csv"),
         machine_runs=_read_runs(folder / "truth" / "machine_runs.csv"),
         faults=faults, gaps=gaps, clean=list(doc["clean_components"]),

@@ -285,13 +285,16 @@ def runs_frame(result: AuditResult) -> pd.DataFrame:
     """The rows of ``runs.csv``: every state interval of every component, in time order.
 
     The intervals are those the accounting counted (each state's set, touching pieces merged);
-    each carries the classifier's level of the piece it starts in.
+    a run interval split at speed changes carries the median level of its own readings, any
+    other the classifier's level of the piece it starts in.
     """
     tz = result.site.timezone
     parts = []
     for comp in result.components:
         f = _state_frame(comp.account.states, comp.speeds)
         level = comp.states.level_at(to_ns(f["start"])) if len(f) else np.zeros(0)
+        own = f["level"].to_numpy(dtype=float)
+        level = np.where(np.isfinite(own), own, level)
         parts.append(pd.DataFrame({
             "component": comp.key, "state": f["state"].to_numpy(),
             "start": [local_iso(x, tz) for x in f["start"]],
@@ -308,24 +311,28 @@ def runs_frame(result: AuditResult) -> pd.DataFrame:
 
 
 def _state_frame(states: StateSets, speeds: SpeedPieces | None = None) -> pd.DataFrame:
-    """A run-state table (``start``, ``end``, ``state``, ``speed``, ``speed_source``; UTC) from
-    the three sets, by start; run intervals split where the speed changes (``speeds``)."""
+    """A run-state table (``start``, ``end``, ``state``, ``speed``, ``speed_source``, ``level``
+    (a run piece's own median level, else NaN); UTC) from the three sets, by start; run
+    intervals split where the speed changes (``speeds``)."""
     parts = []
     for name in STATES:
         s = states.of(name)
         if name == "run" and speeds is not None and len(s):
+            level = speeds.level if speeds.level is not None else np.nan
             parts.append(pd.DataFrame({"start": from_ns(speeds.starts),
                                        "end": from_ns(speeds.ends), "state": name,
-                                       "speed": speeds.speed, "speed_source": speeds.source}))
+                                       "speed": speeds.speed, "speed_source": speeds.source,
+                                       "level": level}))
         elif len(s):
             f = s.to_frame()
             f["state"] = name
             f["speed"] = np.nan
             f["speed_source"] = ""
+            f["level"] = np.nan
             parts.append(f)
     if not parts:
         return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "state": [],
-                             "speed": [], "speed_source": []})
+                             "speed": [], "speed_source": [], "level": []})
     out = pd.concat(parts, ignore_index=True).sort_values("start", kind="stable")
     return out.reset_index(drop=True)
 

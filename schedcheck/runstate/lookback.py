@@ -123,7 +123,8 @@ def _window_speeds(sp: SpeedPieces | None, s0: int, e0: int) -> SpeedPieces | No
     keep = b > a
     return dataclasses.replace(sp, starts=a[keep].astype(np.int64),
                                ends=b[keep].astype(np.int64), speed=sp.speed[keep],
-                               low=sp.low[keep], high=sp.high[keep], source=sp.source[keep])
+                               low=sp.low[keep], high=sp.high[keep], source=sp.source[keep],
+                               level=None if sp.level is None else sp.level[keep])
 
 
 def classify_with_lookback(

@@ -27,6 +27,7 @@ sourced range (the choice itself: common practice, no source); the report gives 
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 
 import numpy as np
@@ -69,7 +70,8 @@ class SpeedPieces:
     ``starts``, ``ends`` [int64 ns UTC] tile the component's ``run`` set exactly, in time order;
     ``speed`` [-], ``low`` / ``high`` (the range of an estimate; equal to ``speed`` otherwise)
     and ``source`` (:data:`SPEED_SOURCES`) per piece. ``levels``: the running level groups with
-    their speeds (empty for measured speeds); ``warnings``: one line each.
+    their speeds (empty for measured speeds); ``warnings``: one line each; ``level``: the
+    median level of the readings inside each piece (a piece with none: the nearest reading's).
     """
 
     starts: np.ndarray
@@ -81,6 +83,8 @@ class SpeedPieces:
     levels: tuple[SpeedLevel, ...] = ()
     warnings: tuple[str, ...] = ()
     exponent: float = SPEED_EXPONENT
+    level: np.ndarray | None = None   # median reading level per piece [reading unit]; None:
+    #                                   pieces made without readings
 
     @classmethod
     def constant(cls, run: Intervals, speed: float, source: str = CONFIGURED) -> SpeedPieces:
@@ -152,10 +156,21 @@ def _smoothed(x: np.ndarray) -> np.ndarray:
     w = SMOOTH_READINGS
     if x.size < w:
         return x
-    win = np.lib.stride_tricks.sliding_window_view(np.asarray(x, dtype=float), w)
     out = np.array(x, dtype=float)
+    n = x.size - w + 1
+    if w == 5:   # a sorting network of five (Knuth, TAOCP vol. 3, 5.3.4): 9 vectorised
+        #          compare-exchanges, several times faster than a partition of each window
+        v = [out[i:i + n].copy() for i in range(5)]
+        for i, j in _NETWORK5:
+            v[i], v[j] = np.minimum(v[i], v[j]), np.maximum(v[i], v[j])
+        out[2: x.size - 2] = v[2]
+        return out
+    win = np.lib.stride_tricks.sliding_window_view(out.copy(), w)
     out[w // 2: x.size - w // 2] = np.partition(win, w // 2, axis=1)[:, w // 2]
     return out
+
+
+_NETWORK5 = ((0, 1), (3, 4), (2, 4), (2, 3), (0, 3), (0, 2), (1, 4), (1, 3), (1, 2))
 
 
 def _cut(run_s: np.ndarray, run_e: np.ndarray, t: np.ndarray, key: np.ndarray
@@ -192,6 +207,45 @@ def _cut(run_s: np.ndarray, run_e: np.ndarray, t: np.ndarray, key: np.ndarray
     rmap = np.full(t.size, -1)
     rmap[inside] = np.argsort(order)[member]
     return s[order], e[order], src[order], rmap
+
+
+def piece_levels(starts: np.ndarray, ends: np.ndarray, t: np.ndarray, level: np.ndarray
+                 ) -> np.ndarray:
+    """The median level of the readings inside each piece ``[starts, ends)`` (time order, not
+    overlapping); a piece with no reading inside takes the nearest reading's level; NaN with no
+    readings at all [reading unit]."""
+    out = np.full(starts.size, np.nan)
+    if t.size == 0 or starts.size == 0:
+        return out
+    k = np.searchsorted(starts, t, side="right") - 1
+    inside = (k >= 0) & (t < ends[np.clip(k, 0, None)])
+    if inside.any():
+        med = pd.Series(level[inside]).groupby(k[inside]).median()
+        out[med.index.to_numpy()] = med.to_numpy()
+    empty = np.isnan(out)
+    if empty.any():
+        out[empty] = _nearest(starts[empty], ends[empty], t, level)
+    return out
+
+
+def _levels_by_piece(bs, be, t, level, rmap) -> np.ndarray:
+    """:func:`piece_levels` from the reading -> piece map :func:`_cut` made (no search)."""
+    out = np.full(bs.size, np.nan)
+    ok = rmap >= 0
+    if ok.any():
+        med = pd.Series(level[ok]).groupby(rmap[ok], sort=False).median()
+        out[med.index.to_numpy()] = med.to_numpy()
+    empty = np.isnan(out)
+    if empty.any() and t.size:   # pieces without a reading: the nearest reading's level
+        out[empty] = _nearest(bs[empty], be[empty], t, level)
+    return out
+
+
+def _nearest(bs, be, t, level) -> np.ndarray:
+    mid = (bs + be) // 2
+    j = np.clip(np.searchsorted(t, mid), 1, max(t.size - 1, 1))
+    jj = np.minimum(j, t.size - 1)
+    return level[np.where(np.abs(t[j - 1] - mid) <= np.abs(t[jj] - mid), j - 1, jj)]
 
 
 def _measured(comp, run_s, run_e, t, hz) -> SpeedPieces:
@@ -279,7 +333,9 @@ def assign_speeds(
             raise InputError("the readings carry rotation_hz but the component has no "
                              "design_rpm: set design_rpm (rotation speed at design speed, rpm)",
                              key=component.key)
-        return _measured(component, run_s, run_e, t[in_run], rotation_hz[in_run])
+        sp = _measured(component, run_s, run_e, t[in_run], rotation_hz[in_run])
+        return dataclasses.replace(sp, level=piece_levels(sp.starts, sp.ends, t[in_run],
+                                                          level[in_run]))
     lv = level[in_run]
     tr = t[in_run]
     if lv.size == 0:
@@ -291,13 +347,13 @@ def assign_speeds(
     medians = [float(10 ** np.median(L[key == i])) if (key == i).any() else np.nan
                for i in range(bounds.size + 1)]
     levels, warn = _level_speeds(component, medians, k)
-    bs, be, src, _ = _cut(run_s, run_e, tr, key)
+    bs, be, src, rmap = _cut(run_s, run_e, tr, key)
     gi = key[np.clip(src, 0, None)]
     sp = np.array([levels[i].speed for i in gi], dtype=float)
     return SpeedPieces(bs, be, sp, np.array([levels[i].low for i in gi], dtype=float),
                        np.array([levels[i].high for i in gi], dtype=float),
                        np.array([levels[i].source for i in gi], dtype=object),
-                       tuple(levels), tuple(warn), k)
+                       tuple(levels), tuple(warn), k, _levels_by_piece(bs, be, tr, lv, rmap))
 
 
 __all__ = ["CONFIGURED", "ESTIMATED", "MEASURED", "SPEED_EXPONENT", "SPEED_EXPONENT_RANGE",

@@ -72,9 +72,12 @@ def test_headline_counts_unit_hours_and_projects_only_the_recurring_pattern(demo
     assert t["unit_hours"] < t["component_hours"] == pytest.approx(t["off_schedule"])
     assert t["findings"] < t["component_findings"]
     p = s["projection"]
-    # the demo's holiday running on AHU-1 (planted on 6 days off in 4 weeks) recurs; the
-    # 27-day continuous run of AHU-4 and the clock offset of AHU-3 are one-off events
-    assert [(r["unit"], r["kind"]) for r in p["recurring"]] == [("AHU-1", "holiday")]
+    # the demo's holiday running on AHU-1 (planted on 6 days off in 4 weeks) and AHU-6's
+    # nightly setback (35 nights) recur; the 27-day continuous run of AHU-4, the clock offset
+    # of AHU-3 and AHU-7's three high-speed weekend days are one-off events
+    assert [(r["unit"], r["kind"]) for r in p["recurring"]] == [("AHU-1", "holiday"),
+                                                                 ("AHU-6", "setback")]
+    assert "AHU-7-over_speed-2026-03-21" in p["one_off"]
     assert "AHU-4-continuous-2026-04-20" in p["one_off"]
     assert p["one_off_cost"] + sum(r["cost"] for r in p["recurring"]) == pytest.approx(
         sum(f["cost"] for f in s["findings"]), abs=0.05)

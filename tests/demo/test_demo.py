@@ -25,7 +25,7 @@ from schedcheck.window import day_window
 from tests.helpers import assert_tiles_window
 
 TZ = "Europe/Oslo"
-KINDS = {"holiday", "night", "clock_offset", "missed", "continuous"}
+KINDS = {"holiday", "night", "clock_offset", "missed", "continuous", "setback", "over_speed"}
 
 
 @pytest.fixture(scope="module")
@@ -151,8 +151,10 @@ def test_clean_and_faulty_running_against_calendars_expanded_by_a_reference_libr
     off_days = Intervals.empty()
     for d in site.days_off:
         off_days = off_days | Intervals.window(*day_window(d, d, TZ))
-    allowed = _expand(site.calendars["night-purge.ics"], site.first, site.last)
     for plan in UNITS:
+        allowed = Intervals.empty()
+        for name in plan.allowed or ("night-purge.ics",):   # the unit's own, else the site's
+            allowed = allowed | _expand(site.calendars[name], site.first, site.last)
         text = site.calendars[plan.calendar]
         occ = (_expand(text, site.first, site.last, marked=False) - off_days
                | _expand(text, site.first, site.last, marked=True))
@@ -187,7 +189,8 @@ def test_months_changes_the_window_and_bad_months_are_refused():
 def test_demo_writes_every_file(written):
     names = {p.relative_to(written.folder).as_posix() for p in written.files}
     assert names == {"site.toml", "README.txt", "truth/runs.csv", "truth/machine_runs.csv",
-                     "truth/faults.json", "readings/gw-north.csv.gz", "readings/gw-south.csv.gz",
+                     "truth/faults.json", "truth/speeds.csv", "readings/gw-north.csv.gz",
+                     "readings/gw-south.csv.gz", "readings/gw-west.csv.gz",
                      "readings/gw-library.parquet", "weather/vellesund-outdoor.csv",
                      "bms/trends.csv", "truth/trends.json"} | {
                         f"calendars/{n}" for n in CALENDARS}
@@ -199,10 +202,16 @@ def test_site_file_loads_and_calendars_are_valid(written):
     from schedcheck.inputs.site_file import load_site
 
     s = load_site(written.site_file)
-    assert s.timezone == TZ and len(s.units) == 5 and len(s.components) == len(MACHINES)
+    assert s.timezone == TZ and len(s.units) == len(UNITS) == 7
+    assert len(s.components) == len(MACHINES)
     assert {c.sensor for c in s.components} == {m.sensor for m in MACHINES}
     roles = [r.role for r in s.unit("AHU-2").components]
     assert roles == ["supply_fan", "exhaust_fan", "heat_wheel"]
+    # the reduced-speed units: a measured drive speed, two-speed fans, weekend ventilation
+    # allowed up to half speed
+    assert s.unit("AHU-6").components[0].design_rpm == 1450
+    assert [c.speeds for c in s.unit("AHU-7").components] == [(0.5, 1.0)] * 2
+    assert s.unit("AHU-7").schedule.allowed_limits == (None, 0.5)
     for u in s.units:
         for p in u.schedule.occupied + u.schedule.allowed:
             assert p.is_file(), p
@@ -216,6 +225,13 @@ def test_readings_parse_with_the_expected_sensors_and_faults_of_transport(writte
     assert list(lib.columns) == ["timestamp", "sensor", "z_rms", "z_peak"]
     assert set(north["sensor"]) == {"VB-1011", "VB-1012", "VB-1021", "VB-1022", "VB-1023"}
     assert set(lib["sensor"]) == {"VB-1051", "VB-1052"}
+    west = pd.read_csv(written.folder / "readings/gw-west.csv.gz")
+    assert list(west.columns) == ["timestamp", "sensor", "x_rms", "y_rms", "z_rms", "z_peak",
+                                  "rotation_hz"]
+    # only the sensor of AHU-6's supply fan estimates the shaft frequency (1450 rpm x 85 %)
+    hz = west.dropna(subset=["rotation_hz"])
+    assert set(hz["sensor"]) == {"VB-1061"}
+    assert hz["rotation_hz"].median() == pytest.approx(1450 / 60 * 0.85, rel=0.01)
     assert north["timestamp"].str.fullmatch(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\dZ").all()
     ts = pd.to_datetime(north["timestamp"], utc=True)
     one = north[north["sensor"] == "VB-1011"].assign(t=ts)

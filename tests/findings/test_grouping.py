@@ -91,3 +91,17 @@ def test_no_findings_give_an_empty_table_with_the_columns():
     found = group(empty.reindex(columns=["component", "kind", "start", "end", "hours", "kwh",
                                          "cost", "co2_kg", "detail"]))
     assert len(found) == 0 and "id" in found.columns and "components" in found.columns
+
+
+def test_a_night_cut_at_a_holidays_midnight_counts_both_pieces_in_its_unit_hours():
+    # a setback night starting on a public holiday: 2 h on the holiday, 5 h on the next day,
+    # each fan's two pieces one finding; unit-hours are the longest fan's 7 h, not 5 h
+    found = group(rows(
+        ("AHU-2/supply", "setback", "2026-05-01 22:00", "2026-05-02 00:00", 2.0, 0.6),
+        ("AHU-2/supply", "setback", "2026-05-02 00:00", "2026-05-02 05:00", 5.0, 1.5),
+        ("AHU-2/exhaust", "setback", "2026-05-01 22:01", "2026-05-02 00:00", 1.98, 0.4),
+        ("AHU-2/exhaust", "setback", "2026-05-02 00:00", "2026-05-02 05:01", 5.02, 1.0)))
+    assert len(found) == 1
+    f = found.iloc[0]
+    assert f["hours"] == pytest.approx(7.0) and f["component_hours"] == pytest.approx(14.0)
+    assert f["start"] == t("2026-05-01 22:00") and f["end"] == t("2026-05-02 05:01")

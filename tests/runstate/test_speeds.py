@@ -86,3 +86,18 @@ def test_speed_pieces_tile_the_run_set_and_split_at_speed_changes():
     assert sp.starts[0] == cs.sets.run.starts[0] and sp.ends[-1] == cs.sets.run.ends[-1]
     assert len(sp.starts) == len(idx)
     assert sp.at_speed(0.5).hours() == pytest.approx(14 * 12, rel=0.01)
+
+
+def test_the_running_median_of_five_agrees_with_numpys_median_on_every_order():
+    # the sorting network against numpy.median over each window: every ordering of five
+    # values (all 120 permutations in a row), ties, and noise
+    import itertools
+
+    from schedcheck.runstate.speeds import _smoothed
+
+    rng = np.random.default_rng(5)
+    perms = np.array(list(itertools.chain(*itertools.permutations(range(5)))), float)
+    for x in (perms, rng.integers(0, 3, 2000).astype(float), rng.normal(size=2000)):
+        want = x.copy()
+        want[2:-2] = np.median(np.lib.stride_tricks.sliding_window_view(x, 5), axis=1)
+        assert np.array_equal(_smoothed(x), want)
