@@ -31,7 +31,12 @@ from schedcheck.outputs.findings_files import (  # noqa: F401 - re-exported
     findings_frame,
     projection_record,
 )
-from schedcheck.outputs.instants import csv_encoding, local_iso, with_local_columns
+from schedcheck.outputs.instants import (
+    csv_encoding,
+    local_iso,
+    local_iso_many,
+    with_local_columns,
+)
 from schedcheck.outputs.levels_file import LEVELS_FILE, write_levels
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
 from schedcheck.outputs.thermal_fields import (
@@ -258,8 +263,8 @@ def daily_frame(result: AuditResult) -> pd.DataFrame:
         for k in ("period", "scheduled", "running", "in_schedule", "in_allowance",
                   "off_schedule", "missed", "off", "no_data"):
             f[f"{k}_h"] = (d[f"{k}_ns"] / NS_PER_H).round(HOURS_DECIMALS)
-        f["first_start"] = [local_iso(x, tz) for x in d["first_start"]]
-        f["last_stop"] = [local_iso(x, tz) for x in d["last_stop"]]
+        f["first_start"] = local_iso_many(d["first_start"], tz)
+        f["last_stop"] = local_iso_many(d["last_stop"], tz)
         f["starts"] = d["starts"].astype(int)
         f["off_schedule_kwh"] = d["off_schedule_kwh"].astype(float).round(ENERGY_DECIMALS)
         edges = np.append(to_ns(d["date"].map(lambda x: local_midnight(x, tz))),
@@ -291,8 +296,8 @@ def runs_frame(result: AuditResult) -> pd.DataFrame:
         level = comp.states.level_at(to_ns(f["start"])) if len(f) else np.zeros(0)
         parts.append(pd.DataFrame({
             "component": comp.key, "state": f["state"].to_numpy(),
-            "start": [local_iso(x, tz) for x in f["start"]],
-            "end": [local_iso(x, tz) for x in f["end"]],
+            "start": local_iso_many(f["start"], tz),
+            "end": local_iso_many(f["end"], tz),
             "hours": ((f["end"] - f["start"]) / pd.Timedelta("1h")).round(HOURS_DECIMALS)
             .to_numpy(),
             "level": np.round(level, 4),
@@ -336,12 +341,17 @@ def schedule_frame(result: AuditResult) -> pd.DataFrame:
         if f is None or len(f) == 0:
             continue
         f = f[(f["end"] > result.start) & (f["start"] < result.end)].sort_values("start")
-        for r in f.itertuples(index=False):
-            rows.append({"unit": unit_id, "kind": r.kind,
-                         "start": local_iso(max(r.start, result.start), tz),
-                         "end": local_iso(min(r.end, result.end), tz),
-                         "source": str(getattr(r, "source", ""))})
-    return pd.DataFrame(rows, columns=list(SCHEDULE_COLUMNS))
+        starts = from_ns(np.maximum(to_ns(f["start"]), to_ns(result.start)))
+        ends = from_ns(np.minimum(to_ns(f["end"]), to_ns(result.end)))
+        sources = f["source"] if "source" in f else [""] * len(f)
+        rows.append(pd.DataFrame({"unit": unit_id, "kind": f["kind"].to_numpy(),
+                                  "start": local_iso_many(starts, tz),
+                                  "end": local_iso_many(ends, tz),
+                                  "source": [str(x) for x in sources]},
+                                 columns=list(SCHEDULE_COLUMNS)))
+    if not rows:
+        return pd.DataFrame([], columns=list(SCHEDULE_COLUMNS))
+    return pd.concat(rows, ignore_index=True)
 
 
 def _write_csv(frame: pd.DataFrame, path: Path, *, excel: bool = False,
