@@ -103,11 +103,16 @@ def day_pieces(start: pd.Series, end: pd.Series, tz: str, first: dt.date,
 
 def _num(values: np.ndarray) -> list[str]:
     """Numbers to short text with one decimal at most (0.1 px is under a minute on the plots)."""
-    n = np.rint(np.asarray(values, dtype=float) * 10).astype(np.int64)
-    sign = np.where(n < 0, "-", "").tolist()
-    n = np.abs(n)
-    whole, tenth = (n // 10).tolist(), (n % 10).tolist()
-    return [f"{s}{w}.{t}" if t else f"{s}{w}" for s, w, t in zip(sign, whole, tenth, strict=True)]
+    n = np.rint(np.asarray(values, dtype=float) * 10).astype(np.int64).ravel()
+    if n.size == 0:
+        return []
+    uniq, inverse = np.unique(n, return_inverse=True)     # pixels repeat: format each once
+    sign = np.where(uniq < 0, "-", "").tolist()
+    u = np.abs(uniq)
+    whole, tenth = (u // 10).tolist(), (u % 10).tolist()
+    text = np.array([f"{s}{w}.{t}" if t else f"{s}{w}"
+                     for s, w, t in zip(sign, whole, tenth, strict=True)], dtype=object)
+    return text[inverse].tolist()
 
 
 def rect_path(x: np.ndarray, y: np.ndarray, w: float | np.ndarray, h: np.ndarray) -> str:
