@@ -254,7 +254,9 @@ def write_summary(result: AuditResult, path: Path, provenance: dict | None = Non
 def daily_frame(result: AuditResult) -> pd.DataFrame:
     """The rows of ``daily.csv``."""
     tz = result.site.timezone
-    parts = []
+    parts, firsts, lasts = [], [], []
+    midnights: dict = {}            # local date -> its midnight [ns]: the components share them
+    w0, w1 = to_ns(result.start), to_ns(result.end)
     for comp in result.components:
         d = comp.daily
         f = pd.DataFrame({"component": comp.key,
@@ -263,16 +265,18 @@ def daily_frame(result: AuditResult) -> pd.DataFrame:
         for k in ("period", "scheduled", "running", "in_schedule", "in_allowance",
                   "off_schedule", "missed", "off", "no_data"):
             f[f"{k}_h"] = (d[f"{k}_ns"] / NS_PER_H).round(HOURS_DECIMALS)
-        f["first_start"] = local_iso_many(d["first_start"], tz)
-        f["last_stop"] = local_iso_many(d["last_stop"], tz)
+        firsts.append(d["first_start"])
+        lasts.append(d["last_stop"])
+        f["first_start"] = f["last_stop"] = ""
         f["starts"] = d["starts"].astype(int)
         f["off_schedule_kwh"] = d["off_schedule_kwh"].astype(float).round(ENERGY_DECIMALS)
-        edges = np.append(to_ns(d["date"].map(lambda x: local_midnight(x, tz))),
-                          to_ns(result.end))
+        for x in d["date"]:
+            if x not in midnights:
+                midnights[x] = to_ns(local_midnight(x, tz))
+        edges = np.array([midnights[x] for x in d["date"]] + [w1], dtype=np.int64)
         run_ns = d["running_ns"].to_numpy(dtype=float)
         with np.errstate(invalid="ignore", divide="ignore"):
-            mean = comp.speeds.speed_ns_per_bin(np.clip(edges, to_ns(result.start),
-                                                         to_ns(result.end))) / run_ns
+            mean = comp.speeds.speed_ns_per_bin(np.clip(edges, w0, w1)) / run_ns
         f["mean_speed"] = np.where(run_ns > 0, np.round(mean, 3), np.nan)
         for k in DAILY_THERMAL:
             f[k] = d[k].astype(float).round(ENERGY_DECIMALS) if k in d else float("nan")
@@ -280,7 +284,11 @@ def daily_frame(result: AuditResult) -> pd.DataFrame:
     if not parts:
         return pd.DataFrame(columns=list(DAILY_COLUMNS))
     extra = list(DAILY_THERMAL) if prices_outdoor_air(result) else []
-    return pd.concat(parts, ignore_index=True)[list(DAILY_COLUMNS) + extra]
+    out = pd.concat(parts, ignore_index=True)
+    # every component's first starts and last stops formatted as one array
+    out["first_start"] = local_iso_many([x for c in firsts for x in c], tz)
+    out["last_stop"] = local_iso_many([x for c in lasts for x in c], tz)
+    return out[list(DAILY_COLUMNS) + extra]
 
 
 def runs_frame(result: AuditResult) -> pd.DataFrame:
@@ -290,14 +298,16 @@ def runs_frame(result: AuditResult) -> pd.DataFrame:
     each carries the classifier's level of the piece it starts in.
     """
     tz = result.site.timezone
-    parts = []
+    parts, starts, ends = [], [], []
     for comp in result.components:
         f = _state_frame(comp.account.states, comp.speeds)
-        level = comp.states.level_at(to_ns(f["start"])) if len(f) else np.zeros(0)
+        s_ns, e_ns = to_ns(f["start"]), to_ns(f["end"])
+        level = comp.states.level_at(s_ns) if len(f) else np.zeros(0)
+        starts.append(s_ns)
+        ends.append(e_ns)
         parts.append(pd.DataFrame({
             "component": comp.key, "state": f["state"].to_numpy(),
-            "start": local_iso_many(f["start"], tz),
-            "end": local_iso_many(f["end"], tz),
+            "start": "", "end": "",
             "hours": ((f["end"] - f["start"]) / pd.Timedelta("1h")).round(HOURS_DECIMALS)
             .to_numpy(),
             "level": np.round(level, 4),
@@ -306,7 +316,11 @@ def runs_frame(result: AuditResult) -> pd.DataFrame:
         }))
     if not parts:
         return pd.DataFrame(columns=list(RUNS_COLUMNS))
-    return pd.concat(parts, ignore_index=True)[list(RUNS_COLUMNS)]
+    out = pd.concat(parts, ignore_index=True)
+    # every component's instants formatted as one array
+    out["start"] = local_iso_many(from_ns(np.concatenate(starts)), tz)
+    out["end"] = local_iso_many(from_ns(np.concatenate(ends)), tz)
+    return out[list(RUNS_COLUMNS)]
 
 
 def _state_frame(states: StateSets, speeds: SpeedPieces | None = None) -> pd.DataFrame:
