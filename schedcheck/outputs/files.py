@@ -254,22 +254,28 @@ def write_summary(result: AuditResult, path: Path, provenance: dict | None = Non
 def daily_frame(result: AuditResult) -> pd.DataFrame:
     """The rows of ``daily.csv``."""
     tz = result.site.timezone
-    parts, firsts, lasts = [], [], []
+    cols: dict[str, list] = {}      # column -> one array per component, joined at the end
     midnights: dict = {}            # local date -> its midnight [ns]: the components share them
     w0, w1 = to_ns(result.start), to_ns(result.end)
+
+    def put(name: str, values) -> None:
+        cols.setdefault(name, []).append(np.asarray(values))
+
     for comp in result.components:
         d = comp.daily
-        f = pd.DataFrame({"component": comp.key,
-                          "date": [x.isoformat() for x in d["date"]],
-                          "weekday": d["weekday"], "day_off": d["day_off"]})
+        n = len(d)
+        put("component", np.full(n, comp.key, dtype=object))
+        put("date", np.array([x.isoformat() for x in d["date"]], dtype=object))
+        put("weekday", d["weekday"].to_numpy())
+        put("day_off", d["day_off"].to_numpy())
         for k in ("period", "scheduled", "running", "in_schedule", "in_allowance",
                   "off_schedule", "missed", "off", "no_data"):
-            f[f"{k}_h"] = (d[f"{k}_ns"] / NS_PER_H).round(HOURS_DECIMALS)
-        firsts.append(d["first_start"])
-        lasts.append(d["last_stop"])
-        f["first_start"] = f["last_stop"] = ""
-        f["starts"] = d["starts"].astype(int)
-        f["off_schedule_kwh"] = d["off_schedule_kwh"].astype(float).round(ENERGY_DECIMALS)
+            put(f"{k}_h", np.round(d[f"{k}_ns"].to_numpy() / NS_PER_H, HOURS_DECIMALS))
+        put("first_start", np.array(list(d["first_start"]), dtype=object))
+        put("last_stop", np.array(list(d["last_stop"]), dtype=object))
+        put("starts", d["starts"].to_numpy().astype(int))
+        put("off_schedule_kwh", np.round(d["off_schedule_kwh"].to_numpy(dtype=float),
+                                         ENERGY_DECIMALS))
         for x in d["date"]:
             if x not in midnights:
                 midnights[x] = to_ns(local_midnight(x, tz))
@@ -277,18 +283,18 @@ def daily_frame(result: AuditResult) -> pd.DataFrame:
         run_ns = d["running_ns"].to_numpy(dtype=float)
         with np.errstate(invalid="ignore", divide="ignore"):
             mean = comp.speeds.speed_ns_per_bin(np.clip(edges, w0, w1)) / run_ns
-        f["mean_speed"] = np.where(run_ns > 0, np.round(mean, 3), np.nan)
+        put("mean_speed", np.where(run_ns > 0, np.round(mean, 3), np.nan))
         for k in DAILY_THERMAL:
-            f[k] = d[k].astype(float).round(ENERGY_DECIMALS) if k in d else float("nan")
-        parts.append(f)
-    if not parts:
+            put(k, np.round(d[k].to_numpy(dtype=float), ENERGY_DECIMALS) if k in d
+                else np.full(n, np.nan))
+    if not result.components:
         return pd.DataFrame(columns=list(DAILY_COLUMNS))
     extra = list(DAILY_THERMAL) if prices_outdoor_air(result) else []
-    out = pd.concat(parts, ignore_index=True)
+    out = {k: np.concatenate(v) for k, v in cols.items()}
     # every component's first starts and last stops formatted as one array
-    out["first_start"] = local_iso_many([x for c in firsts for x in c], tz)
-    out["last_stop"] = local_iso_many([x for c in lasts for x in c], tz)
-    return out[list(DAILY_COLUMNS) + extra]
+    out["first_start"] = local_iso_many(out["first_start"], tz)
+    out["last_stop"] = local_iso_many(out["last_stop"], tz)
+    return pd.DataFrame(out)[list(DAILY_COLUMNS) + extra]
 
 
 def runs_frame(result: AuditResult) -> pd.DataFrame:
@@ -298,74 +304,78 @@ def runs_frame(result: AuditResult) -> pd.DataFrame:
     each carries the classifier's level of the piece it starts in.
     """
     tz = result.site.timezone
-    parts, starts, ends = [], [], []
+    cols: dict[str, list] = {k: [] for k in RUNS_COLUMNS}
     for comp in result.components:
-        f = _state_frame(comp.account.states, comp.speeds)
-        s_ns, e_ns = to_ns(f["start"]), to_ns(f["end"])
-        level = comp.states.level_at(s_ns) if len(f) else np.zeros(0)
-        starts.append(s_ns)
-        ends.append(e_ns)
-        parts.append(pd.DataFrame({
-            "component": comp.key, "state": f["state"].to_numpy(),
-            "start": "", "end": "",
-            "hours": ((f["end"] - f["start"]) / pd.Timedelta("1h")).round(HOURS_DECIMALS)
-            .to_numpy(),
-            "level": np.round(level, 4),
-            "speed": np.round(f["speed"].to_numpy(dtype=float), 3),
-            "speed_source": f["speed_source"].to_numpy(),
-        }))
-    if not parts:
+        t = _state_arrays(comp.account.states, comp.speeds)
+        s_ns, e_ns = t["start"], t["end"]
+        cols["component"].append(np.full(len(s_ns), comp.key, dtype=object))
+        cols["state"].append(t["state"])
+        cols["start"].append(s_ns)
+        cols["end"].append(e_ns)
+        cols["hours"].append(np.round((e_ns - s_ns) / NS_PER_H, HOURS_DECIMALS))
+        cols["level"].append(np.round(comp.states.level_at(s_ns), 4) if len(s_ns)
+                             else np.zeros(0))
+        cols["speed"].append(np.round(t["speed"], 3))
+        cols["speed_source"].append(t["speed_source"])
+    if not result.components:
         return pd.DataFrame(columns=list(RUNS_COLUMNS))
-    out = pd.concat(parts, ignore_index=True)
+    out = {k: np.concatenate(v) for k, v in cols.items()}
     # every component's instants formatted as one array
-    out["start"] = local_iso_many(from_ns(np.concatenate(starts)), tz)
-    out["end"] = local_iso_many(from_ns(np.concatenate(ends)), tz)
-    return out[list(RUNS_COLUMNS)]
+    out["start"] = local_iso_many(from_ns(out["start"]), tz)
+    out["end"] = local_iso_many(from_ns(out["end"]), tz)
+    return pd.DataFrame(out)[list(RUNS_COLUMNS)]
 
 
-def _state_frame(states: StateSets, speeds: SpeedPieces | None = None) -> pd.DataFrame:
-    """A run-state table (``start``, ``end``, ``state``, ``speed``, ``speed_source``; UTC) from
-    the three sets, by start; run intervals split where the speed changes (``speeds``)."""
+def _state_arrays(states: StateSets, speeds: SpeedPieces | None = None) -> dict[str, np.ndarray]:
+    """A run-state table's columns (``start``, ``end`` [int64 ns UTC], ``state``, ``speed``,
+    ``speed_source``) from the three sets, by start; run intervals split where the speed
+    changes (``speeds``)."""
     parts = []
     for name in STATES:
         s = states.of(name)
         if name == "run" and speeds is not None and len(s):
-            parts.append(pd.DataFrame({"start": from_ns(speeds.starts),
-                                       "end": from_ns(speeds.ends), "state": name,
-                                       "speed": speeds.speed, "speed_source": speeds.source}))
+            n = len(speeds.starts)
+            parts.append((np.asarray(speeds.starts, np.int64), np.asarray(speeds.ends, np.int64),
+                          np.full(n, name, dtype=object), np.asarray(speeds.speed, float),
+                          np.asarray(speeds.source, dtype=object)))
         elif len(s):
-            f = s.to_frame()
-            f["state"] = name
-            f["speed"] = np.nan
-            f["speed_source"] = ""
-            parts.append(f)
+            n = len(s)
+            parts.append((np.asarray(s.starts, np.int64), np.asarray(s.ends, np.int64),
+                          np.full(n, name, dtype=object), np.full(n, np.nan),
+                          np.full(n, "", dtype=object)))
     if not parts:
-        return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "state": [],
-                             "speed": [], "speed_source": []})
-    out = pd.concat(parts, ignore_index=True).sort_values("start", kind="stable")
-    return out.reset_index(drop=True)
+        return {"start": np.zeros(0, np.int64), "end": np.zeros(0, np.int64),
+                "state": np.zeros(0, dtype=object), "speed": np.zeros(0),
+                "speed_source": np.zeros(0, dtype=object)}
+    cols = [np.concatenate(c) for c in zip(*parts, strict=True)]
+    order = np.argsort(cols[0], kind="stable")
+    return dict(zip(("start", "end", "state", "speed", "speed_source"),
+                    (c[order] for c in cols), strict=True))
 
 
 def schedule_frame(result: AuditResult) -> pd.DataFrame:
     """The rows of ``schedule.csv``: each unit's intended intervals inside the window."""
     tz = result.site.timezone
-    rows = []
+    cols: dict[str, list] = {k: [] for k in SCHEDULE_COLUMNS}
+    w0, w1 = to_ns(result.start), to_ns(result.end)
     for unit_id, sched in result.schedules.items():
         f = sched.intervals
         if f is None or len(f) == 0:
             continue
         f = f[(f["end"] > result.start) & (f["start"] < result.end)].sort_values("start")
-        starts = from_ns(np.maximum(to_ns(f["start"]), to_ns(result.start)))
-        ends = from_ns(np.minimum(to_ns(f["end"]), to_ns(result.end)))
-        sources = f["source"] if "source" in f else [""] * len(f)
-        rows.append(pd.DataFrame({"unit": unit_id, "kind": f["kind"].to_numpy(),
-                                  "start": local_iso_many(starts, tz),
-                                  "end": local_iso_many(ends, tz),
-                                  "source": [str(x) for x in sources]},
-                                 columns=list(SCHEDULE_COLUMNS)))
-    if not rows:
+        cols["unit"].append(np.full(len(f), unit_id, dtype=object))
+        cols["kind"].append(f["kind"].to_numpy(dtype=object))
+        cols["start"].append(np.maximum(to_ns(f["start"]), w0))
+        cols["end"].append(np.minimum(to_ns(f["end"]), w1))
+        cols["source"].append(np.array([str(x) for x in f["source"]] if "source" in f
+                                       else [""] * len(f), dtype=object))
+    if not cols["unit"]:
         return pd.DataFrame([], columns=list(SCHEDULE_COLUMNS))
-    return pd.concat(rows, ignore_index=True)
+    out = {k: np.concatenate(v) for k, v in cols.items()}
+    # every unit's instants formatted as one array
+    out["start"] = local_iso_many(from_ns(out["start"]), tz)
+    out["end"] = local_iso_many(from_ns(out["end"]), tz)
+    return pd.DataFrame(out, columns=list(SCHEDULE_COLUMNS))
 
 
 def _write_csv(frame: pd.DataFrame, path: Path, *, excel: bool = False,
