@@ -22,6 +22,7 @@ from __future__ import annotations
 import argparse
 import os
 import platform
+import resource
 import statistics
 import subprocess
 import sys
@@ -79,8 +80,11 @@ def write_site(folder: Path, name: str, readings: str) -> Path:
     return site
 
 
-def run(cmd: list[str], cwd: Path) -> tuple[float, float]:
-    """Wall time [s] and the peak RSS summed over the process and its children [MB]."""
+def run(cmd: list[str], cwd: Path) -> tuple[float, float, float]:
+    """Wall time [s], the peak RSS summed over the process and its children [MB] and the CPU
+    time (user + system) of the process and its waited-for children [s]: on a machine shared
+    with other work the CPU time moves far less with the load than the wall time."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
     t0 = time.perf_counter()
     proc = psutil.Popen(cmd, cwd=cwd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     peak = 0
@@ -92,9 +96,11 @@ def run(cmd: list[str], cwd: Path) -> tuple[float, float]:
             pass
         time.sleep(0.05)
     wall = time.perf_counter() - t0
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
     if proc.returncode != 0:
         raise SystemExit(f"{' '.join(cmd)} failed: {proc.stderr.read().decode()[-500:]}")
-    return wall, peak / 2**20
+    return wall, peak / 2**20, cpu
 
 
 def main() -> int:
@@ -128,8 +134,9 @@ def main() -> int:
         say(f"One AHU-year: {len(df):,} rows; Parquet {parquet.stat().st_size / 2**20:.0f} MB, "
             f"CSV {csv.stat().st_size / 2**20:.0f} MB. Load (1-min average) beside each pair.")
         say("")
-        say("| pair | run | tool [s] | bare [s] | ratio | tool peak [MB] | bare peak [MB] | load |")
-        say("| --- | --- | --- | --- | --- | --- | --- | --- |")
+        say("| pair | run | tool [s] | bare [s] | ratio | tool cpu [s] | bare cpu [s] | cpu ratio "
+            "| tool peak [MB] | bare peak [MB] | load |")
+        say("| --- | --- | --- | --- | --- | --- | --- | --- | --- | --- | --- |")
         pairs = {
             "audit Parquet / pandas.read_parquet": (
                 cli + ["audit", str(site_pq), "--out", str(root / "a_pq")],
@@ -140,30 +147,37 @@ def main() -> int:
             "schedcheck --help / python -c pass": (cli + ["--help"], [py, "-c", "pass"]),
         }
         ratios: dict[str, list[float]] = {k: [] for k in pairs}
-        singles = []
+        cpu_ratios: dict[str, list[float]] = {k: [] for k in pairs}
+        singles, single_cpu = [], []
         for name, (tool, bare) in pairs.items():
             for i in range(args.repeat):
                 load = os.getloadavg()[0]
-                tw, tm = run(tool, root)
-                bw, bm = run(bare, root)
+                tw, tm, tc = run(tool, root)
+                bw, bm, bc = run(bare, root)
                 ratios[name].append(tw / bw)
+                cpu_ratios[name].append(tc / bc)
                 if name.startswith("audit Parquet"):
                     singles.append(tw)
-                say(f"| {name} | {i + 1} | {tw:.2f} | {bw:.2f} | {tw / bw:.2f} | {tm:.0f} | "
-                    f"{bm:.0f} | {load:.1f} |")
+                    single_cpu.append(tc)
+                say(f"| {name} | {i + 1} | {tw:.2f} | {bw:.2f} | {tw / bw:.2f} | {tc:.2f} | "
+                    f"{bc:.2f} | {tc / bc:.2f} | {tm:.0f} | {bm:.0f} | {load:.1f} |")
         say("")
         for name, rs in ratios.items():
-            say(f"- {name}: median ratio {statistics.median(rs):.2f} over {len(rs)} pair(s)")
+            say(f"- {name}: median ratio {statistics.median(rs):.2f} (CPU time "
+                f"{statistics.median(cpu_ratios[name]):.2f}) over {len(rs)} pair(s)")
         sites = [write_site(root / "portfolio" / f"s{i:03d}", f"Scale Site {i:03d}",
                             str(parquet)) for i in range(args.portfolio)]
         load = os.getloadavg()[0]
-        pw, pm = run(cli + ["portfolio", *map(str, sites), "--out", str(root / "P"),
-                            "--jobs", str(args.jobs)], root)
+        pw, pm, pc = run(cli + ["portfolio", *map(str, sites), "--out", str(root / "P"),
+                                "--jobs", str(args.jobs)], root)
         single = statistics.median(singles)
+        single_c = statistics.median(single_cpu)
         say(f"- portfolio of {args.portfolio} unit-years at --jobs {args.jobs}: {pw:.1f} s, "
             f"peak {pm:.0f} MB summed over the processes (load {load:.1f}); "
             f"{args.portfolio} single audits at the median {single:.2f} s would take "
-            f"{args.portfolio * single:.1f} s: ratio {pw / (args.portfolio * single):.2f}")
+            f"{args.portfolio * single:.1f} s: ratio {pw / (args.portfolio * single):.2f}; "
+            f"CPU time {pc:.1f} s against {args.portfolio * single_c:.1f} s "
+            f"({pc / (args.portfolio * single_c):.2f})")
     args.out.parent.mkdir(parents=True, exist_ok=True)
     args.out.write_text("\n".join(lines) + "\n", encoding="utf-8")
     print(f"written to {args.out}")

@@ -178,14 +178,15 @@ def evidence_levels(findings: pd.DataFrame, sensors: Mapping[str, str],
             sensor = sensors.get(comp)
             if sensor is None:
                 continue
-            if comp not in traces:
+            if comp not in traces:   # each component's trace is read and sorted once
                 frame = readings.get(sensor)
-                traces[comp] = (reading_levels(frame, name=sensor)[:2]
-                                if frame is not None and len(frame)
-                                else (np.zeros(0, np.int64), np.zeros(0)))
+                t, lv = (reading_levels(frame, name=sensor)[:2]
+                         if frame is not None and len(frame)
+                         else (np.zeros(0, np.int64), np.zeros(0)))
+                order = np.argsort(t, kind="stable")
+                traces[comp] = (t[order], lv[order])
             t, lv = traces[comp]
-            order = np.argsort(t, kind="stable")
-            m, v = minute_levels(t[order], lv[order], int(to_ns(a)), int(to_ns(b)))
+            m, v = minute_levels(t, lv, int(to_ns(a)), int(to_ns(b)))
             parts.append(pd.DataFrame({"finding": keys[int(pos)], "component": comp,
                                        "time": from_ns(m), "level": v}))
     if not parts:

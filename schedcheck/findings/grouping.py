@@ -116,11 +116,12 @@ def group_by_unit(
     f["unit"] = f["component"].map(unit_of)
     s, e = np.asarray(to_ns(f["start"])), np.asarray(to_ns(f["end"]))
     tol = int(pd.Timedelta(together).value)
+    cols = _Columns(f, s, e)
     rows: list[dict] = []
     for (_unit, _kind), part in f.groupby(["unit", "kind"], sort=False):
         idx = part.index.to_numpy()
         for g in _groups(s[idx], e[idx], tol):
-            rows.append(_joined(f.loc[idx[g]], lead_of, describe))
+            rows.append(_joined(cols, idx[g], lead_of, describe))
     out = pd.DataFrame(rows)
     out = out.sort_values(["start", "unit", "kind"], kind="stable").reset_index(drop=True)
     out["id"] = _ids(out)
@@ -128,25 +129,57 @@ def group_by_unit(
     return out[list(GROUPED_COLUMNS) + extra]
 
 
-def _joined(part: pd.DataFrame, lead_of: dict[str, str], describe) -> dict:
-    unit = str(part["unit"].iloc[0])
+class _Columns:
+    """The per-component findings' columns as arrays, taken once for every group (a group is
+    a list of row positions; sums run over the rows in that order, NaN as 0, as pandas sums)."""
+
+    def __init__(self, f: pd.DataFrame, s: np.ndarray, e: np.ndarray) -> None:
+        self.start, self.end = f["start"], f["end"]
+        self.s, self.e = s, e
+        self.component = f["component"].to_numpy(dtype=object)
+        self.unit = f["unit"].to_numpy(dtype=object)
+        self.kind = f["kind"].to_numpy(dtype=object)
+        self.date = f["date"].to_numpy(dtype=object)
+        self.template = f["detail_template"].to_numpy(dtype=object)
+        self.words = (f["thermal_words"].to_numpy(dtype=object) if "thermal_words" in f
+                      else None)
+        self.num = {c: f[c].to_numpy(dtype=float)
+                    for c in ("hours", "kwh", "cost", "co2_kg", *THERMAL_COLUMNS) if c in f}
+
+    def total(self, col: str, rows: np.ndarray, min_count: int = 0) -> float:
+        """The sum of ``col`` over ``rows``, NaN as 0; NaN with fewer than ``min_count``
+        numbers (as pandas' ``sum(min_count=...)``)."""
+        vals = self.num[col][rows]
+        if np.count_nonzero(~np.isnan(vals)) < min_count:
+            return float("nan")
+        return float(np.nansum(vals))
+
+
+def _joined(c: _Columns, rows: np.ndarray, lead_of: dict[str, str], describe) -> dict:
+    """One unit finding from the per-component rows ``rows`` (positions, in start order)."""
+    unit = str(c.unit[rows[0]])
     lead_key = lead_of.get(unit)
-    by_hours = part.sort_values(["hours", "start"], ascending=[False, True], kind="stable")
-    lead = (part[part["component"] == lead_key].iloc[0] if (part["component"] == lead_key).any()
-            else by_hours.iloc[0])
-    comps = list(dict.fromkeys([lead["component"]] + part.sort_values(
-        "start", kind="stable")["component"].tolist()))
-    kwh, cost, co2 = (float(part[c].fillna(0.0).sum()) for c in ("kwh", "cost", "co2_kg"))
+    comp = c.component[rows]
+    hours = c.num["hours"][rows]
+    is_lead = comp == lead_key
+    if is_lead.any():
+        lead = int(rows[np.flatnonzero(is_lead)[0]])
+    else:   # the longest, the earliest of equals (NaN hours last, as pandas sorts)
+        order = sorted(range(len(rows)), key=lambda i: (bool(np.isnan(hours[i])),
+                                                        -np.nan_to_num(hours[i]), c.s[rows[i]]))
+        lead = int(rows[order[0]])
+    comps = list(dict.fromkeys([c.component[lead]] + comp.tolist()))
+    kwh, cost, co2 = (c.total(k, rows) for k in ("kwh", "cost", "co2_kg"))
     parts = []
     for key in comps:
-        mine = part[part["component"] == key]
-        parts.append({"component": key, "start": mine["start"].min(), "end": mine["end"].max(),
-                      "hours": float(mine["hours"].sum()), "kwh": float(mine["kwh"].sum()),
-                      "cost": float(mine["cost"].fillna(0.0).sum()),
-                      "co2_kg": float(mine["co2_kg"].fillna(0.0).sum())})
-    detail = str(lead["detail_template"])
+        mine = rows[comp == key]
+        parts.append({"component": key, "start": c.start.iloc[mine[np.argmin(c.s[mine])]],
+                      "end": c.end.iloc[mine[np.argmax(c.e[mine])]],
+                      "hours": c.total("hours", mine), "kwh": c.total("kwh", mine),
+                      "cost": c.total("cost", mine), "co2_kg": c.total("co2_kg", mine)})
+    detail = str(c.template[lead])
     # outdoor-air words (heating and cooling of the unit's outdoor air, on its supply fan)
-    words = next((str(w) for w in part.get("thermal_words", pd.Series(dtype=object)) if w), "")
+    words = next((str(w) for w in c.words[rows] if w), "") if c.words is not None else ""
     if describe is not None:
         detail = detail.replace("{energy}", describe(kwh, cost, words) if words
                                 else describe(kwh, cost))
@@ -154,14 +187,14 @@ def _joined(part: pd.DataFrame, lead_of: dict[str, str], describe) -> dict:
         shown = ", ".join(
             f"{p['component']}" + (f" {p['kwh']:,.1f} kWh" if kwh > 0 else "") for p in parts)
         detail += f" Components involved: {shown}."
-    first = part.sort_values("start", kind="stable").iloc[0]
-    return {"unit": unit, "component": comps[0], "components": comps, "kind": lead["kind"],
-            "start": part["start"].min(), "end": part["end"].max(), "date": first["date"],
+    return {"unit": unit, "component": comps[0], "components": comps, "kind": c.kind[lead],
+            "start": c.start.iloc[rows[np.argmin(c.s[rows])]],
+            "end": c.end.iloc[rows[np.argmax(c.e[rows])]], "date": c.date[rows[0]],
             # unit-hours: the longest component's hours (its pieces summed: a night split
             # at a holiday's midnight is one finding of both pieces)
-            "hours": max(p["hours"] for p in parts), "component_hours": float(part["hours"].sum()),
+            "hours": max(p["hours"] for p in parts), "component_hours": c.total("hours", rows),
             "kwh": kwh, "cost": cost, "co2_kg": co2, "detail": detail, "parts": parts,
-            **{c: float(part[c].sum(min_count=1)) for c in THERMAL_COLUMNS if c in part}}
+            **{k: c.total(k, rows, min_count=1) for k in THERMAL_COLUMNS if k in c.num}}
 
 
 def _ids(out: pd.DataFrame) -> list[str]:

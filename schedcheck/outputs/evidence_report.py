@@ -21,7 +21,7 @@ from schedcheck.audit.evidence import (
 )
 from schedcheck.intervals import to_ns
 from schedcheck.outputs.saved import SavedAudit
-from schedcheck.outputs.strip_svg import strip_svg
+from schedcheck.outputs.strip_svg import interval_columns, strip_svg
 
 
 def anchor(key: str) -> str:
@@ -63,7 +63,14 @@ def evidence_strips(data: SavedAudit, comps: dict[str, dict], labels: dict[str, 
     if levels is None or len(levels) == 0 or len(f) == 0:
         return []
     keys = finding_keys(f)
-    by_key = {k: g for k, g in levels.groupby("finding", sort=False)}
+    by_key = levels.groupby("finding", sort=False).indices      # key -> row positions
+    lv_comp = levels["component"].to_numpy(dtype=object)
+    lv_time = np.asarray(to_ns(levels["time"]))
+    lv_level = levels["level"].to_numpy(float)
+    runs = interval_columns(data.runs, "state")
+    runs["component"] = data.runs["component"].to_numpy(dtype=object)
+    sched_all = interval_columns(data.schedule, "kind")
+    sched_all["unit"] = data.schedule["unit"].to_numpy(dtype=object)
     w0, w1 = _window(data)
     tz = data.timezone
     unit_word = data.summary["site"].get("reading_unit") or ""
@@ -74,24 +81,24 @@ def evidence_strips(data: SavedAudit, comps: dict[str, dict], labels: dict[str, 
             continue
         row = f.iloc[int(pos)]
         ids = finding_components(row)
-        mine_runs = data.runs[(data.runs["component"] == ids[0])
-                              & (data.runs["state"] == "run")]
+        mine_runs = (runs["component"] == ids[0]) & (runs["state"] == "run")
         focus = strip_focus(row["kind"], row["start"], row["end"],
-                            np.sort(to_ns(mine_runs["start"])))
+                            np.sort(runs["start"][mine_runs]))
         a, b = strip_window(row["start"], row["end"], w0, w1, focus=focus)
+        a_ns, b_ns = int(to_ns(a)), int(to_ns(b))
         shown_end = min(row["end"], focus + STRIP_LONGEST)
         unit = (comps.get(ids[0]) or {}).get("unit") or ids[0].split("/")[0]
-        sched = data.schedule[(data.schedule["unit"] == unit) & (data.schedule["end"] > a)
-                              & (data.schedule["start"] < b)]
+        sched = _rows(sched_all, (sched_all["unit"] == unit) & (sched_all["end"] > a_ns)
+                      & (sched_all["start"] < b_ns))
         lv = by_key[key]
         rows = []
         for cid in ids:
-            mine = lv[lv["component"] == cid]
-            runs = data.runs[(data.runs["component"] == cid) & (data.runs["end"] > a)
-                             & (data.runs["start"] < b)]
+            mine = lv[lv_comp[lv] == cid]
             th = (comps.get(cid) or {}).get("threshold") or {}
-            rows.append({"id": cid, "runs": runs, "time": to_ns(mine["time"]),
-                         "level": mine["level"].to_numpy(float), "marks": _marks(th)})
+            rows.append({"id": cid, "runs": _rows(runs, (runs["component"] == cid)
+                                                  & (runs["end"] > a_ns)
+                                                  & (runs["start"] < b_ns)),
+                         "time": lv_time[mine], "level": lv_level[mine], "marks": _marks(th)})
         kind = labels.get(row["kind"], row["kind"])
         when = span_text(row["start"], row["end"], tz)
         title = f"{', '.join(ids)}: {kind}, {when[0]} to {when[1]}"
@@ -105,6 +112,10 @@ def evidence_strips(data: SavedAudit, comps: dict[str, dict], labels: dict[str, 
                                     pid=anchor(key), unit=unit_word)),
         })
     return out
+
+
+def _rows(cols: dict[str, np.ndarray], keep: np.ndarray) -> dict[str, np.ndarray]:
+    return {k: v[keep] for k, v in cols.items()}
 
 
 def strip_settings() -> dict:

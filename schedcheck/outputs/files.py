@@ -32,7 +32,12 @@ from schedcheck.outputs.findings_files import (  # noqa: F401 - re-exported
     findings_frame,
     projection_record,
 )
-from schedcheck.outputs.instants import csv_encoding, local_iso, with_local_columns
+from schedcheck.outputs.instants import (
+    csv_encoding,
+    local_iso,
+    local_iso_many,
+    with_local_columns,
+)
 from schedcheck.outputs.levels_file import LEVELS_FILE, write_levels
 from schedcheck.outputs.schema import SUMMARY_SCHEMA
 from schedcheck.outputs.thermal_fields import (
@@ -252,33 +257,47 @@ def write_summary(result: AuditResult, path: Path, provenance: dict | None = Non
 def daily_frame(result: AuditResult) -> pd.DataFrame:
     """The rows of ``daily.csv``."""
     tz = result.site.timezone
-    parts = []
+    cols: dict[str, list] = {}      # column -> one array per component, joined at the end
+    midnights: dict = {}            # local date -> its midnight [ns]: the components share them
+    w0, w1 = to_ns(result.start), to_ns(result.end)
+
+    def put(name: str, values) -> None:
+        cols.setdefault(name, []).append(np.asarray(values))
+
     for comp in result.components:
         d = comp.daily
-        f = pd.DataFrame({"component": comp.key,
-                          "date": [x.isoformat() for x in d["date"]],
-                          "weekday": d["weekday"], "day_off": d["day_off"]})
+        n = len(d)
+        put("component", np.full(n, comp.key, dtype=object))
+        put("date", np.array([x.isoformat() for x in d["date"]], dtype=object))
+        put("weekday", d["weekday"].to_numpy())
+        put("day_off", d["day_off"].to_numpy())
         for k in ("period", "scheduled", "running", "in_schedule", "in_allowance",
                   "off_schedule", "missed", "off", "no_data"):
-            f[f"{k}_h"] = (d[f"{k}_ns"] / NS_PER_H).round(HOURS_DECIMALS)
-        f["first_start"] = [local_iso(x, tz) for x in d["first_start"]]
-        f["last_stop"] = [local_iso(x, tz) for x in d["last_stop"]]
-        f["starts"] = d["starts"].astype(int)
-        f["off_schedule_kwh"] = d["off_schedule_kwh"].astype(float).round(ENERGY_DECIMALS)
-        edges = np.append(to_ns(d["date"].map(lambda x: local_midnight(x, tz))),
-                          to_ns(result.end))
+            put(f"{k}_h", np.round(d[f"{k}_ns"].to_numpy() / NS_PER_H, HOURS_DECIMALS))
+        put("first_start", np.array(list(d["first_start"]), dtype=object))
+        put("last_stop", np.array(list(d["last_stop"]), dtype=object))
+        put("starts", d["starts"].to_numpy().astype(int))
+        put("off_schedule_kwh", np.round(d["off_schedule_kwh"].to_numpy(dtype=float),
+                                         ENERGY_DECIMALS))
+        for x in d["date"]:
+            if x not in midnights:
+                midnights[x] = to_ns(local_midnight(x, tz))
+        edges = np.array([midnights[x] for x in d["date"]] + [w1], dtype=np.int64)
         run_ns = d["running_ns"].to_numpy(dtype=float)
         with np.errstate(invalid="ignore", divide="ignore"):
-            mean = comp.speeds.speed_ns_per_bin(np.clip(edges, to_ns(result.start),
-                                                         to_ns(result.end))) / run_ns
-        f["mean_speed"] = np.where(run_ns > 0, np.round(mean, 3), np.nan)
+            mean = comp.speeds.speed_ns_per_bin(np.clip(edges, w0, w1)) / run_ns
+        put("mean_speed", np.where(run_ns > 0, np.round(mean, 3), np.nan))
         for k in DAILY_THERMAL:
-            f[k] = d[k].astype(float).round(ENERGY_DECIMALS) if k in d else float("nan")
-        parts.append(f)
-    if not parts:
+            put(k, np.round(d[k].to_numpy(dtype=float), ENERGY_DECIMALS) if k in d
+                else np.full(n, np.nan))
+    if not result.components:
         return pd.DataFrame(columns=list(DAILY_COLUMNS))
     extra = list(DAILY_THERMAL) if prices_outdoor_air(result) else []
-    return pd.concat(parts, ignore_index=True)[list(DAILY_COLUMNS) + extra]
+    out = {k: np.concatenate(v) for k, v in cols.items()}
+    # every component's first starts and last stops formatted as one array
+    out["first_start"] = local_iso_many(out["first_start"], tz)
+    out["last_stop"] = local_iso_many(out["last_stop"], tz)
+    return pd.DataFrame(out)[list(DAILY_COLUMNS) + extra]
 
 
 def runs_frame(result: AuditResult) -> pd.DataFrame:
@@ -289,69 +308,81 @@ def runs_frame(result: AuditResult) -> pd.DataFrame:
     other the classifier's level of the piece it starts in.
     """
     tz = result.site.timezone
-    parts = []
+    cols: dict[str, list] = {k: [] for k in RUNS_COLUMNS}
     for comp in result.components:
-        f = _state_frame(comp.account.states, comp.speeds)
-        level = comp.states.level_at(to_ns(f["start"])) if len(f) else np.zeros(0)
-        own = f["level"].to_numpy(dtype=float)
-        level = np.where(np.isfinite(own), own, level)
-        parts.append(pd.DataFrame({
-            "component": comp.key, "state": f["state"].to_numpy(),
-            "start": [local_iso(x, tz) for x in f["start"]],
-            "end": [local_iso(x, tz) for x in f["end"]],
-            "hours": ((f["end"] - f["start"]) / pd.Timedelta("1h")).round(HOURS_DECIMALS)
-            .to_numpy(),
-            "level": np.round(level, 4),
-            "speed": np.round(f["speed"].to_numpy(dtype=float), 3),
-            "speed_source": f["speed_source"].to_numpy(),
-        }))
-    if not parts:
+        t = _state_arrays(comp.account.states, comp.speeds)
+        s_ns, e_ns = t["start"], t["end"]
+        cols["component"].append(np.full(len(s_ns), comp.key, dtype=object))
+        cols["state"].append(t["state"])
+        cols["start"].append(s_ns)
+        cols["end"].append(e_ns)
+        cols["hours"].append(np.round((e_ns - s_ns) / NS_PER_H, HOURS_DECIMALS))
+        level = comp.states.level_at(s_ns) if len(s_ns) else np.zeros(0)
+        own = t["level"]   # a speed piece's own median level, else NaN
+        cols["level"].append(np.round(np.where(np.isfinite(own), own, level), 4))
+        cols["speed"].append(np.round(t["speed"], 3))
+        cols["speed_source"].append(t["speed_source"])
+    if not result.components:
         return pd.DataFrame(columns=list(RUNS_COLUMNS))
-    return pd.concat(parts, ignore_index=True)[list(RUNS_COLUMNS)]
+    out = {k: np.concatenate(v) for k, v in cols.items()}
+    # every component's instants formatted as one array
+    out["start"] = local_iso_many(from_ns(out["start"]), tz)
+    out["end"] = local_iso_many(from_ns(out["end"]), tz)
+    return pd.DataFrame(out)[list(RUNS_COLUMNS)]
 
 
-def _state_frame(states: StateSets, speeds: SpeedPieces | None = None) -> pd.DataFrame:
-    """A run-state table (``start``, ``end``, ``state``, ``speed``, ``speed_source``, ``level``
-    (a run piece's own median level, else NaN); UTC) from the three sets, by start; run
-    intervals split where the speed changes (``speeds``)."""
+def _state_arrays(states: StateSets, speeds: SpeedPieces | None = None) -> dict[str, np.ndarray]:
+    """A run-state table's columns (``start``, ``end`` [int64 ns UTC], ``state``, ``speed``,
+    ``speed_source``, ``level`` (a run piece's own median level, else NaN)) from the three
+    sets, by start; run intervals split where the speed changes (``speeds``)."""
     parts = []
     for name in STATES:
         s = states.of(name)
         if name == "run" and speeds is not None and len(s):
-            level = speeds.level if speeds.level is not None else np.nan
-            parts.append(pd.DataFrame({"start": from_ns(speeds.starts),
-                                       "end": from_ns(speeds.ends), "state": name,
-                                       "speed": speeds.speed, "speed_source": speeds.source,
-                                       "level": level}))
+            n = len(speeds.starts)
+            level = (np.asarray(speeds.level, float) if speeds.level is not None
+                     else np.full(n, np.nan))
+            parts.append((np.asarray(speeds.starts, np.int64), np.asarray(speeds.ends, np.int64),
+                          np.full(n, name, dtype=object), np.asarray(speeds.speed, float),
+                          np.asarray(speeds.source, dtype=object), level))
         elif len(s):
-            f = s.to_frame()
-            f["state"] = name
-            f["speed"] = np.nan
-            f["speed_source"] = ""
-            f["level"] = np.nan
-            parts.append(f)
+            n = len(s)
+            parts.append((np.asarray(s.starts, np.int64), np.asarray(s.ends, np.int64),
+                          np.full(n, name, dtype=object), np.full(n, np.nan),
+                          np.full(n, "", dtype=object), np.full(n, np.nan)))
     if not parts:
-        return pd.DataFrame({"start": from_ns([]), "end": from_ns([]), "state": [],
-                             "speed": [], "speed_source": [], "level": []})
-    out = pd.concat(parts, ignore_index=True).sort_values("start", kind="stable")
-    return out.reset_index(drop=True)
+        return {"start": np.zeros(0, np.int64), "end": np.zeros(0, np.int64),
+                "state": np.zeros(0, dtype=object), "speed": np.zeros(0),
+                "speed_source": np.zeros(0, dtype=object), "level": np.zeros(0)}
+    cols = [np.concatenate(c) for c in zip(*parts, strict=True)]
+    order = np.argsort(cols[0], kind="stable")
+    return dict(zip(("start", "end", "state", "speed", "speed_source", "level"),
+                    (c[order] for c in cols), strict=True))
 
 
 def schedule_frame(result: AuditResult) -> pd.DataFrame:
     """The rows of ``schedule.csv``: each unit's intended intervals inside the window."""
     tz = result.site.timezone
-    rows = []
+    cols: dict[str, list] = {k: [] for k in SCHEDULE_COLUMNS}
+    w0, w1 = to_ns(result.start), to_ns(result.end)
     for unit_id, sched in result.schedules.items():
         f = sched.intervals
         if f is None or len(f) == 0:
             continue
         f = f[(f["end"] > result.start) & (f["start"] < result.end)].sort_values("start")
-        for r in f.itertuples(index=False):
-            rows.append({"unit": unit_id, "kind": r.kind,
-                         "start": local_iso(max(r.start, result.start), tz),
-                         "end": local_iso(min(r.end, result.end), tz),
-                         "source": str(getattr(r, "source", ""))})
-    return pd.DataFrame(rows, columns=list(SCHEDULE_COLUMNS))
+        cols["unit"].append(np.full(len(f), unit_id, dtype=object))
+        cols["kind"].append(f["kind"].to_numpy(dtype=object))
+        cols["start"].append(np.maximum(to_ns(f["start"]), w0))
+        cols["end"].append(np.minimum(to_ns(f["end"]), w1))
+        cols["source"].append(np.array([str(x) for x in f["source"]] if "source" in f
+                                       else [""] * len(f), dtype=object))
+    if not cols["unit"]:
+        return pd.DataFrame([], columns=list(SCHEDULE_COLUMNS))
+    out = {k: np.concatenate(v) for k, v in cols.items()}
+    # every unit's instants formatted as one array
+    out["start"] = local_iso_many(from_ns(out["start"]), tz)
+    out["end"] = local_iso_many(from_ns(out["end"]), tz)
+    return pd.DataFrame(out, columns=list(SCHEDULE_COLUMNS))
 
 
 def _write_csv(frame: pd.DataFrame, path: Path, *, excel: bool = False,

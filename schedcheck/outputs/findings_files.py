@@ -13,7 +13,7 @@ import pandas as pd
 from schedcheck import __version__ as _version
 from schedcheck.audit.run import AuditResult
 from schedcheck.outputs.cells import ics_text
-from schedcheck.outputs.instants import to_second
+from schedcheck.outputs.instants import local_iso_many, to_second
 from schedcheck.outputs.thermal_fields import FINDINGS_THERMAL, finding_fields, prices_outdoor_air
 from schedcheck.outputs.values import (
     COST_DECIMALS,
@@ -40,9 +40,12 @@ KIND_WORDS = {
 }
 
 
-def _part_record(part: dict, tz: str) -> dict:
-    return {"component": part["component"], "start": local_iso(part["start"], tz),
-            "end": local_iso(part["end"], tz), "hours": _r(part["hours"], HOURS_DECIMALS),
+def _part_record(part: dict, tz: str, texts: dict | None = None) -> dict:
+    def iso(ts) -> str:
+        return texts[ts] if texts is not None and ts in texts else local_iso(ts, tz)
+
+    return {"component": part["component"], "start": iso(part["start"]),
+            "end": iso(part["end"]), "hours": _r(part["hours"], HOURS_DECIMALS),
             "kwh": _r(part["kwh"], ENERGY_DECIMALS), "cost": _r(part["cost"], COST_DECIMALS),
             "co2_kg": _r(part["co2_kg"], ENERGY_DECIMALS)}
 
@@ -51,12 +54,22 @@ def finding_records(result: AuditResult) -> list[dict]:
     """The findings as JSON-ready records (local instants, rounded figures): one per unit and
     problem, with each component's part (``components``, ``parts``)."""
     tz = result.site.timezone
+    f = result.findings
+    # every instant of the findings and their parts formatted as one array
+    instants = [*f["start"], *f["end"]] if len(f) else []
+    instants += [p[k] for parts in (f["parts"] if len(f) else []) for p in parts
+                 for k in ("start", "end")]
+    texts = dict(zip(instants, local_iso_many(instants, tz), strict=True))
+
+    def iso(ts) -> str:
+        return texts[ts] if ts in texts else local_iso(ts, tz)
+
     out = []
-    for row in result.findings.itertuples(index=False):
+    for row in f.itertuples(index=False):
         out.append({
             "id": row.id, "unit": row.unit, "component": row.component,
             "components": list(row.components), "kind": row.kind,
-            "start": local_iso(row.start, tz), "end": local_iso(row.end, tz),
+            "start": iso(row.start), "end": iso(row.end),
             "date": str(row.date), "hours": _r(row.hours, HOURS_DECIMALS),
             "component_hours": _r(row.component_hours, HOURS_DECIMALS),
             "kwh": _r(row.kwh, ENERGY_DECIMALS),
@@ -66,7 +79,7 @@ def finding_records(result: AuditResult) -> list[dict]:
             "episode_start": getattr(row, "episode_start", "") or None,
             "episode_end": getattr(row, "episode_end", "") or None,
             "detail": str(row.detail),
-            "parts": [_part_record(p, tz) for p in row.parts],
+            "parts": [_part_record(p, tz, texts) for p in row.parts],
         })
     return out
 

@@ -14,6 +14,7 @@ accented letters in a CSV file.
 
 from __future__ import annotations
 
+import numpy as np
 import pandas as pd
 
 HALF_SECOND = pd.Timedelta("500ms")
@@ -27,10 +28,47 @@ def to_second(ts) -> pd.Timestamp:
 
 
 def local_iso(ts, tz: str) -> str:
-    """A UTC instant as local ISO 8601 with offset, rounded to the second; '' for none."""
+    """A UTC instant as local ISO 8601 with offset, rounded to the second; '' for none.
+
+    Rounded in UTC, then shown in ``tz``: the same second as rounding the local time (every
+    zone offset is a whole number of seconds), and an instant in the repeated hour of a
+    change back from summer time has one reading.
+    """
     if ts is None or (not isinstance(ts, str) and pd.isna(ts)):
         return ""
-    return to_second(pd.Timestamp(ts).tz_convert(tz)).isoformat(timespec="seconds")
+    return to_second(pd.Timestamp(ts).tz_convert("UTC")).tz_convert(tz).isoformat(
+        timespec="seconds")
+
+
+def local_iso_many(values, tz: str) -> list[str]:
+    """:func:`local_iso` of each of ``values`` (UTC instants; None or NaT give ''), formatted
+    as one array: the local wall clock by numpy, the offset text once per distinct offset."""
+    idx = _utc_index(values)
+    return local_texts(idx + HALF_SECOND, tz, lambda t: local_iso(t, tz)[19:])
+
+
+def _utc_index(values) -> pd.DatetimeIndex:
+    if isinstance(values, pd.Series | pd.Index) and isinstance(values.dtype, pd.DatetimeTZDtype):
+        return pd.DatetimeIndex(values).tz_convert("UTC")
+    return pd.DatetimeIndex(pd.to_datetime(pd.Series(list(values), dtype=object), utc=True))
+
+
+def local_texts(idx: pd.DatetimeIndex, tz: str, offset_text) -> list[str]:
+    """Each UTC instant of ``idx``, cut down to its second, as local ``YYYY-MM-DDTHH:MM:SS``
+    followed by ``offset_text(instant)``, called once per distinct UTC offset ('' for NaT)."""
+    if len(idx) == 0:
+        return []
+    missing = np.asarray(idx.isna())
+    seconds = idx.floor("s").as_unit("s")
+    wall = seconds.tz_convert(tz).tz_localize(None)
+    clock = np.datetime_as_string(wall.to_numpy().astype("datetime64[s]"), unit="s")
+    offset = np.where(missing, 0, wall.asi8 - seconds.asi8)
+    texts = {}
+    for off in np.unique(offset[~missing]).tolist():
+        texts[off] = offset_text(seconds[int(np.flatnonzero((offset == off) & ~missing)[0])])
+    return ["" if gone else f"{c}{texts[o]}"
+            for c, o, gone in zip(clock.tolist(), offset.tolist(), missing.tolist(),
+                                  strict=True)]
 
 
 def local_parts(iso: str) -> tuple[str, str]:

@@ -30,6 +30,7 @@ import pandas as pd
 
 from schedcheck.audit.evidence import LEVEL_COLUMNS
 from schedcheck.errors import InputError
+from schedcheck.outputs.instants import local_texts
 
 LEVELS_FILE = "levels.csv.gz"
 LEVEL_DECIMALS = 4   # as runs.csv's level column
@@ -39,12 +40,14 @@ _LATEST = pd.Timestamp("2200-01-01", tz="UTC")     # would overflow the nanoseco
 
 def levels_text(levels: pd.DataFrame, tz: str) -> str:
     """The CSV text of the file (header and one line per row)."""
-    local = pd.DatetimeIndex(levels["time"]).tz_convert(tz).strftime("%Y-%m-%dT%H:%M:%S%z")
-    local = pd.Series(local, dtype=str)
-    local = local.str[:-2] + ":" + local.str[-2:]
+    def offset(t: pd.Timestamp) -> str:   # strftime's %z with a colon before the minutes
+        z = t.tz_convert(tz).strftime("%z")
+        return z[:-2] + ":" + z[-2:]
+
+    local = local_texts(pd.DatetimeIndex(levels["time"]).tz_convert("UTC"), tz, offset)
     frame = pd.DataFrame({"finding": levels["finding"].astype(str).to_numpy(),
                           "component": levels["component"].astype(str).to_numpy(),
-                          "time": local.to_numpy(),
+                          "time": local,
                           "level": np.round(levels["level"].to_numpy(float), LEVEL_DECIMALS)})
     return frame.to_csv(index=False, lineterminator="\n")
 

@@ -186,15 +186,38 @@ def _by_speed_text(c: dict) -> str:
     return "; ".join(parts)
 
 
-def _charts(data: SavedAudit, comp: dict, days_off: pd.DataFrame) -> None:
+def rows_by(frame: pd.DataFrame, column: str) -> dict:
+    """Value of ``column`` -> the rows of ``frame`` with it (in the frame's order), found in one
+    pass; a value with no rows is not a key."""
+    if len(frame) == 0:
+        return {}
+    out = {}
+    for k, pos in frame.groupby(column, sort=False).indices.items():
+        # the files hold each component's (each unit's) rows together: a slice, no copy
+        whole = pos[-1] - pos[0] + 1 == len(pos)
+        out[k] = frame.iloc[int(pos[0]):int(pos[-1]) + 1] if whole else frame.iloc[pos]
+    return out
+
+
+def _charts(data: SavedAudit, comp: dict, days_off: pd.DataFrame,
+            parts: dict | None = None) -> None:
+    """The carpet, daily bars and histogram of one component row ``comp``; ``parts`` (from
+    :func:`chart_parts`) holds the saved tables split by component and unit once for all."""
     tz, first, last = data.timezone, data.first_date, data.last_date
-    runs = data.runs[data.runs["component"] == comp["id"]]
-    sched = data.schedule[data.schedule["unit"] == comp["unit"]]
-    doff = days_off[days_off["unit"].isin([comp["unit"], ""])] if len(days_off) else days_off
+    parts = parts if parts is not None else chart_parts(data, days_off)
+    runs = parts["runs"].get(comp["id"], data.runs.iloc[:0])
+    sched = parts["schedule"].get(comp["unit"], data.schedule.iloc[:0])
+    if len(days_off):
+        doff = parts["days_off"].get(comp["unit"])
+        if doff is None:
+            doff = days_off[days_off["unit"].isin([comp["unit"], ""])]
+            parts["days_off"][comp["unit"]] = doff
+    else:
+        doff = days_off
     title = f"{comp['id']}: run state by local date and hour"
     comp["carpet"] = Markup(svg.carpet_svg(runs, sched, doff, tz=tz, first=first, last=last,
                                            title=title, pid=comp["pid"] + "c"))
-    daily = data.daily[data.daily["component"] == comp["id"]]
+    daily = parts["daily"].get(comp["id"], data.daily.iloc[:0])
     comp["bars"] = Markup(svg.daily_bars_svg(
         daily, first=first, last=last, title=f"{comp['id']}: hours per day", pid=comp["pid"] + "b"))
     add_episode_chart(comp, data.summary, daily, first, last)
@@ -207,6 +230,13 @@ def _charts(data: SavedAudit, comp: dict, days_off: pd.DataFrame) -> None:
             th.get("level"), th.get("on_level"), th.get("off_level"),
             f"{comp['id']}: vibration levels seen", source=th.get("source"),
             unit=data.summary["site"].get("reading_unit") or "", floor=th.get("floor")))
+
+
+def chart_parts(data: SavedAudit, days_off: pd.DataFrame) -> dict:
+    """The saved runs and daily rows by component, the schedule by unit (and a place for the
+    days off by unit), for :func:`_charts`."""
+    return {"runs": rows_by(data.runs, "component"), "daily": rows_by(data.daily, "component"),
+            "schedule": rows_by(data.schedule, "unit"), "days_off": {}}
 
 
 def _findings(data: SavedAudit, comps: dict[str, dict]) -> list[dict]:
@@ -279,8 +309,9 @@ def report_context(data: SavedAudit) -> dict:
     if len(days_off):
         days_off["date"] = [dt.date.fromisoformat(str(d)) for d in days_off["date"]]
         days_off["unit"] = days_off["unit"].fillna("")
+    parts = chart_parts(data, days_off)
     for c in comps:
-        _charts(data, c, days_off)
+        _charts(data, c, days_off, parts)
     trend_sections(data, comps, KIND_LABELS, _span)
     findings = _findings(data, by_id)
     strips = evidence_strips(data, by_id, KIND_LABELS, _span)

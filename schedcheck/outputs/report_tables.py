@@ -22,17 +22,30 @@ def _intended(schedule: pd.DataFrame, units: list[dict]) -> list[dict]:
     """Per unit: hours of each kind of intended interval and what they came from."""
     out = []
     sched = schedule.assign(hours=(schedule["end"] - schedule["start"]).dt.total_seconds() / 3600)
+    where = sched.groupby("unit", sort=False).indices if len(sched) else {}
+    kinds = sched["kind"].to_numpy(dtype=object)
+    sources = (sched["source"].to_numpy(dtype=object) if "source" in sched
+               else np.full(len(sched), None, dtype=object))
+    hours = sched["hours"].to_numpy(dtype=float)
+    done: dict = {}      # units of one shared calendar have the same rows: counted once
     for u in units:
-        rows = sched[sched["unit"] == u["id"]]
-        entry = {"id": u["id"], "name": u["name"]}
-        for kind in ("occupied", "allowance", "allowed"):
-            part = rows[rows["kind"] == kind]
-            entry[f"{kind}_h"] = float(part["hours"].sum())
-            src = part["source"] if "source" in part else pd.Series(dtype=object)
-            counts = src.fillna("").astype(str).value_counts()
-            entry[f"{kind}_sources"] = [(name, int(n)) for name, n in counts.items() if name][:8]
-        out.append(entry)
+        pos = where.get(u["id"], np.zeros(0, dtype=np.intp))
+        key = (tuple(kinds[pos].tolist()), tuple(sources[pos].tolist()), hours[pos].tobytes())
+        if key not in done:
+            done[key] = _intended_entry(sched.iloc[pos])
+        out.append({"id": u["id"], "name": u["name"]} | done[key])
     return out
+
+
+def _intended_entry(rows: pd.DataFrame) -> dict:
+    entry = {}
+    for kind in ("occupied", "allowance", "allowed"):
+        part = rows[rows["kind"] == kind]
+        entry[f"{kind}_h"] = float(part["hours"].sum())
+        src = part["source"] if "source" in part else pd.Series(dtype=object)
+        counts = src.fillna("").astype(str).value_counts()
+        entry[f"{kind}_sources"] = [(name, int(n)) for name, n in counts.items() if name][:8]
+    return entry
 
 
 def _days_off_rows(days_off: pd.DataFrame, unit_ids: list[str]) -> list[dict]:

@@ -45,11 +45,30 @@ def _x(t_ns: np.ndarray, a: int, b: int) -> np.ndarray:
                                                                              - S_RIGHT)
 
 
-def _clip(start: pd.Series, end: pd.Series, a: int, b: int) -> tuple[np.ndarray, np.ndarray]:
+def _clip(start, end, a: int, b: int) -> tuple[np.ndarray, np.ndarray]:
     s = np.clip(to_ns(start), a, b) if len(start) else np.zeros(0, np.int64)
     e = np.clip(to_ns(end), a, b) if len(end) else np.zeros(0, np.int64)
     keep = e > s
     return s[keep], e[keep]
+
+
+def interval_columns(table, label: str) -> dict[str, np.ndarray]:
+    """``start``, ``end`` [int64 ns] and ``label`` (text) of an interval table as arrays: a
+    DataFrame, or a dict of such arrays already (then returned as it is)."""
+    if isinstance(table, dict):
+        return table
+    if len(table) == 0:
+        return {"start": np.zeros(0, np.int64), "end": np.zeros(0, np.int64),
+                label: np.zeros(0, dtype=object)}
+    return {"start": np.asarray(to_ns(table["start"])), "end": np.asarray(to_ns(table["end"])),
+            label: table[label].to_numpy(dtype=object)}
+
+
+def _pieces(cols: dict[str, np.ndarray], label: str, value: str, a: int,
+            b: int) -> tuple[np.ndarray, np.ndarray]:
+    """The intervals of ``cols`` labelled ``value``, clipped to ``[a, b)``, empty ones left out."""
+    mine = cols[label] == value
+    return _clip(cols["start"][mine], cols["end"][mine], a, b)
 
 
 def _log_range(levels: np.ndarray, marks: list[float]) -> tuple[float, float]:
@@ -123,10 +142,12 @@ def strip_svg(*, a: pd.Timestamp, b: pd.Timestamp, span: tuple[pd.Timestamp, pd.
         The part of the finding inside the strip, shaded [UTC].
     tz : str
         Site time zone (labels only).
-    schedule : DataFrame
-        The unit's intended intervals (``start``, ``end`` UTC, ``kind``).
+    schedule : DataFrame or dict
+        The unit's intended intervals (``start``, ``end`` UTC, ``kind``), or the same as
+        arrays (:func:`interval_columns`).
     rows : list of dict
-        Per component: ``id``; ``runs`` (``start``, ``end`` UTC, ``state``); ``time``
+        Per component: ``id``; ``runs`` (``start``, ``end`` UTC, ``state``; a DataFrame or
+        arrays as ``schedule``); ``time``
         [int64 ns] and ``level`` [reading unit] of the per-minute trace; ``marks``: on/off
         levels to draw (``level``, and ``on_level``/``off_level`` where they differ).
     title : str
@@ -161,11 +182,11 @@ def strip_svg(*, a: pd.Timestamp, b: pd.Timestamp, span: tuple[pd.Timestamp, pd.
     out.append(f'<g font-size="10" fill="{TEXT}"><text x="{S_LEFT - 4}" y="{top + 8:.1f}" '
                f'text-anchor="end">schedule</text></g>')
     y = top
+    schedule = interval_columns(schedule, "kind")
     for kind, fill, stroke in (("allowance", "#eef0f3", LINE_ALLOW), ("allowed", "#eef0f3",
                                                                        LINE_ALLOW),
                                ("occupied", LINE_OCCUPIED, LINE_UNDER)):
-        part = schedule[schedule["kind"] == kind] if len(schedule) else schedule
-        s, e = _clip(part["start"], part["end"], a_ns, b_ns) if len(part) else ((), ())
+        s, e = _pieces(schedule, "kind", kind, a_ns, b_ns)
         if len(s):
             x0, x1 = _x(s, a_ns, b_ns), _x(e, a_ns, b_ns)
             d = rect_path(x0, np.full(len(s), y), x1 - x0, np.full(len(s), BAND_H))
@@ -181,10 +202,9 @@ def strip_svg(*, a: pd.Timestamp, b: pd.Timestamp, span: tuple[pd.Timestamp, pd.
                    f'<text x="{S_LEFT - 4}" '
                    f'y="{y + 21:.1f}" text-anchor="end">state</text></g>')
         y += 12
-        runs = row["runs"]
+        runs = interval_columns(row["runs"], "state")
         for state in ("off", "no_data", "run"):
-            part = runs[runs["state"] == state]
-            s, e = _clip(part["start"], part["end"], a_ns, b_ns)
+            s, e = _pieces(runs, "state", state, a_ns, b_ns)
             if len(s):
                 x0, x1 = _x(s, a_ns, b_ns), _x(e, a_ns, b_ns)
                 d = rect_path(x0, np.full(len(s), y), x1 - x0, np.full(len(s), BAND_H))

@@ -17,10 +17,13 @@ in the tables are computed from elapsed time and are not affected.
 from __future__ import annotations
 
 import datetime as dt
+import functools
 
 import numpy as np
 import pandas as pd
 from markupsafe import escape
+
+from schedcheck.intervals import from_ns, to_ns
 
 # The palette (our own choice; contrast checked by eye in colour and grey-scale print).
 INK_RUN = "#1d3557"        # running: dark navy
@@ -103,11 +106,16 @@ def day_pieces(start: pd.Series, end: pd.Series, tz: str, first: dt.date,
 
 def _num(values: np.ndarray) -> list[str]:
     """Numbers to short text with one decimal at most (0.1 px is under a minute on the plots)."""
-    n = np.rint(np.asarray(values, dtype=float) * 10).astype(np.int64)
-    sign = np.where(n < 0, "-", "").tolist()
-    n = np.abs(n)
-    whole, tenth = (n // 10).tolist(), (n % 10).tolist()
-    return [f"{s}{w}.{t}" if t else f"{s}{w}" for s, w, t in zip(sign, whole, tenth, strict=True)]
+    n = np.rint(np.asarray(values, dtype=float) * 10).astype(np.int64).ravel()
+    if n.size == 0:
+        return []
+    uniq, inverse = np.unique(n, return_inverse=True)     # pixels repeat: format each once
+    sign = np.where(uniq < 0, "-", "").tolist()
+    u = np.abs(uniq)
+    whole, tenth = (u // 10).tolist(), (u % 10).tolist()
+    text = np.array([f"{s}{w}.{t}" if t else f"{s}{w}"
+                     for s, w, t in zip(sign, whole, tenth, strict=True)], dtype=object)
+    return text[inverse].tolist()
 
 
 def rect_path(x: np.ndarray, y: np.ndarray, w: float | np.ndarray, h: np.ndarray) -> str:
@@ -257,31 +265,11 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
         out.append(f'<path d="M{LEFT} {y}h{ndays * cw:.1f}" stroke="#fff" stroke-opacity=".55" '
                    f'stroke-width=".6"/>')
     if schedule is not None and len(schedule):
-        spare = schedule[schedule["kind"] != "occupied"]
-        _, day, y0, y1 = day_pieces(spare["start"], spare["end"], tz, first, ndays)
-        if len(day):
-            x = LEFT + day * cw
-            if cw >= SIDES_MIN_PX:
-                d = rect_path(x + 0.8, TOP + y0 * k, cw - 1.6, (y1 - y0) * k)
-            else:
-                d = _hlines(x, TOP + y0 * k, cw) + _hlines(x, TOP + y1 * k, cw)
-            out.append(f'<path class="allowance" d="{d}" fill="none" stroke="{LINE_ALLOW}" '
-                       f'stroke-width=".9" stroke-dasharray="2 1.5"/>')
-        occ = schedule[schedule["kind"] == "occupied"]
-        _, day, y0, y1 = day_pieces(occ["start"], occ["end"], tz, first, ndays)
-        if len(day):
-            x = LEFT + day * cw
-            if cw >= SIDES_MIN_PX:
-                d = rect_path(x + 0.6, TOP + y0 * k, cw - 1.2, (y1 - y0) * k)
-                under, over = 1.9, 1.0
-            else:  # narrow columns: start and stop edges only, drawn bolder
-                d = _hlines(x, TOP + y0 * k, cw) + _hlines(x, TOP + y1 * k, cw)
-                under, over = 2.8, 1.5
-            # two-tone line: the dark underlay shows on pale "off", the amber on dark "run",
-            # so the outline survives grey-scale print on both
-            out.append(f'<path d="{d}" fill="none" stroke="{LINE_UNDER}" stroke-width="{under}"/>'
-                       f'<path class="occupied" d="{d}" fill="none" stroke="{LINE_OCCUPIED}" '
-                       f'stroke-width="{over}"/>')
+        # units on one calendar share the outline: drawn once (keyed by the intervals)
+        out.append(_schedule_outline(np.asarray(to_ns(schedule["start"])).tobytes(),
+                                     np.asarray(to_ns(schedule["end"])).tobytes(),
+                                     tuple(schedule["kind"].astype(str).tolist()), tz, first,
+                                     ndays))
     out.append(f'<rect x="{LEFT}" y="{TOP}" width="{ndays * cw:.2f}" height="{ph}" fill="none" '
                f'stroke="{TEXT}" stroke-width=".6"/>')
     out.append(_days_off_marks(days_off, first, ndays, cw, TOP + ph + 3))
@@ -290,6 +278,43 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
     mondays = "; dates mark Mondays" if ndays > DAILY_LABELS_MAX_DAYS else ""
     out.append(f'<text x="{LEFT}" y="12" font-size="10" fill="{TEXT}">local time, one column '
                f'per day{mondays}</text></svg>')
+    return "".join(out)
+
+
+@functools.lru_cache(maxsize=32)
+def _schedule_outline(start: bytes, end: bytes, kinds: tuple[str, ...], tz: str,
+                      first: dt.date, ndays: int) -> str:
+    """The carpet's outline of intended intervals (``start``/``end`` as int64 ns bytes, UTC)."""
+    cw, k = column_width(ndays), HOUR_PX / 60.0
+    kind = np.array(kinds, dtype=object)
+    starts = from_ns(np.frombuffer(start, dtype=np.int64))
+    ends = from_ns(np.frombuffer(end, dtype=np.int64))
+    out = []
+    spare = kind != "occupied"
+    _, day, y0, y1 = day_pieces(starts[spare], ends[spare], tz, first, ndays)
+    if len(day):
+        x = LEFT + day * cw
+        if cw >= SIDES_MIN_PX:
+            d = rect_path(x + 0.8, TOP + y0 * k, cw - 1.6, (y1 - y0) * k)
+        else:
+            d = _hlines(x, TOP + y0 * k, cw) + _hlines(x, TOP + y1 * k, cw)
+        out.append(f'<path class="allowance" d="{d}" fill="none" stroke="{LINE_ALLOW}" '
+                   f'stroke-width=".9" stroke-dasharray="2 1.5"/>')
+    occ = kind == "occupied"
+    _, day, y0, y1 = day_pieces(starts[occ], ends[occ], tz, first, ndays)
+    if len(day):
+        x = LEFT + day * cw
+        if cw >= SIDES_MIN_PX:
+            d = rect_path(x + 0.6, TOP + y0 * k, cw - 1.2, (y1 - y0) * k)
+            under, over = 1.9, 1.0
+        else:  # narrow columns: start and stop edges only, drawn bolder
+            d = _hlines(x, TOP + y0 * k, cw) + _hlines(x, TOP + y1 * k, cw)
+            under, over = 2.8, 1.5
+        # two-tone line: the dark underlay shows on pale "off", the amber on dark "run",
+        # so the outline survives grey-scale print on both
+        out.append(f'<path d="{d}" fill="none" stroke="{LINE_UNDER}" stroke-width="{under}"/>'
+                   f'<path class="occupied" d="{d}" fill="none" stroke="{LINE_OCCUPIED}" '
+                   f'stroke-width="{over}"/>')
     return "".join(out)
 
 

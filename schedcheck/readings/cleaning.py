@@ -293,7 +293,7 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
     if len(utc):
         prior = np.maximum.accumulate(utc)
         health.out_of_order = int((utc[1:] < prior[:-1]).sum())
-    frame = pd.DataFrame({"timestamp": utc}).join(levels)
+    frame = pd.DataFrame({"timestamp": utc, **{c: levels[c] for c in levels.columns}})
     if len(utc) > 1 and not (utc[1:] > utc[:-1]).all():
         # only then can rows be out of order or share an instant (the usual file is neither:
         # the sort and the two duplicate passes are skipped)
@@ -309,10 +309,10 @@ def clean_sensor(parts: pd.DataFrame, *, sensor: str, columns: tuple[str, ...],
         health.duplicates_conflicting = int(same.sum() - frame["timestamp"][same].nunique())
         frame = frame.groupby("timestamp", sort=True, as_index=False).mean()
     ts = frame["timestamp"].to_numpy(np.int64)
-    frame = frame.reset_index(drop=True)
-    frame["timestamp"] = pd.Series(ts.view("M8[ns]")).dt.tz_localize("UTC")
-    for c in columns:
-        frame[c] = frame[c].astype("float64")
+    # one new frame (setting its columns one by one would copy it each time)
+    frame = pd.DataFrame({"timestamp": pd.Series(ts.view("M8[ns]")).dt.tz_localize("UTC"),
+                          **{c: frame[c].astype("float64").to_numpy() for c in frame.columns
+                             if c != "timestamp"}})
     health.count = len(frame)
     measure_gaps(health, ts, start, end, max_gap)
     if health.duplicates_conflicting:

@@ -3,10 +3,11 @@
 import datetime as dt
 
 import icalendar
+import numpy as np
 import pandas as pd
 
 from schedcheck.outputs.files import write_audit_files
-from schedcheck.outputs.instants import local_iso, to_second, with_local_columns
+from schedcheck.outputs.instants import local_iso, local_iso_many, to_second, with_local_columns
 from schedcheck.window import day_window
 from tests.outputs.test_outputs_files import TZ, Sched, audit, frame, make_site
 
@@ -17,6 +18,28 @@ def test_to_second_rounds_half_up():
     assert to_second(base + pd.Timedelta("500ms")) == base + pd.Timedelta("1s")
     assert to_second(base + pd.Timedelta("999ms")) == base + pd.Timedelta("1s")
     assert local_iso(base + pd.Timedelta("700ms"), TZ) == "2026-03-02T07:00:01+01:00"
+
+
+def test_the_repeated_autumn_hour_has_one_reading_each_side():
+    # Europe/Oslo's change back on 2026-10-25 (IANA tz database: CEST ends 01:00 UTC, clocks
+    # go from 03:00 to 02:00): 00:30 UTC is 02:30+02:00 and 01:30 UTC is 02:30+01:00
+    first = pd.Timestamp("2026-10-25T00:30:00.600Z")
+    second = pd.Timestamp("2026-10-25T01:30:00.200Z")
+    assert local_iso(first, "Europe/Oslo") == "2026-10-25T02:30:01+02:00"
+    assert local_iso(second, "Europe/Oslo") == "2026-10-25T02:30:00+01:00"
+
+
+def test_many_instants_read_as_each_one_alone():
+    # a year of odd instants in zones with half-hour, 45-minute and 30-minute summer offsets
+    rng = np.random.default_rng(14)
+    ns = rng.integers(pd.Timestamp("2025-01-01").value, pd.Timestamp("2026-01-01").value, 3000)
+    times = list(pd.to_datetime(ns, utc=True)) + [None, pd.NaT]
+    for tz in ("Europe/Oslo", "UTC", "America/St_Johns", "Asia/Kathmandu",
+               "Australia/Lord_Howe"):
+        assert local_iso_many(times, tz) == [local_iso(t, tz) for t in times], tz
+        assert local_iso_many(pd.Series(times[:-2]), tz) == [local_iso(t, tz)
+                                                              for t in times[:-2]]
+    assert local_iso_many([], TZ) == []
 
 
 def test_local_columns_follow_the_iso_text_across_the_autumn_change():
