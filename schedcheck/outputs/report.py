@@ -29,6 +29,7 @@ from schedcheck.outputs.evidence_report import (
 )
 from schedcheck.outputs.histogram import histogram_svg
 from schedcheck.outputs.report_episodes import add_episode_chart
+from schedcheck.outputs.report_speeds import by_speed_text, speed_sensitivity
 from schedcheck.outputs.report_tables import (  # noqa: F401 - the report's smaller tables
     _days_off_rows,
     _dst_days,
@@ -162,28 +163,9 @@ def _component_rows(data: SavedAudit) -> list[dict]:
             "power_kw": c.get("power_kw"), "speed": c.get("speed"),
             "exponent": c.get("exponent"), "threshold": threshold,
             "n_findings": c.get("findings"),
-            "by_speed": _by_speed_text(c),
+            "by_speed": by_speed_text(c),
         })
     return rows
-
-
-def _by_speed_text(c: dict) -> str:
-    """Running hours by speed in words, with an estimate's range: ``30 %: 120.0 h
-    (estimated, 11-43 %); 85 %: 120.0 h``; empty with one speed or none."""
-    rows = (c.get("hours") or {}).get("by_speed") or []
-    if len(rows) < 2:
-        return ""
-    est = {round(lv["speed"], 2): lv for lv in c.get("speed_levels") or []
-           if lv.get("source") == "estimated"}
-    parts = []
-    for r in rows:
-        text = f"{r['speed']:.0%}: {r['hours']:,.1f} h"
-        lv = est.get(round(r["speed"], 2)) or next(
-            (v for k, v in est.items() if abs(k - r["speed"]) <= 0.025), None)
-        if lv is not None:
-            text += f" (estimated from the vibration level, {lv['low']:.0%}-{lv['high']:.0%})"
-        parts.append(text)
-    return "; ".join(parts)
 
 
 def rows_by(frame: pd.DataFrame, column: str) -> dict:
@@ -345,7 +327,7 @@ def report_context(data: SavedAudit) -> dict:
     saved_totals = s.get("totals") or {}
     totals["unit_h"] = saved_totals.get("unit_hours", totals["off_schedule_h"])
     totals["hours_differ"] = abs(totals["off_schedule_h"] - (totals["unit_h"] or 0.0)) >= 0.05
-    totals.update(_sensitivity(comps))
+    totals.update(speed_sensitivity(comps))
     thermal = thermal_context(s, comps, units)
     return {
         "site": site, "currency": site.get("currency") or "", "price": site.get("price"),
@@ -380,31 +362,6 @@ def _projection(p: dict | None) -> dict:
             "one_off_cost": p.get("one_off_cost"), "recurring": list(p.get("recurring") or []),
             "patterns": pattern_words(p.get("recurring") or []), "known": bool(p)}
 
-
-
-SPEED_STEP = 0.05  # speed fraction +/- for the sensitivity line (common practice, no source)
-
-
-def _sensitivity(comps: list[dict]) -> dict:
-    """How the off-schedule energy moves with the assumed speed, and what no data could hide.
-
-    Affinity law: power scales with speed**n, so the off-schedule kWh of a component at speed
-    s +/- SPEED_STEP is kwh * ((s +/- step) / s) ** n. The no-data bound is the energy had the
-    component run through every no-data hour at its assumed power [kWh].
-    """
-    low = high = hidden = 0.0
-    for c in comps:
-        kwh = (c["energy"].get("off_schedule_kwh") or 0.0)
-        s, n = c.get("speed"), c.get("exponent")
-        if s and n and s > SPEED_STEP:
-            low += kwh * ((s - SPEED_STEP) / s) ** n
-            high += kwh * (min(s + SPEED_STEP, 1.0) / s) ** n if s < 1.0 else kwh
-        else:
-            low += kwh
-            high += kwh
-        hidden += (c["hours"].get("no_data") or 0.0) * (c["energy"].get("running_kw") or 0.0)
-    return {"kwh_speed_low": low, "kwh_speed_high": high, "kwh_no_data_max": hidden,
-            "speed_step": SPEED_STEP}
 
 
 def render_report(data: SavedAudit) -> str:
