@@ -3,11 +3,13 @@
 from __future__ import annotations
 
 import datetime as dt
+import functools
 import zoneinfo
 
 import pandas as pd
 
 
+@functools.lru_cache(maxsize=65536)   # pure: the audit asks for the same days thousands of times
 def local_midnight(day: dt.date, tz: str) -> pd.Timestamp:
     """The first instant of local date ``day`` in zone ``tz`` (UTC).
 

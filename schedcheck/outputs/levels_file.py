@@ -34,6 +34,7 @@ from schedcheck.outputs.instants import local_texts
 
 LEVELS_FILE = "levels.csv.gz"
 LEVEL_DECIMALS = 4   # as runs.csv's level column
+GZIP_LEVEL = 6
 _EARLIEST = pd.Timestamp("1900-01-01", tz="UTC")   # as the other saved files: a damaged year
 _LATEST = pd.Timestamp("2200-01-01", tz="UTC")     # would overflow the nanosecond clock
 
@@ -55,8 +56,10 @@ def levels_text(levels: pd.DataFrame, tz: str) -> str:
 def write_levels(levels: pd.DataFrame, tz: str, path: Path) -> Path:
     """Write ``levels.csv.gz`` (UTF-8 CSV, gzip with mtime 0)."""
     data = levels_text(levels, tz).encode("utf-8")
-    with open(path, "wb") as raw, gzip.GzipFile(fileobj=raw, mode="wb", mtime=0,
-                                                filename="") as gz:
+    # level 6 (zlib's own default) instead of gzip's 9: a quarter of the time for a file a
+    # tenth larger (a year audit's 8.5 MB of text: 0.38 s -> 0.09 s, 477 kB -> 522 kB)
+    with open(path, "wb") as raw, gzip.GzipFile(fileobj=raw, mode="wb", mtime=0, filename="",
+                                                compresslevel=GZIP_LEVEL) as gz:
         gz.write(data)
     return path
 
