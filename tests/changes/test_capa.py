@@ -120,3 +120,19 @@ def test_the_one_sd_limit_is_the_noise_not_only_the_penalty():
         seeded(k, n, episodes=((50, 64, 1.0),)), beta=low).collective) for k in range(100))
     false = sum(bool(capa(seeded(k, n, episodes=()), beta=low).collective) for k in range(200))
     assert found >= 85 and dated <= 50 and false >= 20
+
+
+def test_a_fault_that_starts_in_the_evening_is_dated_from_its_first_evening():
+    # a nightly setback from the evening of day 40: that day holds only 22:00-24:00 (2 h),
+    # every later day 7 h; the episode starts on day 40, the first night, not day 41
+    dates = [dt.date(2026, 3, 14) + dt.timedelta(days=i) for i in range(60)]
+    hours = np.zeros(60)
+    hours[40] = 2.0
+    hours[41:] = 7.0
+    eps = [ep for ep in daily_episodes(dates, hours) if ep.kind == "collective"]
+    assert [(ep.start, ep.end) for ep in eps] == [(dates[40], dates[-1])]
+    # an odd evening with a quiet day after it is no part of the later episode
+    hours[40] = 0.0
+    hours[39] = 2.0
+    eps = [ep for ep in daily_episodes(dates, hours) if ep.kind == "collective"]
+    assert [(ep.start, ep.end) for ep in eps] == [(dates[41], dates[-1])]
