@@ -25,6 +25,7 @@ from schedcheck.outputs.svg import (
     _date_axis,
     column_width,
     rect_path,
+    svg_open,
 )
 
 BAND = "#dfe3e8"          # a collective episode: pale grey band (our own choice)
@@ -69,9 +70,7 @@ def episodes_svg(daily: pd.DataFrame, episodes: list[dict], *, first: dt.date, l
     base_y = TOP + PLOT_H
     width = max(LEFT + ndays * cw + 8, MIN_W)
     height = base_y + 44
-    out = [f'<svg xmlns="http://www.w3.org/2000/svg" class="chart episodes" role="img" '
-           f'viewBox="0 0 {width:.0f} {height:.0f}" width="{width:.0f}" height="{height:.0f}" '
-           f'aria-label="{escape(title)}"><title>{escape(title)}</title>'
+    out = [svg_open("chart episodes", width, height, title) +
            f'<defs><pattern id="{pid}-eh" width="4" height="4" patternUnits="userSpaceOnUse" '
            f'patternTransform="rotate(45)"><rect width="4" height="4" fill="{BAND}"/>'
            f'<line x1="0" y1="0" x2="0" y2="4" stroke="{EDGE}" stroke-width="1"/></pattern>'

@@ -28,6 +28,7 @@ from schedcheck.outputs.svg import (
     TEXT,
     column_width,
     day_pieces,
+    svg_open,
 )
 from schedcheck.outputs.trends_files import TREND_ROWS, TRENDS_FILE
 
@@ -81,9 +82,7 @@ def strip_svg(lanes: list[tuple[str, list]], marks: list[tuple[int, str]], *, tz
     lane_h = 24 * LANE_PX
     width = max(LEFT + ndays * cw + 8, MIN_W)
     height = len(lanes) * (lane_h + LANE_GAP) + 32
-    out = [f'<svg xmlns="http://www.w3.org/2000/svg" class="chart trend-strip" role="img" '
-           f'viewBox="0 0 {width:.0f} {height:.0f}" width="{width:.0f}" height="{height:.0f}" '
-           f'aria-label="{escape(title)}"><title>{escape(title)}</title>',
+    out = [svg_open("chart trend-strip", width, height, title),
            f'<defs><pattern id="{pid}-uk" width="4" height="4" patternUnits="userSpaceOnUse" '
            f'patternTransform="rotate(45)"><rect width="4" height="4" fill="#fff"/>'
            f'<line x1="0" y1="0" x2="0" y2="4" stroke="{HATCH_NODATA}" stroke-width="1.6"/>'

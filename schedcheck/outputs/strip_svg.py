@@ -29,6 +29,7 @@ from schedcheck.outputs.svg import (
     _defs,
     _num,
     rect_path,
+    svg_open,
 )
 
 STRIP_W = 960.0          # picture width [px]; the page scales it down to fit
@@ -165,9 +166,7 @@ def strip_svg(*, a: pd.Timestamp, b: pd.Timestamp, span: tuple[pd.Timestamp, pd.
     a_ns, b_ns = int(to_ns(pd.Timestamp(a))), int(to_ns(pd.Timestamp(b)))
     top = 16.0
     height = top + BAND_H + 6 + len(rows) * (BAND_H + TRACE_H + 22) + 24
-    out = [f'<svg xmlns="http://www.w3.org/2000/svg" class="chart strip" role="img" '
-           f'viewBox="0 0 {STRIP_W:.0f} {height:.0f}" width="{STRIP_W:.0f}" '
-           f'height="{height:.0f}" aria-label="{escape(title)}"><title>{escape(title)}</title>',
+    out = [svg_open("chart strip", STRIP_W, height, title),
            _defs(pid)]
     s0, s1 = (int(to_ns(pd.Timestamp(x))) for x in span)
     xs0, xs1 = _x(np.array([max(s0, a_ns), min(s1, b_ns)]), a_ns, b_ns)

@@ -199,6 +199,13 @@ def _days_off_marks(days_off: pd.DataFrame | None, first: dt.date, ndays: int, c
     return "".join(parts)
 
 
+def svg_open(cls: str, width: float, height: float, title: str) -> str:
+    """The opening tag and accessible title of one inline chart (``title`` escaped here)."""
+    return (f'<svg xmlns="http://www.w3.org/2000/svg" class="{cls}" role="img" '
+            f'viewBox="0 0 {width:.0f} {height:.0f}" width="{width:.0f}" height="{height:.0f}" '
+            f'aria-label="{escape(title)}"><title>{escape(title)}</title>')
+
+
 def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.DataFrame | None,
                *, tz: str, first: dt.date, last: dt.date, title: str, pid: str) -> str:
     """Carpet plot of one component: a column per local date, wall-clock hour down the side.
@@ -232,9 +239,7 @@ def carpet_svg(runs: pd.DataFrame, schedule: pd.DataFrame | None, days_off: pd.D
     width = max(LEFT + ndays * cw + 8, MIN_W)
     height = TOP + ph + 48
     k = HOUR_PX / 60.0
-    out = [f'<svg xmlns="http://www.w3.org/2000/svg" class="chart carpet" role="img" '
-           f'viewBox="0 0 {width:.0f} {height:.0f}" width="{width:.0f}" height="{height:.0f}" '
-           f'aria-label="{escape(title)}"><title>{escape(title)}</title>', _defs(pid),
+    out = [svg_open("chart carpet", width, height, title), _defs(pid),
            f'<g font-size="10" fill="{TEXT}">']
     # hour grid and labels
     for h in range(0, 25, 6):
@@ -355,9 +360,7 @@ def daily_bars_svg(daily: pd.DataFrame, *, first: dt.date, last: dt.date, title:
     height = base_y + below + 44
     bw = max(cw * 0.8, min(cw, 1.2))
     x = LEFT + day * cw + (cw - bw) / 2
-    out = [f'<svg xmlns="http://www.w3.org/2000/svg" class="chart bars" role="img" '
-           f'viewBox="0 0 {width:.0f} {height:.0f}" width="{width:.0f}" height="{height:.0f}" '
-           f'aria-label="{escape(title)}"><title>{escape(title)}</title>', _defs(pid),
+    out = [svg_open("chart bars", width, height, title), _defs(pid),
            f'<g font-size="10" fill="{TEXT}">']
     for h in (0, 6, 12, 18, 24):
         if h <= top:
