@@ -147,9 +147,9 @@ def episode_settings(result: AuditResult) -> dict:
     :data:`schedcheck.changes.capa.MIN_LENGTH`)."""
     f = result.site.findings
     out = {}
-    if getattr(f, "episode_floor", None) is not None:
+    if f.episode_floor is not None:
         out["floor"] = float(f.episode_floor)
-    if getattr(f, "episode_min_days", None) is not None:
+    if f.episode_min_days is not None:
         out["min_length"] = int(f.episode_min_days)
     return out
 

@@ -26,7 +26,7 @@ TREND_ROWS = ("component", "role", "point", "state", "start", "end", "hours")
 
 def trend_hours(result, key: str) -> dict:
     """The hour figures a commanded component adds to its ``hours`` (empty without one)."""
-    tr = (getattr(result, "trends", None) or {}).get(key)
+    tr = result.trends.get(key)
     if tr is None:
         return {}
     return {k: _r(v, HOURS_DECIMALS) for k, v in tr.hours().items()}
@@ -34,7 +34,7 @@ def trend_hours(result, key: str) -> dict:
 
 def trend_points(result, key: str) -> dict:
     """``{"trends": {"command": ..., "status": ...}}`` for a commanded component, else {}."""
-    tr = (getattr(result, "trends", None) or {}).get(key)
+    tr = result.trends.get(key)
     if tr is None:
         return {}
     return {"trends": {"command": tr.command_point, "status": tr.status_point}}
@@ -44,7 +44,7 @@ def trends_frame(result) -> pd.DataFrame:
     """The rows of ``trends.csv`` (see the module docstring), in component and time order."""
     tz = result.site.timezone
     rows = []
-    for key, tr in (getattr(result, "trends", None) or {}).items():
+    for key, tr in result.trends.items():
         for role, point, states in (("command", tr.command_point, tr.command),
                                     ("status", tr.status_point, tr.status)):
             if states is None:
@@ -62,6 +62,6 @@ def trends_frame(result) -> pd.DataFrame:
 
 def write_trends_file(result, outdir: Path, write_csv) -> dict[str, Path]:
     """``trends.csv`` into ``outdir`` when the audit has trends (``write_csv(frame, path)``)."""
-    if not getattr(result, "trends", None):
+    if not result.trends:
         return {}
     return {TRENDS_FILE: write_csv(trends_frame(result), Path(outdir) / TRENDS_FILE)}
